@@ -1,0 +1,36 @@
+// Compiles the library, the CLI and the browser bundle with esbuild.
+// Runs on `npm install` (prepare) so a fresh clone has a working `peculiar` bin.
+import { build } from "esbuild";
+import { chmodSync, mkdirSync, copyFileSync, existsSync, readdirSync } from "node:fs";
+import { join } from "node:path";
+
+const node = {
+  bundle: true,
+  platform: "node",
+  format: "esm",
+  target: "node20",
+  packages: "external",
+  sourcemap: true,
+  logLevel: "warning",
+};
+
+await build({ ...node, entryPoints: { cli: "src/cli/main.ts", index: "src/index.ts" }, outdir: "dist" });
+chmodSync("dist/cli.js", 0o755);
+
+// The web view: one browser bundle (d3, apache-arrow and our browser-safe modules) plus static files.
+if (existsSync("web/main.ts")) {
+  mkdirSync("dist/web", { recursive: true });
+  await build({
+    bundle: true,
+    platform: "browser",
+    format: "esm",
+    target: "es2022",
+    sourcemap: true,
+    logLevel: "warning",
+    entryPoints: { app: "web/main.ts" },
+    outdir: "dist/web",
+  });
+  for (const f of readdirSync("web")) {
+    if (/\.(html|css|svg)$/.test(f)) copyFileSync(join("web", f), join("dist/web", f));
+  }
+}

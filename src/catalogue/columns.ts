@@ -1,0 +1,370 @@
+/**
+ * Columns in and out of Arrow. Every reader builds `ColumnData` (typed arrays plus a null mask)
+ * and calls `tableFromColumns`; every kernel reads numbers with `float64Column` (nulls -> NaN).
+ * Field metadata carries unit, UCD and description; schema metadata carries roles, provenance
+ * and the settings that produced derived columns (see meta.ts). Both survive Arrow IPC.
+ */
+import {
+  Bool,
+  Field,
+  Float32,
+  Float64,
+  Int8,
+  Int16,
+  Int32,
+  Int64,
+  RecordBatch,
+  Schema,
+  Struct,
+  Table,
+  Uint8,
+  Uint16,
+  Uint32,
+  Uint64,
+  Utf8,
+  makeData,
+  vectorFromArray,
+  type DataType,
+  type Data,
+} from "apache-arrow";
+import { PeculiarError } from "../errors.js";
+
+export type ColumnKind =
+  | "float64"
+  | "float32"
+  | "int8"
+  | "int16"
+  | "int32"
+  | "int64"
+  | "uint8"
+  | "uint16"
+  | "uint32"
+  | "uint64"
+  | "bool"
+  | "utf8";
+
+export interface ColumnMeta {
+  unit?: string;
+  ucd?: string;
+  description?: string;
+}
+
+type NumericArray =
+  | Float64Array
+  | Float32Array
+  | Int8Array
+  | Int16Array
+  | Int32Array
+  | BigInt64Array
+  | Uint8Array
+  | Uint16Array
+  | Uint32Array
+  | BigUint64Array;
+
+export interface ColumnData {
+  name: string;
+  kind: ColumnKind;
+  /** Typed array for numeric kinds, Uint8Array (0/1) for bool, string[] for utf8. */
+  values: NumericArray | string[];
+  /** 1 where the value is null. Omit when there are no nulls. */
+  nulls?: Uint8Array;
+  meta?: ColumnMeta;
+}
+
+const ARROW_TYPES: Record<ColumnKind, () => DataType> = {
+  float64: () => new Float64(),
+  float32: () => new Float32(),
+  int8: () => new Int8(),
+  int16: () => new Int16(),
+  int32: () => new Int32(),
+  int64: () => new Int64(),
+  uint8: () => new Uint8(),
+  uint16: () => new Uint16(),
+  uint32: () => new Uint32(),
+  uint64: () => new Uint64(),
+  bool: () => new Bool(),
+  utf8: () => new Utf8(),
+};
+
+function fieldMetadata(meta: ColumnMeta | undefined): Map<string, string> {
+  const m = new Map<string, string>();
+  if (meta?.unit) m.set("unit", meta.unit);
+  if (meta?.ucd) m.set("ucd", meta.ucd);
+  if (meta?.description) m.set("description", meta.description);
+  return m;
+}
+
+/** Packs a 1-per-null byte mask into an Arrow validity bitmap (bit set = valid). */
+function validityBitmap(nulls: Uint8Array | undefined, length: number): { bitmap?: Uint8Array; nullCount: number } {
+  if (!nulls) return { nullCount: 0 };
+  let nullCount = 0;
+  const bitmap = new Uint8Array((length + 7) >> 3);
+  for (let i = 0; i < length; i++) {
+    if (nulls[i]) nullCount++;
+    else bitmap[i >> 3]! |= 1 << (i & 7);
+  }
+  return nullCount === 0 ? { nullCount: 0 } : { bitmap, nullCount };
+}
+
+function columnToData(col: ColumnData, length: number): Data {
+  if (col.values.length !== length) {
+    throw new PeculiarError("input", `column has ${col.values.length} values, table has ${length} rows`, {
+      column: col.name,
+    });
+  }
+  const type = ARROW_TYPES[col.kind]();
+  const { bitmap, nullCount } = validityBitmap(col.nulls, length);
+  if (col.kind === "utf8") {
+    const strings = col.values as string[];
+    const withNulls = strings.map((s, i) => (col.nulls?.[i] ? null : s));
+    return vectorFromArray(withNulls, new Utf8()).data[0]!;
+  }
+  if (col.kind === "bool") {
+    const src = col.values as Uint8Array;
+    const packed = new Uint8Array((length + 7) >> 3);
+    for (let i = 0; i < length; i++) if (src[i]) packed[i >> 3]! |= 1 << (i & 7);
+    return makeData({ type: type as Bool, length, data: packed, nullBitmap: bitmap, nullCount });
+  }
+  return makeData({ type: type as Float64, length, data: col.values as Float64Array, nullBitmap: bitmap, nullCount });
+}
+
+/** Builds an Arrow table from columns. All columns must have the same length. */
+export function tableFromColumns(columns: ColumnData[], schemaMetadata: Map<string, string> = new Map(), length?: number): Table {
+  const n = length ?? columns[0]?.values.length ?? 0;
+  const seen = new Set<string>();
+  for (const c of columns) {
+    if (seen.has(c.name)) throw new PeculiarError("column", "duplicate column name", { column: c.name });
+    seen.add(c.name);
+  }
+  const datas = columns.map((c) => columnToData(c, n));
+  const fields = columns.map((c, i) => new Field(c.name, datas[i]!.type, true, fieldMetadata(c.meta)));
+  const schema = new Schema(fields, schemaMetadata);
+  const struct = makeData({ type: new Struct(fields), length: n, nullCount: 0, children: datas });
+  return new Table(schema, [new RecordBatch(schema, struct)]);
+}
+
+/** The metadata (unit, ucd, description) of a column, or {} when it has none. */
+export function columnMeta(table: Table, name: string): ColumnMeta {
+  const f = table.schema.fields.find((x) => x.name === name);
+  if (!f) return {};
+  const m = f.metadata;
+  const out: ColumnMeta = {};
+  const unit = m.get("unit");
+  const ucd = m.get("ucd");
+  const description = m.get("description");
+  if (unit) out.unit = unit;
+  if (ucd) out.ucd = ucd;
+  if (description) out.description = description;
+  return out;
+}
+
+export function hasColumn(table: Table, name: string): boolean {
+  return table.schema.fields.some((f) => f.name === name);
+}
+
+function requireColumn(table: Table, name: string) {
+  const v = table.getChild(name);
+  if (!v) throw new PeculiarError("column", "no such column", { column: name, expected: `one of ${table.schema.fields.map((f) => f.name).join(", ")}` });
+  return v;
+}
+
+/**
+ * A column as float64 with nulls (and unparseable strings) as NaN. Booleans become 0/1.
+ * Strings are parsed with Number(); sexagesimal angles go through sky/angles instead.
+ */
+export function float64Column(table: Table, name: string): Float64Array {
+  const v = requireColumn(table, name);
+  const n = table.numRows;
+  const out = new Float64Array(n);
+  let i = 0;
+  for (const chunk of v.data) {
+    const len = chunk.length;
+    const isNumericFlat = chunk.values instanceof Float64Array || chunk.values instanceof Float32Array || chunk.values instanceof Int32Array || chunk.values instanceof Int16Array || chunk.values instanceof Int8Array || chunk.values instanceof Uint8Array && !(chunk.type instanceof Bool) || chunk.values instanceof Uint16Array || chunk.values instanceof Uint32Array;
+    if (isNumericFlat && !(chunk.type instanceof Utf8)) {
+      const vals = chunk.values as ArrayLike<number>;
+      const off = chunk.offset;
+      for (let k = 0; k < len; k++) out[i + k] = vals[off + k]!;
+      if (chunk.nullCount > 0) for (let k = 0; k < len; k++) if (!chunk.getValid(k)) out[i + k] = NaN;
+    } else {
+      for (let k = 0; k < len; k++) {
+        const x = chunk.getValid(k) ? getValue(chunk, k) : null;
+        out[i + k] = x === null || x === undefined ? NaN : typeof x === "string" ? (x.trim() === "" ? NaN : Number(x)) : Number(x);
+      }
+    }
+    i += len;
+  }
+  return out;
+}
+
+function getValue(chunk: Data, k: number): unknown {
+  // Data has no public get(); go through a one-chunk vector view.
+  return tableCell(chunk, k);
+}
+
+import { makeVector } from "apache-arrow";
+const vectorCache = new WeakMap<Data, ReturnType<typeof makeVector>>();
+function tableCell(chunk: Data, k: number): unknown {
+  let vec = vectorCache.get(chunk);
+  if (!vec) {
+    vec = makeVector(chunk);
+    vectorCache.set(chunk, vec);
+  }
+  return vec.get(k);
+}
+
+/** A column as strings; nulls become null. */
+export function stringColumn(table: Table, name: string): (string | null)[] {
+  const v = requireColumn(table, name);
+  const out: (string | null)[] = new Array(table.numRows);
+  for (let i = 0; i < table.numRows; i++) {
+    const x = v.isValid(i) ? v.get(i) : null;
+    out[i] = x === null || x === undefined ? null : String(x);
+  }
+  return out;
+}
+
+/** 1 where the column is null. */
+export function nullMask(table: Table, name: string): Uint8Array {
+  const v = requireColumn(table, name);
+  const out = new Uint8Array(table.numRows);
+  if (v.nullCount === 0) return out;
+  for (let i = 0; i < table.numRows; i++) out[i] = v.isValid(i) ? 0 : 1;
+  return out;
+}
+
+/** Every column of a table as ColumnData (for readers/writers that rebuild tables). */
+export function columnsOf(table: Table): ColumnData[] {
+  return table.schema.fields.map((f) => columnDataOf(table, f.name));
+}
+
+const KIND_OF_TYPE: [new (...a: never[]) => DataType, ColumnKind][] = [
+  [Float64, "float64"],
+  [Float32, "float32"],
+  [Int8, "int8"],
+  [Int16, "int16"],
+  [Int32, "int32"],
+  [Int64, "int64"],
+  [Uint8, "uint8"],
+  [Uint16, "uint16"],
+  [Uint32, "uint32"],
+  [Uint64, "uint64"],
+  [Bool, "bool"],
+  [Utf8, "utf8"],
+];
+
+export function kindOf(type: DataType): ColumnKind | undefined {
+  for (const [ctor, kind] of KIND_OF_TYPE) if (type instanceof ctor) return kind;
+  // Arrow readers may return the generic Int/Float classes; fall back on type id and bit width.
+  const t = type as unknown as { typeId: number; bitWidth?: number; isSigned?: boolean; precision?: number };
+  if (t.typeId === 2) {
+    const w = t.bitWidth ?? 32;
+    const s = t.isSigned ?? true;
+    return (`${s ? "int" : "uint"}${w}`) as ColumnKind;
+  }
+  if (t.typeId === 3) return t.precision === 2 ? "float64" : t.precision === 1 ? "float32" : "float64";
+  if (t.typeId === 5) return "utf8";
+  if (t.typeId === 6) return "bool";
+  return undefined;
+}
+
+const TYPED: Record<Exclude<ColumnKind, "bool" | "utf8">, new (n: number) => NumericArray> = {
+  float64: Float64Array,
+  float32: Float32Array,
+  int8: Int8Array,
+  int16: Int16Array,
+  int32: Int32Array,
+  int64: BigInt64Array,
+  uint8: Uint8Array,
+  uint16: Uint16Array,
+  uint32: Uint32Array,
+  uint64: BigUint64Array,
+};
+
+/** One column as ColumnData: values copied out of Arrow, nulls as a byte mask. Unknown types become utf8. */
+export function columnDataOf(table: Table, name: string): ColumnData {
+  const v = requireColumn(table, name);
+  const field = table.schema.fields.find((f) => f.name === name)!;
+  const kind = kindOf(field.type) ?? "utf8";
+  const n = table.numRows;
+  const nulls = nullMask(table, name);
+  const hasNulls = nulls.some((x) => x === 1);
+  const meta = columnMeta(table, name);
+  let values: NumericArray | string[];
+  if (kind === "utf8") {
+    values = new Array<string>(n);
+    for (let i = 0; i < n; i++) (values as string[])[i] = nulls[i] ? "" : String(v.get(i) ?? "");
+  } else if (kind === "bool") {
+    const b = new Uint8Array(n);
+    for (let i = 0; i < n; i++) b[i] = !nulls[i] && v.get(i) ? 1 : 0;
+    values = b;
+  } else {
+    const arr = new TYPED[kind](n);
+    let i = 0;
+    for (const chunk of v.data) {
+      const src = chunk.values as NumericArray;
+      (arr as Float64Array).set(src.subarray(chunk.offset, chunk.offset + chunk.length) as Float64Array, i);
+      i += chunk.length;
+    }
+    values = arr;
+  }
+  const out: ColumnData = { name, kind, values, meta };
+  if (hasNulls) out.nulls = nulls;
+  return out;
+}
+
+/** A new table with `columns` appended (or replacing same-named columns), schema metadata kept or replaced. */
+export function withColumns(table: Table, columns: ColumnData[], schemaMetadata?: Map<string, string>): Table {
+  const replaced = new Set(columns.map((c) => c.name));
+  const kept = columnsOf(table).filter((c) => !replaced.has(c.name));
+  const order = [...kept];
+  // Replaced columns keep their position; new ones go at the end.
+  const byName = new Map(columns.map((c) => [c.name, c]));
+  const out: ColumnData[] = [];
+  for (const f of table.schema.fields) {
+    const r = byName.get(f.name);
+    if (r) {
+      out.push(r);
+      byName.delete(f.name);
+    } else out.push(order.shift()!);
+  }
+  for (const c of byName.values()) out.push(c);
+  return tableFromColumns(out, schemaMetadata ?? new Map(table.schema.metadata), table.numRows);
+}
+
+/**
+ * Rows of `table` at `rows` (Int32Array; -1 gives an all-null row). Used by joins and subsets.
+ */
+export function takeRows(table: Table, rows: Int32Array, prefix = ""): ColumnData[] {
+  return columnsOf(table).map((c) => takeColumn(c, rows, prefix));
+}
+
+export function takeColumn(c: ColumnData, rows: Int32Array, prefix = ""): ColumnData {
+  const n = rows.length;
+  const nulls = new Uint8Array(n);
+  let values: NumericArray | string[];
+  if (c.kind === "utf8") {
+    const src = c.values as string[];
+    const dst = new Array<string>(n);
+    for (let i = 0; i < n; i++) {
+      const r = rows[i]!;
+      if (r < 0 || c.nulls?.[r]) {
+        nulls[i] = 1;
+        dst[i] = "";
+      } else dst[i] = src[r]!;
+    }
+    values = dst;
+  } else {
+    const src = c.values as NumericArray;
+    const dst = new (src.constructor as new (n: number) => NumericArray)(n);
+    for (let i = 0; i < n; i++) {
+      const r = rows[i]!;
+      if (r < 0 || c.nulls?.[r]) nulls[i] = 1;
+      else (dst as Float64Array)[i] = (src as Float64Array)[r]!;
+    }
+    values = dst;
+  }
+  const out: ColumnData = { name: prefix + c.name, kind: c.kind, values };
+  if (c.meta) out.meta = c.meta;
+  if (nulls.some((x) => x === 1)) out.nulls = nulls;
+  return out;
+}

@@ -1,0 +1,2 @@
+export * from "./columns.js";
+export * from "./meta.js";

@@ -1,0 +1,4 @@
+export * from "./angles.js";
+export * from "./vectors.js";
+export * from "./separation.js";
+export * from "./frames.js";
