@@ -1,1 +1,2 @@
-export {};
+export * from "./plane-index.js";
+export * from "./sky-index.js";
