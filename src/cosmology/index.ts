@@ -1,2 +1,3 @@
 export * from "./constants.js";
 export * from "./distances.js";
+export * from "./restframes.js";
