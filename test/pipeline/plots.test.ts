@@ -18,7 +18,7 @@ function elements(svg: string): El[] {
   const p = new SaxesParser();
   p.on("opentag", (t) => {
     const attrs: Record<string, string> = {};
-    for (const [k, v] of Object.entries(t.attributes)) attrs[k] = typeof v === "string" ? v : v.value;
+    for (const [k, v] of Object.entries(t.attributes)) attrs[k] = String(v);
     out.push({ name: t.name, attrs, parents: stack.map((s) => s.cls) });
     stack.push({ name: t.name, cls: attrs.class ?? "" });
   });
