@@ -120,10 +120,11 @@ export function redshiftAtDistance(dMpc: number, kind: DistanceKind, c: Cosmolog
     return kind === "luminosity" ? dc + (1 + z) * dcdz : dcdz / (1 + z) - dc / ((1 + z) * (1 + z));
   };
   let lo = 0;
-  let hi = Z_MAX;
+  // D_A rises to a maximum and falls again: invert on the rising branch only (the low-z root).
+  let hi = kind === "angular" ? angularMaximumRedshift(df) : Z_MAX;
   if (f(hi) < dMpc) return NaN;
   // Start from the low-z guess d = cz/H0.
-  let z = Math.min(dMpc / dh, Z_MAX / 2);
+  let z = Math.min(dMpc / dh, hi / 2);
   for (let it = 0; it < 100; it++) {
     const g = f(z) - dMpc;
     if (g > 0) hi = z;
@@ -135,6 +136,19 @@ export function redshiftAtDistance(dMpc: number, kind: DistanceKind, c: Cosmolog
     z = next;
   }
   return z;
+}
+
+/** The redshift of the maximum of D_A (where its derivative changes sign), by bisection on [0, Z_MAX]. */
+function angularMaximumRedshift(dAdz: (z: number) => number): number {
+  let lo = 0;
+  let hi = Z_MAX;
+  if (dAdz(hi) > 0) return hi;
+  for (let it = 0; it < 200 && hi - lo > 1e-14 * hi; it++) {
+    const mid = (lo + hi) / 2;
+    if (dAdz(mid) > 0) lo = mid;
+    else hi = mid;
+  }
+  return (lo + hi) / 2;
 }
 
 /**
