@@ -181,9 +181,9 @@ export function float64Column(table: Table, name: string): Float64Array {
     const len = chunk.length;
     const isNumericFlat = chunk.values instanceof Float64Array || chunk.values instanceof Float32Array || chunk.values instanceof Int32Array || chunk.values instanceof Int16Array || chunk.values instanceof Int8Array || chunk.values instanceof Uint8Array && !(chunk.type instanceof Bool) || chunk.values instanceof Uint16Array || chunk.values instanceof Uint32Array;
     if (isNumericFlat && !(chunk.type instanceof Utf8)) {
+      // Arrow slices `values` already (chunk.offset only indexes the validity bitmap).
       const vals = chunk.values as ArrayLike<number>;
-      const off = chunk.offset;
-      for (let k = 0; k < len; k++) out[i + k] = vals[off + k]!;
+      for (let k = 0; k < len; k++) out[i + k] = vals[k]!;
       if (chunk.nullCount > 0) for (let k = 0; k < len; k++) if (!chunk.getValid(k)) out[i + k] = NaN;
     } else {
       for (let k = 0; k < len; k++) {
@@ -302,7 +302,8 @@ export function columnDataOf(table: Table, name: string): ColumnData {
     let i = 0;
     for (const chunk of v.data) {
       const src = chunk.values as NumericArray;
-      (arr as Float64Array).set(src.subarray(chunk.offset, chunk.offset + chunk.length) as Float64Array, i);
+      // Arrow slices `values` already (chunk.offset only indexes the validity bitmap).
+      (arr as Float64Array).set(src.subarray(0, chunk.length) as Float64Array, i);
       i += chunk.length;
     }
     values = arr;

@@ -1,2 +1,3 @@
 export * from "./columns.js";
 export * from "./meta.js";
+export * from "./io.js";

@@ -1,0 +1,149 @@
+/**
+ * The one place where a reader's columns become a peculiar table: adds the bookkeeping columns
+ * `valid`, `invalid_reason` and `source_row` (or merges the reader's findings into the file's own,
+ * when the file was written by us) and records `peculiar.source` in the schema metadata.
+ */
+import type { Table } from "apache-arrow";
+import { tableFromColumns, type ColumnData, type ColumnKind } from "../columns.js";
+import { INVALID_REASON, META, SOURCE_ROW, VALID } from "../meta.js";
+
+/** What every reader hands over: columns as read, one reason per row ("" when fine), row numbers. */
+export interface ParsedColumns {
+  columns: ColumnData[];
+  /** Number of rows (needed when there are no columns). */
+  rows: number;
+  /** Per row: what the reader found wrong, "" when nothing. */
+  reasons: string[];
+  /** Per row: 1-based line (text) or row (binary) in the file. */
+  sourceRows: Int32Array;
+  /** Schema metadata found in the file (kept as is). */
+  metadata: Map<string, string>;
+}
+
+export interface SourceInfo {
+  file: string;
+  format: string;
+  /** FITS: the HDU the table came from (0 = primary) and its EXTNAME when present. */
+  hdu?: number;
+  extname?: string;
+  /** Columns the reader could not represent and left out, with why. */
+  skipped?: string[];
+}
+
+export interface SourceMeta extends SourceInfo {
+  rows: number;
+  invalid: number;
+  /** The source of a table we wrote earlier and read back (its source_row counts in that file). */
+  previous?: unknown;
+}
+
+const INT_KINDS: ReadonlySet<ColumnKind> = new Set(["int8", "int16", "int32", "int64", "uint8", "uint16", "uint32", "uint64"]);
+
+/** A free name for a file column that clashes with a bookkeeping column of another type. */
+function freeName(name: string, taken: Set<string>): string {
+  let n = `${name}_file`;
+  for (let k = 2; taken.has(n); k++) n = `${name}_file${k}`;
+  return n;
+}
+
+export function finishTable(parsed: ParsedColumns, info: SourceInfo): Table {
+  const n = parsed.rows;
+  const taken = new Set(parsed.columns.map((c) => c.name));
+  const cols: ColumnData[] = [];
+  let valid: ColumnData | undefined;
+  let reason: ColumnData | undefined;
+  let sourceRow: ColumnData | undefined;
+  for (const c of parsed.columns) {
+    if (c.name === VALID && c.kind === "bool") valid = c;
+    else if (c.name === INVALID_REASON && c.kind === "utf8") reason = c;
+    else if (c.name === SOURCE_ROW && INT_KINDS.has(c.kind)) sourceRow = c;
+    else if (c.name === VALID || c.name === INVALID_REASON || c.name === SOURCE_ROW) {
+      // Same name, other type: the file's column is kept under a free name.
+      const renamed = freeName(c.name, taken);
+      taken.add(renamed);
+      cols.push({ ...c, name: renamed });
+      continue;
+    }
+    cols.push(c);
+  }
+
+  const validValues = new Uint8Array(n);
+  const reasonValues = new Array<string>(n);
+  const oldValid = valid?.values as Uint8Array | undefined;
+  const oldReason = reason?.values as string[] | undefined;
+  let invalid = 0;
+  for (let i = 0; i < n; i++) {
+    const wasValid = oldValid ? oldValid[i] === 1 || valid!.nulls?.[i] === 1 : true;
+    const before = oldReason && !reason!.nulls?.[i] ? oldReason[i]! : "";
+    const found = parsed.reasons[i] ?? "";
+    const ok = wasValid && found === "";
+    validValues[i] = ok ? 1 : 0;
+    reasonValues[i] = found === "" ? before : before === "" ? found : `${before}; ${found}`;
+    if (!ok) invalid++;
+  }
+  const validCol: ColumnData = { name: VALID, kind: "bool", values: validValues };
+  const reasonCol: ColumnData = { name: INVALID_REASON, kind: "utf8", values: reasonValues };
+  let rowCol: ColumnData;
+  if (sourceRow) {
+    const src = sourceRow.values as ArrayLike<number | bigint>;
+    const rows = new Int32Array(n);
+    for (let i = 0; i < n; i++) rows[i] = Number(src[i]);
+    rowCol = { name: SOURCE_ROW, kind: "int32", values: rows };
+    if (sourceRow.nulls) rowCol.nulls = sourceRow.nulls;
+    if (sourceRow.meta) rowCol.meta = sourceRow.meta;
+  } else rowCol = { name: SOURCE_ROW, kind: "int32", values: parsed.sourceRows };
+
+  // Bookkeeping columns the file had stay where they were; new ones go at the end.
+  const out: ColumnData[] = [];
+  const had = new Set<string>();
+  for (const c of parsed.columns) {
+    if (c === valid) (out.push(validCol), had.add(VALID));
+    else if (c === reason) (out.push(reasonCol), had.add(INVALID_REASON));
+    else if (c === sourceRow) (out.push(rowCol), had.add(SOURCE_ROW));
+    else out.push(cols.shift()!);
+  }
+  if (!had.has(VALID)) out.push(validCol);
+  if (!had.has(INVALID_REASON)) out.push(reasonCol);
+  if (!had.has(SOURCE_ROW)) out.push(rowCol);
+
+  const metadata = new Map(parsed.metadata);
+  const source: SourceMeta = { file: info.file, format: info.format, rows: n, invalid };
+  if (info.hdu !== undefined) source.hdu = info.hdu;
+  if (info.extname !== undefined) source.extname = info.extname;
+  if (info.skipped && info.skipped.length > 0) source.skipped = info.skipped;
+  const prev = metadata.get(META.source);
+  if (prev !== undefined) {
+    try {
+      source.previous = JSON.parse(prev);
+    } catch {
+      source.previous = prev;
+    }
+  }
+  metadata.set(META.source, JSON.stringify(source));
+  return tableFromColumns(out, metadata, n);
+}
+
+/** Appends one finding to a row's reason. */
+export function addReason(reasons: string[], row: number, text: string): void {
+  const r = reasons[row];
+  reasons[row] = r ? `${r}; ${text}` : text;
+}
+
+/**
+ * The shortest decimal text that reads back as the same float64 (JavaScript's own Number
+ * to string is the shortest round-trip form, ECMA-262 Number::toString). Float32 values get the
+ * shortest text that reads back to the same float32.
+ */
+export function formatFloat(x: number, float32 = false): string {
+  if (Number.isNaN(x)) return "NaN";
+  if (x === Infinity) return "Infinity";
+  if (x === -Infinity) return "-Infinity";
+  if (x === 0) return Object.is(x, -0) ? "-0" : "0";
+  if (float32) {
+    for (let p = 1; p <= 9; p++) {
+      const s = x.toPrecision(p);
+      if (Math.fround(Number(s)) === x) return String(Number(s));
+    }
+  }
+  return String(x);
+}

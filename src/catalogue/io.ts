@@ -1,0 +1,145 @@
+/**
+ * Reading and writing catalogues: the format comes from the file extension unless given, a read
+ * returns the Arrow table with the bookkeeping columns (valid, invalid_reason, source_row) and
+ * `peculiar.source`, a write encodes everything in memory first and then lands atomically.
+ */
+import { readFile, stat } from "node:fs/promises";
+import { extname } from "node:path";
+import type { Table } from "apache-arrow";
+import { PeculiarError } from "../errors.js";
+import { writeFileAtomic } from "./atomic.js";
+import { arrowFromTable, parseArrowColumns } from "./formats/arrow.js";
+import { csvFromTable, parseCsvColumns } from "./formats/csv.js";
+import { finishTable, type ParsedColumns, type SourceInfo } from "./formats/table.js";
+
+export { assertNotSameFile, writeFileAtomic } from "./atomic.js";
+export { parseCsv, csvFromTable, NULL_TOKENS } from "./formats/csv.js";
+export { parseArrow, arrowFromTable } from "./formats/arrow.js";
+
+export type FormatName = "csv" | "tsv" | "votable" | "fits" | "arrow";
+export const FORMAT_NAMES: readonly FormatName[] = ["csv", "tsv", "votable", "fits", "arrow"];
+
+/** Extensions (lower case) and their formats. `.txt` and `.tab` are read as tab-separated. */
+const EXTENSIONS: Record<string, FormatName> = {
+  ".csv": "csv",
+  ".tsv": "tsv",
+  ".tab": "tsv",
+  ".txt": "tsv",
+  ".vot": "votable",
+  ".votable": "votable",
+  ".xml": "votable",
+  ".fits": "fits",
+  ".fit": "fits",
+  ".fts": "fits",
+  ".arrow": "arrow",
+  ".feather": "arrow",
+  ".ipc": "arrow",
+  ".arrows": "arrow",
+};
+
+export function formatFromPath(path: string): FormatName {
+  const ext = extname(path).toLowerCase();
+  const f = EXTENSIONS[ext];
+  if (!f) {
+    throw new PeculiarError("format", `unknown file format ${ext ? `"${ext}"` : "(no extension)"}; use --format or one of the extensions ${Object.keys(EXTENSIONS).join(" ")}`, { file: path });
+  }
+  return f;
+}
+
+/** Parses a format name given by the user (e.g. --format). */
+export function parseFormatName(name: string): FormatName {
+  const f = name.toLowerCase();
+  if ((FORMAT_NAMES as readonly string[]).includes(f)) return f as FormatName;
+  throw new PeculiarError("usage", `unknown format "${name}"`, { expected: FORMAT_NAMES.join(", ") });
+}
+
+export interface ReadOptions {
+  format?: FormatName;
+  /** FITS: the HDU to read, by number (0 = primary) or EXTNAME. Default: the first BINTABLE. */
+  hdu?: number | string;
+  /** CSV/TSV: override the field separator. */
+  delimiter?: string;
+}
+
+export interface WriteOptions {
+  format?: FormatName;
+  /** Arrow: write the stream format (default for `.arrows`, else the file format). */
+  stream?: boolean;
+}
+
+async function readBytes(path: string): Promise<Uint8Array> {
+  let size: number;
+  try {
+    const s = await stat(path);
+    if (s.isDirectory()) throw new PeculiarError("io", "is a folder, not a file", { file: path });
+    size = s.size;
+  } catch (e) {
+    if (e instanceof PeculiarError) throw e;
+    const code = (e as NodeJS.ErrnoException).code;
+    throw new PeculiarError("io", code === "ENOENT" ? "no such file" : `cannot read: ${(e as Error).message}`, { file: path }, { cause: e });
+  }
+  if (size === 0) throw new PeculiarError("format", "empty file", { file: path });
+  try {
+    return new Uint8Array(await readFile(path));
+  } catch (e) {
+    throw new PeculiarError("io", `cannot read: ${(e as Error).message}`, { file: path }, { cause: e });
+  }
+}
+
+/** Parses bytes already in memory as `format`; `file` names the source in messages and metadata. */
+export function parseTable(bytes: Uint8Array, format: FormatName, options: { file: string; hdu?: number | string; delimiter?: string }): Table {
+  const file = options.file;
+  let parsed: ParsedColumns;
+  const info: SourceInfo = { file, format };
+  switch (format) {
+    case "csv":
+    case "tsv": {
+      const text = new TextDecoder("utf-8").decode(bytes);
+      if (text.trim() === "") throw new PeculiarError("format", "empty file (only blank space)", { file });
+      parsed = parseCsvColumns(text, { file, delimiter: options.delimiter ?? (format === "tsv" ? "\t" : ",") });
+      break;
+    }
+    case "arrow":
+      parsed = parseArrowColumns(bytes, { file });
+      break;
+    default:
+      throw new PeculiarError("format", `reading ${format} is not available yet`, { file });
+  }
+  return finishTable(parsed, info);
+}
+
+export async function readTable(path: string, options: ReadOptions = {}): Promise<Table> {
+  const format = options.format ?? formatFromPath(path);
+  const bytes = await readBytes(path);
+  const o: { file: string; hdu?: number | string; delimiter?: string } = { file: path };
+  if (options.hdu !== undefined) o.hdu = options.hdu;
+  if (options.delimiter !== undefined) o.delimiter = options.delimiter;
+  return parseTable(bytes, format, o);
+}
+
+/** Encodes a table in memory as `format` (what writeTable writes). */
+export function encodeTable(table: Table, format: FormatName, options: { stream?: boolean } = {}): Uint8Array | string {
+  switch (format) {
+    case "csv":
+      return csvFromTable(table);
+    case "tsv":
+      return csvFromTable(table, { delimiter: "\t" });
+    case "arrow":
+      return arrowFromTable(table, { stream: options.stream ?? false });
+    default:
+      throw new PeculiarError("format", `writing ${format} is not available yet`);
+  }
+}
+
+export async function writeTable(table: Table, path: string, options: WriteOptions = {}): Promise<void> {
+  const format = options.format ?? formatFromPath(path);
+  const stream = options.stream ?? extname(path).toLowerCase() === ".arrows";
+  let data: Uint8Array | string;
+  try {
+    data = encodeTable(table, format, { stream });
+  } catch (e) {
+    if (e instanceof PeculiarError && e.place.file === undefined) throw new PeculiarError(e.code, e.message, { file: path }, { cause: e });
+    throw e;
+  }
+  await writeFileAtomic(path, data);
+}

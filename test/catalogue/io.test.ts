@@ -1,0 +1,169 @@
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { mkdtempSync, readdirSync, rmSync, writeFileSync, symlinkSync, existsSync, readFileSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
+import type { Table } from "apache-arrow";
+import { tableToIPC } from "apache-arrow";
+import { readTable, writeTable, formatFromPath, assertNotSameFile, parseFormatName } from "../../src/catalogue/io.js";
+import { tableFromColumns, columnMeta, float64Column } from "../../src/catalogue/columns.js";
+import { META } from "../../src/catalogue/meta.js";
+import { PeculiarError } from "../../src/errors.js";
+
+let dir = "";
+beforeAll(() => {
+  dir = mkdtempSync(join(tmpdir(), "peculiar-io-"));
+});
+afterAll(() => rmSync(dir, { recursive: true, force: true }));
+
+const cells = (t: Table, name: string) => {
+  const v = t.getChild(name)!;
+  return Array.from({ length: t.numRows }, (_, i) => (v.isValid(i) ? v.get(i) : null));
+};
+const sample = () =>
+  tableFromColumns(
+    [
+      { name: "id", kind: "utf8", values: ["g1", "g2", "g3"], nulls: new Uint8Array([0, 0, 1]) },
+      { name: "cz", kind: "float64", values: new Float64Array([1200.5, 0, 3e4]), nulls: new Uint8Array([0, 1, 0]), meta: { unit: "km/s", ucd: "spect.dopplerVeloc.opt" } },
+      { name: "n", kind: "int32", values: new Int32Array([1, 2, 3]) },
+    ],
+    new Map([[META.settings, JSON.stringify({ step: "velocities", H0: 70 })]]),
+  );
+
+describe("formatFromPath", () => {
+  it("maps each accepted extension, in any case, to its format", () => {
+    const cases: [string, string][] = [
+      ["a.csv", "csv"], ["a.TSV", "tsv"], ["a.tab", "tsv"], ["a.txt", "tsv"], ["a.vot", "votable"], ["a.votable", "votable"],
+      ["a.xml", "votable"], ["a.fits", "fits"], ["a.FIT", "fits"], ["a.fts", "fits"], ["a.arrow", "arrow"], ["a.feather", "arrow"],
+      ["a.ipc", "arrow"], ["a.arrows", "arrow"],
+    ];
+    for (const [p, f] of cases) expect(formatFromPath(p)).toBe(f);
+  });
+
+  it("rejects an unknown extension naming the file and the accepted extensions", () => {
+    expect(() => formatFromPath("dir/cat.xlsx")).toThrow(/^dir\/cat\.xlsx: unknown file format "\.xlsx".*\.csv .*\.arrows/);
+    expect(() => formatFromPath("cat")).toThrow("cat: unknown file format (no extension)");
+  });
+
+  it("parses a format name given by the user", () => {
+    expect(parseFormatName("VOTable")).toBe("votable");
+    expect(() => parseFormatName("xls")).toThrow(PeculiarError);
+  });
+});
+
+describe("readTable and writeTable", () => {
+  it("round-trips CSV, TSV and Arrow (file and stream) through the disk", async () => {
+    for (const name of ["rt.csv", "rt.tsv", "rt.arrow", "rt.arrows"]) {
+      const path = join(dir, name);
+      await writeTable(sample(), path);
+      const back = await readTable(path);
+      expect(cells(back, "id")).toEqual(["g1", "g2", null]);
+      expect(cells(back, "cz")).toEqual([1200.5, null, 3e4]);
+      expect(columnMeta(back, "cz").unit).toBe("km/s");
+      expect(cells(back, "valid")).toEqual([true, true, true]);
+      const src = JSON.parse(back.schema.metadata.get(META.source)!);
+      expect(src.file).toBe(path);
+    }
+  });
+
+  it("keeps Arrow schema metadata, field metadata and our bookkeeping columns", async () => {
+    const path = join(dir, "keep.arrow");
+    const first = await readTable(join(dir, "rt.csv"));
+    await writeTable(first, path);
+    const back = await readTable(path);
+    expect(cells(back, "source_row")).toEqual(cells(first, "source_row"));
+    const src = JSON.parse(back.schema.metadata.get(META.source)!);
+    expect(src).toMatchObject({ file: path, format: "arrow", rows: 3, invalid: 0, previous: { file: join(dir, "rt.csv"), format: "csv" } });
+    const arrowFirst = sample();
+    await writeTable(arrowFirst, join(dir, "meta.arrow"));
+    const m = await readTable(join(dir, "meta.arrow"));
+    expect(JSON.parse(m.schema.metadata.get(META.settings)!)).toEqual({ step: "velocities", H0: 70 });
+    expect(columnMeta(m, "cz").ucd).toBe("spect.dopplerVeloc.opt");
+  });
+
+  it("reads an Arrow stream written by apache-arrow under a file extension", async () => {
+    const path = join(dir, "stream.arrow");
+    writeFileSync(path, tableToIPC(sample(), "stream"));
+    expect(cells(await readTable(path), "n")).toEqual([1, 2, 3]);
+  });
+
+  it("writes the values of a sliced table, not those before the slice", async () => {
+    const path = join(dir, "slice.csv");
+    await writeTable(sample().slice(1), path);
+    const back = await readTable(path);
+    expect(cells(back, "n")).toEqual([2, 3]);
+    expect(Array.from(float64Column(sample().slice(2), "cz"))).toEqual([3e4]);
+  });
+
+  it("honours an explicit format over the extension", async () => {
+    const path = join(dir, "odd.dat");
+    await writeTable(sample(), path, { format: "csv" });
+    expect(readFileSync(path, "utf8").split("\n")[1]).toBe("id,cz,n");
+    expect((await readTable(path, { format: "csv" })).numRows).toBe(3);
+  });
+});
+
+describe("bad files", () => {
+  it("fails on a missing file naming it", async () => {
+    await expect(readTable(join(dir, "nope.csv"))).rejects.toThrow(`${join(dir, "nope.csv")}: no such file`);
+  });
+
+  it("fails on an empty file naming it", async () => {
+    const path = join(dir, "empty.csv");
+    writeFileSync(path, "");
+    await expect(readTable(path)).rejects.toThrow(`${path}: empty file`);
+    writeFileSync(join(dir, "blank.csv"), "\n \n");
+    await expect(readTable(join(dir, "blank.csv"))).rejects.toThrow("empty file");
+  });
+
+  it("fails on a folder", async () => {
+    await expect(readTable(dir, { format: "csv" })).rejects.toThrow("is a folder");
+  });
+
+  it("fails on an unknown format before reading", async () => {
+    const path = join(dir, "x.xlsx");
+    writeFileSync(path, "a,b\n");
+    await expect(readTable(path)).rejects.toThrow("unknown file format");
+  });
+
+  it("fails on bytes that are not Arrow", async () => {
+    const path = join(dir, "bad.arrow");
+    writeFileSync(path, "id,cz\n1,2\n");
+    await expect(readTable(path)).rejects.toThrow(`${path}: not`);
+  });
+});
+
+describe("atomic writes", () => {
+  it("leaves no file behind when the folder does not exist", async () => {
+    const path = join(dir, "missing-folder", "out.csv");
+    await expect(writeTable(sample(), path)).rejects.toThrow(`${path}: cannot write: folder does not exist`);
+    expect(existsSync(join(dir, "missing-folder"))).toBe(false);
+  });
+
+  it("leaves no file and no temporary behind when the format is unknown", async () => {
+    const sub = join(dir, "sub-unknown");
+    rmSync(sub, { recursive: true, force: true });
+    await import("node:fs").then((fs) => fs.mkdirSync(sub));
+    await expect(writeTable(sample(), join(sub, "out.xlsx"))).rejects.toThrow("unknown file format");
+    expect(readdirSync(sub)).toEqual([]);
+  });
+
+  it("replaces an existing output in one step and leaves no temporary file", async () => {
+    const sub = join(dir, "sub-replace");
+    await import("node:fs").then((fs) => fs.mkdirSync(sub));
+    const path = join(sub, "out.csv");
+    writeFileSync(path, "old\n");
+    await writeTable(sample(), path);
+    expect(readdirSync(sub)).toEqual(["out.csv"]);
+    expect(readFileSync(path, "utf8")).toContain("g1");
+  });
+
+  it("refuses to write over the input, also through a link", () => {
+    const input = join(dir, "rt.csv");
+    expect(() => assertNotSameFile(input, input)).toThrow("output is the input file");
+    expect(() => assertNotSameFile(input, join(dir, ".", "rt.csv"))).toThrow(PeculiarError);
+    const link = join(dir, "link.csv");
+    symlinkSync(input, link);
+    expect(() => assertNotSameFile(input, link)).toThrow("output is the input file");
+    expect(() => assertNotSameFile(input, join(dir, "other.csv"))).not.toThrow();
+  });
+});
