@@ -101,6 +101,23 @@ export type DistanceKind = "comoving" | "luminosity" | "angular";
 
 const Z_MAX = 20;
 
+/** The distance of `kind` at redshift z. */
+export function distanceOfKindMpc(z: number, kind: DistanceKind, c: Cosmology): number {
+  const dc = comovingDistanceMpc(z, c);
+  return kind === "comoving" ? dc : kind === "luminosity" ? (1 + z) * dc : dc / (1 + z);
+}
+
+/**
+ * dD/dz of the distance of `kind`: dD_C/dz = c/(H0 E(z)), dD_L/dz = D_C + (1+z) dD_C/dz,
+ * dD_A/dz = dD_C/dz/(1+z) - D_C/(1+z)^2 (Hogg 1999 definitions, differentiated).
+ */
+export function distanceDerivativeMpc(z: number, kind: DistanceKind, c: Cosmology): number {
+  const dcdz = hubbleDistanceMpc(c) / efunc(z, c);
+  if (kind === "comoving") return dcdz;
+  const dc = comovingDistanceMpc(z, c);
+  return kind === "luminosity" ? dc + (1 + z) * dcdz : dcdz / (1 + z) - dc / ((1 + z) * (1 + z));
+}
+
 /**
  * The cosmological redshift at which the distance of `kind` equals dMpc. NaN for d < 0 or
  * beyond z = 20 (and for angular distances past their maximum, where the inverse is not unique).
@@ -109,16 +126,8 @@ export function redshiftAtDistance(dMpc: number, kind: DistanceKind, c: Cosmolog
   if (!(dMpc >= 0)) return NaN;
   if (dMpc === 0) return 0;
   const dh = hubbleDistanceMpc(c);
-  const f = (z: number) => {
-    const dc = comovingDistanceMpc(z, c);
-    return kind === "comoving" ? dc : kind === "luminosity" ? (1 + z) * dc : dc / (1 + z);
-  };
-  const df = (z: number) => {
-    const dcdz = dh / efunc(z, c);
-    if (kind === "comoving") return dcdz;
-    const dc = comovingDistanceMpc(z, c);
-    return kind === "luminosity" ? dc + (1 + z) * dcdz : dcdz / (1 + z) - dc / ((1 + z) * (1 + z));
-  };
+  const f = (z: number) => distanceOfKindMpc(z, kind, c);
+  const df = (z: number) => distanceDerivativeMpc(z, kind, c);
   let lo = 0;
   // D_A rises to a maximum and falls again: invert on the rising branch only (the low-z root).
   let hi = kind === "angular" ? angularMaximumRedshift(df) : Z_MAX;

@@ -1,3 +1,5 @@
 export * from "./constants.js";
 export * from "./distances.js";
 export * from "./restframes.js";
+export * from "./distance-indicators.js";
+export * from "./estimators.js";
