@@ -5,3 +5,4 @@ export * from "./catalogue/index.js";
 export * from "./crossmatch/index.js";
 export * from "./cosmology/index.js";
 export * from "./flow/index.js";
+export * from "./pipeline/index.js";

@@ -7,7 +7,7 @@
 import * as d3 from "d3";
 import { geoHammer } from "d3-geo-projection";
 import { convertPosition } from "../sky/frames.js";
-import { axes, emptyNote, esc, finiteExtent, px, svgClose, svgOpen, text } from "./svg.js";
+import { axes, emptyNote, finiteExtent, px, svgClose, svgOpen, text } from "./svg.js";
 
 /** Above this many points error bars are left out (they would only blacken the panel). */
 const MAX_POINTS_WITH_ERROR_BARS = 300;
@@ -250,8 +250,7 @@ function wrapLon(lDeg: number): number {
   return lDeg > 180 ? lDeg - 360 : lDeg;
 }
 
-export function fmt(x: number | undefined, digits: number): string {
+function fmt(x: number | undefined, digits: number): string {
   return x === undefined || !Number.isFinite(x) ? "n/a" : x.toFixed(digits);
 }
 
-export { esc };
