@@ -3,3 +3,4 @@ export * from "./distances.js";
 export * from "./restframes.js";
 export * from "./distance-indicators.js";
 export * from "./estimators.js";
+export * from "./zeropoint.js";

@@ -1,0 +1,204 @@
+/**
+ * Zero points of distance catalogues and the combination of their distance moduli.
+ *
+ * Offset of catalogue B against a reference A from the galaxies both measured (mu finite in both,
+ * errors finite and positive): d_i = mu_B,i - mu_A,i with sigma_i^2 = sigma_A,i^2 + sigma_B,i^2,
+ *   offset = sum(w d)/sum(w), w = 1/sigma^2, its error 1/sqrt(sum w) (formal), chi2/dof of the d_i
+ *   about the offset, the weighted scatter, and the median of d (weighted least squares; common
+ *   practice). Robust check: iterative kappa-sigma clipping of the normalised residuals
+ *   (d_i - offset)/sigma_i, refitting until no point is rejected (kappa = 3 by default).
+ * Applying the offset puts B on A's scale: mu_B' = mu_B - offset. The offset's own error is
+ * common to every galaxy of B (a correlated systematic): it is reported, not added per galaxy.
+ *
+ * Combination per galaxy: inverse-variance weighted mean of the available moduli,
+ *   mu = sum(w mu)/sum(w), sigma_mu = 1/sqrt(sum w), n_dist = number used,
+ *   chi2 = sum(w (mu_k - mu)^2) (n_dist - 1 degrees of freedom; NaN for one measurement).
+ * A modulus without a usable error is used only when no modulus of that galaxy has one (then the
+ * plain mean, with NaN error).
+ */
+
+export interface ZeroPointOptions {
+  /** Clipping threshold on |residual|/sigma. */
+  kappa?: number;
+  maxIterations?: number;
+}
+
+export interface ZeroPointOffset {
+  /** Weighted mean of mu_B - mu_A over the shared galaxies (mag); NaN if none shared. */
+  offsetMag: number;
+  offsetErrMag: number;
+  nShared: number;
+  /** chi^2 per degree of freedom of the differences about the offset (NaN for n < 2). */
+  chi2Dof: number;
+  /** Weighted standard deviation of the differences (mag). */
+  scatterMag: number;
+  medianMag: number;
+  /** The kappa-sigma clipped weighted mean, its error and how many were rejected. */
+  clippedOffsetMag: number;
+  clippedOffsetErrMag: number;
+  nRejected: number;
+  kappa: number;
+  /** Row indices of the shared galaxies (Int32Array) and 1 where clipping rejected them. */
+  shared: Int32Array;
+  rejected: Uint8Array;
+}
+
+function usable(mu: number, err: number): boolean {
+  return Number.isFinite(mu) && Number.isFinite(err) && err > 0;
+}
+
+function weightedMean(d: Float64Array, w: Float64Array, keep: Uint8Array): [number, number, number] {
+  let sw = 0;
+  let swd = 0;
+  let n = 0;
+  for (let i = 0; i < d.length; i++) {
+    if (!keep[i]) continue;
+    sw += w[i]!;
+    swd += w[i]! * d[i]!;
+    n++;
+  }
+  return n === 0 ? [NaN, NaN, 0] : [swd / sw, 1 / Math.sqrt(sw), n];
+}
+
+function median(xs: Float64Array): number {
+  if (xs.length === 0) return NaN;
+  const s = Float64Array.from(xs).sort();
+  const m = s.length >> 1;
+  return s.length % 2 ? s[m]! : (s[m - 1]! + s[m]!) / 2;
+}
+
+/** The zero-point offset of B relative to A (mu_B - mu_A) from the rows both measured. */
+export function zeroPointOffset(
+  muA: ArrayLike<number>,
+  errA: ArrayLike<number>,
+  muB: ArrayLike<number>,
+  errB: ArrayLike<number>,
+  options: ZeroPointOptions = {},
+): ZeroPointOffset {
+  const kappa = options.kappa ?? 3;
+  const maxIterations = options.maxIterations ?? 20;
+  const n = muA.length;
+  const rows: number[] = [];
+  for (let i = 0; i < n; i++) if (usable(muA[i]!, errA[i]!) && usable(muB[i]!, errB[i]!)) rows.push(i);
+  const m = rows.length;
+  const shared = Int32Array.from(rows);
+  const d = new Float64Array(m);
+  const w = new Float64Array(m);
+  for (let k = 0; k < m; k++) {
+    const i = rows[k]!;
+    d[k] = muB[i]! - muA[i]!;
+    w[k] = 1 / (errA[i]! ** 2 + errB[i]! ** 2);
+  }
+  const all = new Uint8Array(m).fill(1);
+  const [off, offErr] = weightedMean(d, w, all);
+  let chi2 = 0;
+  let sw = 0;
+  for (let k = 0; k < m; k++) {
+    chi2 += w[k]! * (d[k]! - off) ** 2;
+    sw += w[k]!;
+  }
+  // Clipping: reject |d - offset|/sigma > kappa, refit, until stable.
+  const keep = new Uint8Array(m).fill(1);
+  let [cOff, cErr] = [off, offErr];
+  for (let it = 0; it < maxIterations && m > 0; it++) {
+    let changed = false;
+    for (let k = 0; k < m; k++) {
+      const out = Math.abs(d[k]! - cOff) * Math.sqrt(w[k]!) > kappa;
+      if (keep[k] && out) {
+        keep[k] = 0;
+        changed = true;
+      } else if (!keep[k] && !out) {
+        keep[k] = 1;
+        changed = true;
+      }
+    }
+    if (!changed) break;
+    const r = weightedMean(d, w, keep);
+    if (r[2] === 0) break;
+    [cOff, cErr] = r;
+  }
+  const rejected = new Uint8Array(m);
+  let nRejected = 0;
+  for (let k = 0; k < m; k++) if (!keep[k]) {
+    rejected[k] = 1;
+    nRejected++;
+  }
+  return {
+    offsetMag: off,
+    offsetErrMag: offErr,
+    nShared: m,
+    chi2Dof: m > 1 ? chi2 / (m - 1) : NaN,
+    scatterMag: m > 1 ? Math.sqrt(((chi2 / sw) * m) / (m - 1)) : NaN,
+    medianMag: median(d),
+    clippedOffsetMag: cOff,
+    clippedOffsetErrMag: cErr,
+    nRejected,
+    kappa,
+    shared,
+    rejected,
+  };
+}
+
+export interface CombinedModuli {
+  muMag: Float64Array;
+  muErrMag: Float64Array;
+  /** Number of moduli combined (0: none, mu NaN). */
+  nDist: Int32Array;
+  /** chi^2 of the moduli about the combined value (n_dist - 1 d.o.f.; NaN below 2). */
+  chi2: Float64Array;
+}
+
+/**
+ * Combines k modulus columns row by row. offsetsMag[k] is subtracted from column k first (0 or
+ * NaN: none). errs[k] may be undefined (no error column).
+ */
+export function combineModuli(mus: ArrayLike<number>[], errs: (ArrayLike<number> | undefined)[], offsetsMag?: number[]): CombinedModuli {
+  const n = mus[0]?.length ?? 0;
+  const out: CombinedModuli = { muMag: new Float64Array(n), muErrMag: new Float64Array(n), nDist: new Int32Array(n), chi2: new Float64Array(n) };
+  const k = mus.length;
+  const val = new Float64Array(k);
+  const wt = new Float64Array(k);
+  for (let i = 0; i < n; i++) {
+    let nErr = 0;
+    let nAny = 0;
+    for (let j = 0; j < k; j++) {
+      const o = offsetsMag?.[j];
+      const m = mus[j]![i]! - (o !== undefined && Number.isFinite(o) ? o : 0);
+      const e = errs[j] ? errs[j]![i]! : NaN;
+      val[j] = m;
+      wt[j] = Number.isFinite(m) ? (usable(m, e) ? 1 / (e * e) : 0) : -1;
+      if (wt[j]! > 0) nErr++;
+      if (wt[j]! >= 0) nAny++;
+    }
+    let sw = 0;
+    let swm = 0;
+    let used = 0;
+    if (nErr > 0) {
+      for (let j = 0; j < k; j++) if (wt[j]! > 0) {
+        sw += wt[j]!;
+        swm += wt[j]! * val[j]!;
+        used++;
+      }
+      const mu = swm / sw;
+      let chi2 = 0;
+      for (let j = 0; j < k; j++) if (wt[j]! > 0) chi2 += wt[j]! * (val[j]! - mu) ** 2;
+      out.muMag[i] = mu;
+      out.muErrMag[i] = 1 / Math.sqrt(sw);
+      out.chi2[i] = used > 1 ? chi2 : NaN;
+    } else if (nAny > 0) {
+      for (let j = 0; j < k; j++) if (wt[j] === 0) {
+        swm += val[j]!;
+        used++;
+      }
+      out.muMag[i] = swm / used;
+      out.muErrMag[i] = NaN;
+      out.chi2[i] = NaN;
+    } else {
+      out.muMag[i] = NaN;
+      out.muErrMag[i] = NaN;
+      out.chi2[i] = NaN;
+    }
+    out.nDist[i] = used;
+  }
+  return out;
+}
