@@ -52,6 +52,9 @@ export interface PeculiarVelocities {
   /** The estimator at the far and near 1-sigma distance bounds. */
   vPecLoKmS: Float64Array;
   vPecHiKmS: Float64Array;
+  /** The 1-sigma distance bounds as luminosity distances (D_L at z_cos of each bound). */
+  distLLoMpc: Float64Array;
+  distLHiMpc: Float64Array;
 }
 
 /** The Watkins & Feldman 2015 modified redshift and its derivative dz_mod/dz. */
@@ -70,12 +73,12 @@ function velocity(estimator: Estimator, zObs: number, zCos: number, dC: number, 
   return czm * Math.log(czm / (c.h0 * dL));
 }
 
-/** v at one distance of `kind` (for the bounds). */
-function velocityAtDistance(estimator: Estimator, zObs: number, d: number, kind: DistanceKind, c: Cosmology): number {
+/** [v, D_L] at one distance of `kind` (for the bounds). */
+function velocityAtDistance(estimator: Estimator, zObs: number, d: number, kind: DistanceKind, c: Cosmology): [number, number] {
   const zc = redshiftAtDistance(d, kind, c);
-  if (!Number.isFinite(zc)) return NaN;
+  if (!Number.isFinite(zc)) return [NaN, NaN];
   const dC = comovingDistanceMpc(zc, c);
-  return velocity(estimator, zObs, zc, dC, (1 + zc) * dC, c);
+  return [velocity(estimator, zObs, zc, dC, (1 + zc) * dC, c), (1 + zc) * dC];
 }
 
 /**
@@ -100,6 +103,8 @@ export function peculiarVelocities(
     vPecErrKmS: new Float64Array(n),
     vPecLoKmS: new Float64Array(n),
     vPecHiKmS: new Float64Array(n),
+    distLLoMpc: new Float64Array(n),
+    distLHiMpc: new Float64Array(n),
   };
   const dh = hubbleDistanceMpc(c);
   for (let i = 0; i < n; i++) {
@@ -134,8 +139,12 @@ export function peculiarVelocities(
       sv = Math.hypot((czm * sDL) / dL, C_KMS * (Math.log(czm / (c.h0 * dL)) + 1) * dzm * sz);
     }
     out.vPecErrKmS[i] = Number.isFinite(v) ? sv : NaN;
-    out.vPecLoKmS[i] = Number.isFinite(v) ? velocityAtDistance(estimator, z, dist.distHiMpc[i]!, dist.kind, c) : NaN;
-    out.vPecHiKmS[i] = Number.isFinite(v) ? velocityAtDistance(estimator, z, dist.distLoMpc[i]!, dist.kind, c) : NaN;
+    const [vFar, dFar] = velocityAtDistance(estimator, z, dist.distHiMpc[i]!, dist.kind, c);
+    const [vNear, dNear] = velocityAtDistance(estimator, z, dist.distLoMpc[i]!, dist.kind, c);
+    out.vPecLoKmS[i] = Number.isFinite(v) ? vFar : NaN;
+    out.vPecHiKmS[i] = Number.isFinite(v) ? vNear : NaN;
+    out.distLLoMpc[i] = dNear;
+    out.distLHiMpc[i] = dFar;
   }
   return out;
 }

@@ -74,6 +74,9 @@ describe("the worked case mu = 35, cz_CMB = 7000 km/s, H0 = 70, Omega_m = 0.3", 
     expect(r.vPecHiKmS[0]).toBeCloseTo(near, 9);
     const v = r.vPecKmS[0]!;
     expect(v - r.vPecLoKmS[0]!).not.toBeCloseTo(r.vPecHiKmS[0]! - v, 0);
+    // The luminosity-distance bounds of mu +- sigma are 10^((mu -+ sigma - 25)/5) (Hogg 1999 eq. 25).
+    expect(r.distLLoMpc[0]).toBeCloseTo(Math.pow(10, (34.6 - 25) / 5), 8);
+    expect(r.distLHiMpc[0]).toBeCloseTo(Math.pow(10, (35.4 - 25) / 5), 8);
   });
 });
 
