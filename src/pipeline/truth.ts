@@ -31,6 +31,7 @@ export interface Truth {
     sigmaKmS: number;
     /** Galaxies of the redshift survey that belong to it. */
     members: number;
+    [k: string]: unknown;
   };
   /** Zero-point offsets injected into distance catalogues, mag, relative to `relativeTo`. */
   zeroPoints: { alias: string; relativeTo: string; offsetMag: number }[];
