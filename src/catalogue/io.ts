@@ -10,11 +10,13 @@ import { PeculiarError } from "../errors.js";
 import { writeFileAtomic } from "./atomic.js";
 import { arrowFromTable, parseArrowColumns } from "./formats/arrow.js";
 import { csvFromTable, parseCsvColumns } from "./formats/csv.js";
+import { fitsFromTable, parseFitsColumns } from "./formats/fits.js";
 import { finishTable, type ParsedColumns, type SourceInfo } from "./formats/table.js";
 
 export { assertNotSameFile, writeFileAtomic } from "./atomic.js";
 export { parseCsv, csvFromTable, NULL_TOKENS } from "./formats/csv.js";
 export { parseArrow, arrowFromTable } from "./formats/arrow.js";
+export { parseFits, fitsFromTable } from "./formats/fits.js";
 
 export type FormatName = "csv" | "tsv" | "votable" | "fits" | "arrow";
 export const FORMAT_NAMES: readonly FormatName[] = ["csv", "tsv", "votable", "fits", "arrow"];
@@ -90,7 +92,7 @@ async function readBytes(path: string): Promise<Uint8Array> {
 export function parseTable(bytes: Uint8Array, format: FormatName, options: { file: string; hdu?: number | string; delimiter?: string }): Table {
   const file = options.file;
   let parsed: ParsedColumns;
-  const info: SourceInfo = { file, format };
+  let info: SourceInfo = { file, format };
   switch (format) {
     case "csv":
     case "tsv": {
@@ -102,6 +104,12 @@ export function parseTable(bytes: Uint8Array, format: FormatName, options: { fil
     case "arrow":
       parsed = parseArrowColumns(bytes, { file });
       break;
+    case "fits": {
+      const o: { file: string; hdu?: number | string } = { file };
+      if (options.hdu !== undefined) o.hdu = options.hdu;
+      ({ parsed, info } = parseFitsColumns(bytes, o));
+      break;
+    }
     default:
       throw new PeculiarError("format", `reading ${format} is not available yet`, { file });
   }
@@ -126,6 +134,8 @@ export function encodeTable(table: Table, format: FormatName, options: { stream?
       return csvFromTable(table, { delimiter: "\t" });
     case "arrow":
       return arrowFromTable(table, { stream: options.stream ?? false });
+    case "fits":
+      return fitsFromTable(table);
     default:
       throw new PeculiarError("format", `writing ${format} is not available yet`);
   }

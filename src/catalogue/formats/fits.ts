@@ -1,0 +1,531 @@
+/**
+ * FITS binary tables (FITS Standard 4.0 §7.3). Reading: walks the HDUs (2880-byte blocks), takes
+ * the first BINTABLE (or the one chosen by number or EXTNAME) and decodes big-endian columns.
+ * Decisions (also in DEVELOPERS.md, "Catalogue formats"):
+ * - TFORM L, X, B, I, J, K, E, D, A. A repeat count r > 1 on a numeric, logical or bit field gives
+ *   r columns `name_0` .. `name_{r-1}` (bits: one bool column per bit, bit 0 = most significant
+ *   bit of the first byte, FITS 4.0 §7.3.3.1); `rA` is one string of up to r bytes (UTF-8 read,
+ *   cut at the first NUL, trailing spaces dropped; empty -> null). C, M, P, Q fields are left out
+ *   and listed in peculiar.source `skipped`.
+ * - TZEROn/TSCALn: TSCAL 1 with TZERO -128 (B), 32768 (I), 2147483648 (J) or
+ *   9223372036854775808 (K) gives int8, uint16, uint32, uint64; any other scaling gives float64.
+ *   TNULLn is compared with the stored integer; NaN floats are null; logical 0 bytes are null.
+ * - Field metadata: unit from TUNITn, description from the comment of TTYPEn.
+ * Writing: an empty primary HDU and one BINTABLE (EXTNAME 'CATALOGUE'): TTYPE/TFORM/TUNIT, TNULL for
+ * integer columns with nulls (a stored value the column does not use), TZERO for unsigned and int8,
+ * strings as rA (r = longest value in bytes), bools as L, NaN for null floats. Schema metadata
+ * entries are written as PMETAn (key) / PMVALn (value, long-string convention; PMENCn = 'base64'
+ * when not printable ASCII), and each peculiar.settings entry also as a keyword of its own.
+ */
+import type { Table } from "apache-arrow";
+import { columnsOf, type ColumnData, type ColumnKind, type ColumnMeta } from "../columns.js";
+import { META } from "../meta.js";
+import { PeculiarError } from "../../errors.js";
+import { finishTable, type ParsedColumns, type SourceInfo } from "./table.js";
+import { BLOCK, card, headerBytes, longStringCards, num, parseHeader, str, valueCard, type Card, type Header } from "./fits-header.js";
+
+export interface FitsReadOptions {
+  file: string;
+  /** HDU number (0 = primary) or EXTNAME (case-insensitive). Default: the first BINTABLE. */
+  hdu?: number | string;
+}
+
+interface Hdu {
+  index: number;
+  header: Header;
+  dataStart: number;
+  dataBytes: number;
+  kind: string; // "primary", "BINTABLE", "IMAGE", "TABLE", ...
+  extname?: string;
+}
+
+/** The size of an HDU's data in bytes (FITS 4.0 eq. 2 and §7.3.1 with the heap). */
+function dataSize(h: Header, primary: boolean): number {
+  const naxis = num(h, "NAXIS", 0)!;
+  if (naxis === 0) return 0;
+  const bitpix = Math.abs(num(h, "BITPIX", 8)!);
+  const groups = primary && card(h, "GROUPS")?.value === true && num(h, "NAXIS1") === 0;
+  let prod = 1;
+  for (let k = groups ? 2 : 1; k <= naxis; k++) prod *= num(h, `NAXIS${k}`, 0)!;
+  const pcount = num(h, "PCOUNT", 0)!;
+  const gcount = num(h, "GCOUNT", 1)!;
+  return (bitpix / 8) * gcount * (pcount + prod);
+}
+
+function walk(bytes: Uint8Array, file: string, stopAt: (h: Hdu) => boolean): { hdus: Hdu[]; found?: Hdu } {
+  const hdus: Hdu[] = [];
+  let offset = 0;
+  for (let index = 0; offset < bytes.length; index++) {
+    if (index > 0) {
+      // Only a header that starts with XTENSION is another HDU; anything else is trailing bytes.
+      const key = String.fromCharCode(...bytes.subarray(offset, offset + 8));
+      if (key !== "XTENSION" || bytes.length - offset < 80) break;
+    }
+    if (index === 0 && !/^SIMPLE  = {20}T/.test(String.fromCharCode(...bytes.subarray(0, 30)))) {
+      throw new PeculiarError("format", "not a FITS file (the first card is not SIMPLE = T)", { file });
+    }
+    const header = parseHeader(bytes, offset, file, index);
+    const dataBytes = dataSize(header, index === 0);
+    const kind = index === 0 ? "primary" : (str(header, "XTENSION") ?? "?").trim();
+    const hdu: Hdu = { index, header, dataStart: header.end, dataBytes, kind };
+    const extname = str(header, "EXTNAME");
+    if (extname !== undefined) hdu.extname = extname.trim();
+    hdus.push(hdu);
+    const available = bytes.length - header.end;
+    if (dataBytes > available) {
+      throw new PeculiarError("format", `truncated: header says ${dataBytes} bytes of data, file has ${Math.max(0, available)}${index > 0 ? ` (HDU ${index})` : ""}`, { file });
+    }
+    if (stopAt(hdu)) return { hdus, found: hdu };
+    offset = header.end + Math.ceil(dataBytes / BLOCK) * BLOCK;
+  }
+  return { hdus };
+}
+
+function describe(h: Hdu): string {
+  return `${h.index} ${h.kind}${h.extname ? ` '${h.extname}'` : ""}`;
+}
+
+interface FieldForm {
+  repeat: number;
+  code: string;
+  width: number;
+}
+
+const CODE_BYTES: Record<string, number> = { L: 1, B: 1, I: 2, J: 4, K: 8, A: 1, E: 4, D: 8, C: 8, M: 16, P: 8, Q: 16 };
+
+function parseTform(tform: string, file: string, n: number): FieldForm {
+  const m = /^\s*(\d*)\s*([LXBIJKAEDCMPQ])/.exec(tform.toUpperCase());
+  if (!m) throw new PeculiarError("format", `TFORM${n} '${tform}' is not a FITS binary table format`, { file });
+  const repeat = m[1] === "" ? 1 : Number(m[1]);
+  const code = m[2]!;
+  const width = code === "X" ? Math.ceil(repeat / 8) : code === "P" || code === "Q" ? CODE_BYTES[code]! * Math.min(repeat, 1) : CODE_BYTES[code]! * repeat;
+  return { repeat, code, width };
+}
+
+const TWO63 = 9223372036854775808n;
+
+export function parseFitsColumns(bytes: Uint8Array, options: FitsReadOptions): { parsed: ParsedColumns; info: SourceInfo } {
+  const file = options.file;
+  const want = options.hdu;
+  const match = (h: Hdu) =>
+    want === undefined ? h.kind === "BINTABLE" : typeof want === "number" ? h.index === want : (h.extname ?? "").toUpperCase() === want.trim().toUpperCase();
+  const { hdus, found } = walk(bytes, file, match);
+  if (!found) {
+    const list = hdus.map(describe).join(", ");
+    if (want === undefined) throw new PeculiarError("format", `no BINTABLE extension (HDUs: ${list})`, { file });
+    throw new PeculiarError("format", `no HDU ${typeof want === "number" ? want : `named '${want}'`} (HDUs: ${list})`, { file });
+  }
+  if (found.kind !== "BINTABLE") {
+    throw new PeculiarError("format", `HDU ${describe(found)} is not a BINTABLE`, { file });
+  }
+  const h = found.header;
+  const rowBytes = num(h, "NAXIS1", 0)!;
+  const rows = num(h, "NAXIS2", 0)!;
+  const tfields = num(h, "TFIELDS", 0)!;
+  const view = new DataView(bytes.buffer, bytes.byteOffset + found.dataStart, Math.min(found.dataBytes, bytes.length - found.dataStart));
+  const u8 = new Uint8Array(bytes.buffer, bytes.byteOffset + found.dataStart, view.byteLength);
+
+  const columns: ColumnData[] = [];
+  const skipped: string[] = [];
+  const names = new Set<string>();
+  const freshName = (base: string) => {
+    let nm = base;
+    for (let k = 2; names.has(nm); k++) nm = `${base}_${k}`;
+    names.add(nm);
+    return nm;
+  };
+  const forms: FieldForm[] = [];
+  let offset = 0;
+  for (let n = 1; n <= tfields; n++) {
+    const tformCard = card(h, `TFORM${n}`);
+    if (!tformCard || typeof tformCard.value !== "string") throw new PeculiarError("format", `BINTABLE HDU ${found.index} has no TFORM${n}`, { file });
+    const form = parseTform(tformCard.value, file, n);
+    forms.push(form);
+    offset += form.width;
+  }
+  if (offset > rowBytes) throw new PeculiarError("format", `TFORMs need ${offset} bytes per row, NAXIS1 says ${rowBytes}`, { file });
+  if (rowBytes * rows > view.byteLength) throw new PeculiarError("format", `truncated: header says ${rowBytes * rows} bytes of data, file has ${view.byteLength}`, { file });
+  offset = 0;
+  for (let n = 1; n <= tfields; n++) {
+    const tformCard = card(h, `TFORM${n}`)!;
+    const form = forms[n - 1]!;
+    const ttype = card(h, `TTYPE${n}`);
+    const base = typeof ttype?.value === "string" && ttype.value.trim() !== "" ? ttype.value.trim() : `col${n}`;
+    const meta: ColumnMeta = {};
+    const unit = str(h, `TUNIT${n}`)?.trim();
+    if (unit) meta.unit = unit;
+    if (ttype?.comment) meta.description = ttype.comment;
+    const start = offset;
+    offset += form.width;
+    if (form.repeat === 0) continue;
+    if ("CMPQ".includes(form.code)) {
+      skipped.push(`${base}: TFORM '${String(tformCard.value).trim()}' (${form.code === "C" || form.code === "M" ? "complex" : "variable-length array"}) is not read`);
+      continue;
+    }
+    if (form.code === "A") {
+      columns.push(readString(u8, rows, rowBytes, start, form.repeat, freshName(base), meta));
+      continue;
+    }
+    const tnullCard = card(h, `TNULL${n}`);
+    const scale = { zero: card(h, `TZERO${n}`), scal: card(h, `TSCAL${n}`) };
+    const count = form.repeat;
+    for (let e = 0; e < count; e++) {
+      const name = freshName(count > 1 ? `${base}_${e}` : base);
+      const c =
+        form.code === "X"
+          ? readBit(u8, rows, rowBytes, start, e, name)
+          : readNumeric(view, u8, rows, rowBytes, start + e * CODE_BYTES[form.code]!, form.code, name, tnullCard?.raw, scale.zero?.raw, scale.scal?.value);
+      if (Object.keys(meta).length > 0) c.meta = meta;
+      columns.push(c);
+    }
+  }
+
+  // Schema metadata written by us: PMETAn / PMVALn (/ PMENCn).
+  const metadata = new Map<string, string>();
+  for (const c of h.cards) {
+    const m = /^PMETA(\d+)$/.exec(c.key);
+    if (!m || typeof c.value !== "string") continue;
+    const v = card(h, `PMVAL${m[1]}`);
+    if (!v) continue;
+    const text = typeof v.value === "string" ? v.value : v.raw;
+    metadata.set(c.value, str(h, `PMENC${m[1]}`)?.trim() === "base64" ? new TextDecoder().decode(base64ToBytes(text)) : text);
+  }
+
+  const sourceRows = new Int32Array(rows);
+  for (let i = 0; i < rows; i++) sourceRows[i] = i + 1;
+  const info: SourceInfo = { file, format: "fits", hdu: found.index };
+  if (found.extname !== undefined) info.extname = found.extname;
+  if (skipped.length > 0) info.skipped = skipped;
+  return { parsed: { columns, rows, reasons: new Array<string>(rows).fill(""), sourceRows, metadata }, info };
+}
+
+function readString(u8: Uint8Array, rows: number, rowBytes: number, start: number, width: number, name: string, meta: ColumnMeta): ColumnData {
+  const dec = new TextDecoder("utf-8");
+  const values = new Array<string>(rows);
+  const nulls = new Uint8Array(rows);
+  let any = false;
+  for (let i = 0; i < rows; i++) {
+    const p = i * rowBytes + start;
+    let end = p;
+    while (end < p + width && u8[end] !== 0) end++;
+    const s = dec.decode(u8.subarray(p, end)).replace(/ +$/, "");
+    values[i] = s;
+    if (s === "") {
+      nulls[i] = 1;
+      any = true;
+    }
+  }
+  const c: ColumnData = { name, kind: "utf8", values };
+  if (any) c.nulls = nulls;
+  if (Object.keys(meta).length > 0) c.meta = meta;
+  return c;
+}
+
+function readBit(u8: Uint8Array, rows: number, rowBytes: number, start: number, bit: number, name: string): ColumnData {
+  const v = new Uint8Array(rows);
+  const mask = 0x80 >> (bit & 7);
+  for (let i = 0; i < rows; i++) v[i] = u8[i * rowBytes + start + (bit >> 3)]! & mask ? 1 : 0;
+  return { name, kind: "bool", values: v };
+}
+
+function readNumeric(
+  view: DataView,
+  u8: Uint8Array,
+  rows: number,
+  rowBytes: number,
+  at: number,
+  code: string,
+  name: string,
+  tnullRaw: string | undefined,
+  zeroRaw: string | undefined,
+  scal: Card["value"] | undefined,
+): ColumnData {
+  const nulls = new Uint8Array(rows);
+  let any = false;
+  const setNull = (i: number) => {
+    nulls[i] = 1;
+    any = true;
+  };
+  const done = (kind: ColumnKind, values: ColumnData["values"]): ColumnData => {
+    const c: ColumnData = { name, kind, values };
+    if (any) c.nulls = nulls;
+    return c;
+  };
+  if (code === "L") {
+    const v = new Uint8Array(rows);
+    for (let i = 0; i < rows; i++) {
+      const b = u8[i * rowBytes + at]!;
+      if (b === 0x54 /* T */) v[i] = 1;
+      else if (b !== 0x46 /* F */) setNull(i);
+    }
+    return done("bool", v);
+  }
+  if (code === "E" || code === "D") {
+    const scaled = isScaled(zeroRaw, scal);
+    const zero = Number(zeroRaw ?? 0);
+    const s = typeof scal === "number" ? scal : 1;
+    const v = code === "E" && !scaled ? new Float32Array(rows) : new Float64Array(rows);
+    for (let i = 0; i < rows; i++) {
+      const p = i * rowBytes + at;
+      const x = code === "E" ? view.getFloat32(p, false) : view.getFloat64(p, false);
+      if (Number.isNaN(x)) setNull(i);
+      else v[i] = scaled ? zero + s * x : x;
+    }
+    return done(code === "E" && !scaled ? "float32" : "float64", v);
+  }
+  // Integers: B, I, J, K.
+  const tnull = tnullRaw !== undefined && /^[+-]?\d+$/.test(tnullRaw) ? BigInt(tnullRaw) : undefined;
+  const zeroBig = zeroRaw !== undefined && /^[+-]?\d+$/.test(zeroRaw) ? BigInt(zeroRaw) : zeroRaw === undefined ? 0n : undefined;
+  const unitScale = scal === undefined || scal === 1;
+  const offsetKind: Record<string, [bigint, ColumnKind, ColumnKind]> = {
+    B: [-128n, "int8", "uint8"],
+    I: [32768n, "uint16", "int16"],
+    J: [2147483648n, "uint32", "int32"],
+    K: [TWO63, "uint64", "int64"],
+  };
+  const [special, specialKind, plainKind] = offsetKind[code]!;
+  const get = (p: number): number =>
+    code === "B" ? view.getUint8(p) : code === "I" ? view.getInt16(p, false) : view.getInt32(p, false);
+  if (code === "K") {
+    const raw = (p: number) => view.getBigInt64(p, false);
+    if (unitScale && (zeroBig === 0n || zeroBig === special)) {
+      const unsigned = zeroBig === special;
+      const v = unsigned ? new BigUint64Array(rows) : new BigInt64Array(rows);
+      for (let i = 0; i < rows; i++) {
+        const x = raw(i * rowBytes + at);
+        if (tnull !== undefined && x === tnull) setNull(i);
+        else v[i] = unsigned ? BigInt.asUintN(64, x + TWO63) : x;
+      }
+      return done(unsigned ? specialKind : plainKind, v);
+    }
+    const zero = Number(zeroRaw ?? 0);
+    const s = typeof scal === "number" ? scal : 1;
+    const v = new Float64Array(rows);
+    for (let i = 0; i < rows; i++) {
+      const x = raw(i * rowBytes + at);
+      if (tnull !== undefined && x === tnull) setNull(i);
+      else v[i] = zero + s * Number(x);
+    }
+    return done("float64", v);
+  }
+  const tnullNum = tnull === undefined ? undefined : Number(tnull);
+  if (unitScale && (zeroBig === 0n || zeroBig === special)) {
+    const shifted = zeroBig === special;
+    const kind = shifted ? specialKind : plainKind;
+    const Arr = { int8: Int8Array, uint8: Uint8Array, int16: Int16Array, uint16: Uint16Array, int32: Int32Array, uint32: Uint32Array } as const;
+    const v = new Arr[kind as keyof typeof Arr](rows);
+    const z = Number(zeroBig);
+    for (let i = 0; i < rows; i++) {
+      const x = get(i * rowBytes + at);
+      if (tnullNum !== undefined && x === tnullNum) setNull(i);
+      else v[i] = shifted ? x + z : x;
+    }
+    return done(kind, v);
+  }
+  const zero = Number(zeroRaw ?? 0);
+  const s = typeof scal === "number" ? scal : 1;
+  const v = new Float64Array(rows);
+  for (let i = 0; i < rows; i++) {
+    const x = get(i * rowBytes + at);
+    if (tnullNum !== undefined && x === tnullNum) setNull(i);
+    else v[i] = zero + s * x;
+  }
+  return done("float64", v);
+}
+
+function isScaled(zeroRaw: string | undefined, scal: Card["value"] | undefined): boolean {
+  return (zeroRaw !== undefined && Number(zeroRaw) !== 0) || (scal !== undefined && scal !== 1);
+}
+
+export function parseFits(bytes: Uint8Array, options: FitsReadOptions): Table {
+  const { parsed, info } = parseFitsColumns(bytes, options);
+  return finishTable(parsed, info);
+}
+
+// ---- writing ----
+
+function base64ToBytes(s: string): Uint8Array {
+  const bin = atob(s.replace(/\s+/g, ""));
+  const out = new Uint8Array(bin.length);
+  for (let i = 0; i < bin.length; i++) out[i] = bin.charCodeAt(i);
+  return out;
+}
+function bytesToBase64(b: Uint8Array): string {
+  let s = "";
+  for (let i = 0; i < b.length; i++) s += String.fromCharCode(b[i]!);
+  return btoa(s);
+}
+
+interface Plan {
+  col: ColumnData;
+  tform: string;
+  width: number;
+  tnull?: bigint;
+  tzero?: bigint;
+  write: (view: DataView, u8: Uint8Array, p: number, i: number) => void;
+}
+
+/** Stored-integer ranges of B, I, J, K. */
+const RANGE: Record<string, [bigint, bigint]> = {
+  B: [0n, 255n],
+  I: [-32768n, 32767n],
+  J: [-2147483648n, 2147483647n],
+  K: [-TWO63, TWO63 - 1n],
+};
+
+/** The stored type for an integer kind, its TZERO, and the next wider choice when no TNULL is free. */
+const INT_PLAN: Partial<Record<ColumnKind, { code: string; zero: bigint; wider?: ColumnKind }>> = {
+  int8: { code: "B", zero: -128n, wider: "int16" },
+  uint8: { code: "B", zero: 0n, wider: "int16" },
+  int16: { code: "I", zero: 0n, wider: "int32" },
+  uint16: { code: "I", zero: 32768n, wider: "int32" },
+  int32: { code: "J", zero: 0n, wider: "int64" },
+  uint32: { code: "J", zero: 2147483648n, wider: "int64" },
+  int64: { code: "K", zero: 0n },
+  uint64: { code: "K", zero: TWO63 },
+};
+
+function planInteger(col: ColumnData, kind: ColumnKind, file: string | undefined): Plan {
+  const p = INT_PLAN[kind]!;
+  const n = col.values.length;
+  const src = col.values as ArrayLike<number | bigint>;
+  const stored = (i: number): bigint => BigInt(src[i]!) - p.zero;
+  let tnull: bigint | undefined;
+  if (col.nulls?.some((x) => x === 1)) {
+    const [lo, hi] = RANGE[p.code]!;
+    const used = new Set<bigint>();
+    for (let i = 0; i < n; i++) if (!col.nulls[i]) used.add(stored(i));
+    const first = p.code === "B" ? hi : lo;
+    if (!used.has(first)) tnull = first;
+    else {
+      for (let c = lo; c <= hi && tnull === undefined; c++) if (!used.has(c)) tnull = c;
+    }
+    if (tnull === undefined) {
+      if (!p.wider) throw new PeculiarError("input", "no free integer for TNULL", { file, column: col.name });
+      return planInteger(col, p.wider, file);
+    }
+  }
+  const width = CODE_BYTES[p.code]!;
+  const t = tnull;
+  const write = (view: DataView, _u8: Uint8Array, at: number, i: number) => {
+    const s = col.nulls?.[i] ? t! : stored(i);
+    if (p.code === "B") view.setUint8(at, Number(s));
+    else if (p.code === "I") view.setInt16(at, Number(s), false);
+    else if (p.code === "J") view.setInt32(at, Number(s), false);
+    else view.setBigInt64(at, s, false);
+  };
+  const plan: Plan = { col, tform: `1${p.code}`, width, write };
+  if (t !== undefined) plan.tnull = t;
+  if (p.zero !== 0n) plan.tzero = p.zero;
+  return plan;
+}
+
+function planColumn(col: ColumnData, file: string | undefined): Plan {
+  const isNull = (i: number) => col.nulls?.[i] === 1;
+  switch (col.kind) {
+    case "float64": {
+      const v = col.values as Float64Array;
+      return { col, tform: "1D", width: 8, write: (view, _u, at, i) => view.setFloat64(at, isNull(i) ? NaN : v[i]!, false) };
+    }
+    case "float32": {
+      const v = col.values as Float32Array;
+      return { col, tform: "1E", width: 4, write: (view, _u, at, i) => view.setFloat32(at, isNull(i) ? NaN : v[i]!, false) };
+    }
+    case "bool": {
+      const v = col.values as Uint8Array;
+      return { col, tform: "1L", width: 1, write: (_v, u8, at, i) => void (u8[at] = isNull(i) ? 0 : v[i] ? 0x54 : 0x46) };
+    }
+    case "utf8": {
+      const enc = new TextEncoder();
+      const encoded = (col.values as string[]).map((s, i) => (isNull(i) ? new Uint8Array(0) : enc.encode(s)));
+      const width = Math.max(1, ...encoded.map((b) => b.length));
+      return { col, tform: `${width}A`, width, write: (_v, u8, at, i) => u8.set(encoded[i]!, at) };
+    }
+    default:
+      return planInteger(col, col.kind, file);
+  }
+}
+
+const RESERVED = /^(SIMPLE|BITPIX|NAXIS\d*|EXTEND|XTENSION|PCOUNT|GCOUNT|TFIELDS|THEAP|EXTNAME|EXTVER|END|COMMENT|HISTORY|CONTINUE|BLANK|BSCALE|BZERO|GROUPS|T[A-Z]{3,4}\d+|PMETA\d+|PMVAL\d+|PMENC\d+)$/;
+
+/** Encodes a table as a FITS file: empty primary HDU plus one BINTABLE. */
+export function fitsFromTable(table: Table, options: { file?: string } = {}): Uint8Array {
+  const cols = columnsOf(table);
+  const n = table.numRows;
+  const plans = cols.map((c) => planColumn(c, options.file));
+  const rowBytes = plans.reduce((s, p) => s + p.width, 0);
+  const cards: string[] = [
+    valueCard("XTENSION", "BINTABLE", "binary table extension"),
+    valueCard("BITPIX", 8, "8-bit bytes"),
+    valueCard("NAXIS", 2, "2-dimensional table"),
+    valueCard("NAXIS1", rowBytes, "bytes per row"),
+    valueCard("NAXIS2", n, "rows"),
+    valueCard("PCOUNT", 0, "no heap"),
+    valueCard("GCOUNT", 1, "one group"),
+    valueCard("TFIELDS", plans.length, "columns"),
+  ];
+  plans.forEach((p, k) => {
+    const j = k + 1;
+    cards.push(valueCard(`TTYPE${j}`, p.col.name, p.col.meta?.description ?? ""));
+    cards.push(valueCard(`TFORM${j}`, p.tform));
+    if (p.col.meta?.unit) cards.push(valueCard(`TUNIT${j}`, p.col.meta.unit));
+    if (p.tnull !== undefined) cards.push(valueCard(`TNULL${j}`, p.tnull));
+    if (p.tzero !== undefined) {
+      cards.push(valueCard(`TSCAL${j}`, 1));
+      cards.push(valueCard(`TZERO${j}`, p.tzero));
+    }
+  });
+  cards.push(valueCard("EXTNAME", "CATALOGUE", "written by peculiar"));
+  // Settings, one keyword each, for people reading the header.
+  const settings = table.schema.metadata.get(META.settings);
+  if (settings) {
+    try {
+      const obj = JSON.parse(settings) as Record<string, unknown>;
+      const seen = new Set<string>();
+      for (const [key, value] of Object.entries(obj)) {
+        const kw = key.toUpperCase().replace(/[^A-Z0-9_-]/g, "_").slice(0, 8);
+        if (kw === "" || RESERVED.test(kw) || seen.has(kw)) continue;
+        if (typeof value !== "number" && typeof value !== "string" && typeof value !== "boolean") continue;
+        if (typeof value === "number" && !Number.isFinite(value)) continue;
+        seen.add(kw);
+        if (typeof value === "string") cards.push(...longStringCards(kw, value, `${META.settings} ${key}`));
+        else cards.push(valueCard(kw, value, `${META.settings} ${key}`));
+      }
+    } catch {
+      // not JSON: kept below as PMVAL only
+    }
+  }
+  // Every schema metadata entry, exactly.
+  let k = 0;
+  for (const [key, value] of table.schema.metadata) {
+    k++;
+    cards.push(...longStringCards(`PMETA${k}`, key));
+    if (/^[\x20-\x7e]*$/.test(value)) cards.push(...longStringCards(`PMVAL${k}`, value));
+    else {
+      cards.push(...longStringCards(`PMVAL${k}`, bytesToBase64(new TextEncoder().encode(value))));
+      cards.push(valueCard(`PMENC${k}`, "base64"));
+    }
+  }
+  const primary = headerBytes([
+    valueCard("SIMPLE", true, "conforms to FITS Standard 4.0"),
+    valueCard("BITPIX", 8),
+    valueCard("NAXIS", 0, "no data in the primary HDU"),
+    valueCard("EXTEND", true, "extensions follow"),
+  ]);
+  const ext = headerBytes(cards);
+  const dataBytes = rowBytes * n;
+  const data = new Uint8Array(Math.ceil(dataBytes / BLOCK) * BLOCK);
+  const view = new DataView(data.buffer);
+  let p = 0;
+  for (let i = 0; i < n; i++) {
+    for (const plan of plans) {
+      plan.write(view, data, p, i);
+      p += plan.width;
+    }
+  }
+  const out = new Uint8Array(primary.length + ext.length + data.length);
+  out.set(primary, 0);
+  out.set(ext, primary.length);
+  out.set(data, primary.length + ext.length);
+  return out;
+}
