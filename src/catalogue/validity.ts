@@ -1,0 +1,77 @@
+/**
+ * Row validity: the `valid` and `invalid_reason` columns every table keeps (DEVELOPERS.md,
+ * "Nothing is lost"). A step that finds problems flags rows here; rows are never dropped.
+ * A flagged row gets valid = false and "; reason" appended to its reason (the first reason
+ * stands alone). Tables without the two columns get them, all valid, on the first flag.
+ */
+import type { Table } from "apache-arrow";
+import { hasColumn, nullMask, stringColumn, withColumns, type ColumnData } from "./columns.js";
+import { INVALID_REASON, VALID } from "./meta.js";
+
+/** 1 where the row is valid. A table without a `valid` column is all valid; a null `valid` is invalid. */
+export function validMask(table: Table): Uint8Array {
+  const n = table.numRows;
+  const out = new Uint8Array(n).fill(1);
+  const v = table.getChild(VALID);
+  if (!v) return out;
+  const nulls = nullMask(table, VALID);
+  for (let i = 0; i < n; i++) out[i] = !nulls[i] && v.get(i) ? 1 : 0;
+  return out;
+}
+
+/** The reason of each row ("" when valid or none given). */
+export function invalidReasons(table: Table): string[] {
+  if (!hasColumn(table, INVALID_REASON)) return new Array<string>(table.numRows).fill("");
+  return stringColumn(table, INVALID_REASON).map((s) => s ?? "");
+}
+
+/** Number of rows with valid = false. */
+export function countInvalid(table: Table): number {
+  const m = validMask(table);
+  let k = 0;
+  for (let i = 0; i < m.length; i++) if (!m[i]) k++;
+  return k;
+}
+
+/** Indices (Int32Array) of the invalid rows, in order. */
+export function invalidRows(table: Table): Int32Array {
+  const m = validMask(table);
+  const out: number[] = [];
+  for (let i = 0; i < m.length; i++) if (!m[i]) out.push(i);
+  return Int32Array.from(out);
+}
+
+function validityColumns(valid: Uint8Array, reasons: string[]): ColumnData[] {
+  return [
+    { name: VALID, kind: "bool", values: valid },
+    { name: INVALID_REASON, kind: "utf8", values: reasons },
+  ];
+}
+
+/** The table with `valid` and `invalid_reason` present (added as all valid when absent). */
+export function withValidity(table: Table): Table {
+  if (hasColumn(table, VALID) && hasColumn(table, INVALID_REASON)) return table;
+  return withColumns(table, validityColumns(validMask(table), invalidReasons(table)));
+}
+
+/**
+ * Flags rows: where bad[i] is 1, valid becomes false and reasons[i] (or "flagged" when undefined)
+ * is appended to invalid_reason with "; ". Rows already invalid stay invalid and collect the reason.
+ * Returns a new table; the input is not changed. Nothing to flag returns the table with the columns ensured.
+ */
+export function flagRows(table: Table, bad: Uint8Array, reasons: readonly (string | undefined)[]): Table {
+  const n = table.numRows;
+  if (bad.length !== n) throw new RangeError(`flagRows: mask has ${bad.length} entries, table has ${n} rows`);
+  let any = false;
+  for (let i = 0; i < n; i++) if (bad[i]) any = true;
+  if (!any) return withValidity(table);
+  const valid = validMask(table);
+  const text = invalidReasons(table);
+  for (let i = 0; i < n; i++) {
+    if (!bad[i]) continue;
+    valid[i] = 0;
+    const r = reasons[i] ?? "flagged";
+    text[i] = text[i] ? `${text[i]}; ${r}` : r;
+  }
+  return withColumns(table, validityColumns(valid, text));
+}
