@@ -1,1 +1,3 @@
 export * from "./mock.js";
+export * from "./hubble.js";
+export * from "./recentre.js";

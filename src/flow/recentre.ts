@@ -1,0 +1,219 @@
+/**
+ * The velocity field seen from another origin (domain reference section 10; the Copernican check).
+ *
+ * Interface used by the web view (keep it stable):
+ *   recentre(points: { x, y, z: Float64Array (comoving Mpc, any Cartesian frame); vr: Float64Array
+ *            (line-of-sight velocity from us, km/s: H0 D + v_pec); vrErr?: Float64Array; use?: Uint8Array },
+ *            origin: { x, y, z, vr } | { index },
+ *            opts: { h0; fitDipole?: boolean (default true); sigmaStar?: number (default 250); maxDistMpc?: number })
+ *   -> { s, vAB, h0There, h0ThereErr, dipole, dipoleErr, nUsed, residualRmsThere, ... }
+ * Extra optional options and extra result fields may be added; none of the above will change.
+ *
+ * Radial-only assumption: each galaxy's 3-D velocity is taken as vr times the unit vector of its position
+ * (Hubble flow plus the radial peculiar velocity; tangential peculiar velocities are unknown and set to 0).
+ * Minor-infall form (default): v_AB = (v_B - v_A) . e_AB. Major-infall form (Karachentsev & Kashibadze
+ * 2006; vector form of domain reference section 10.3): v_AB = (V_B - V_A cos theta) / cos lambda, with
+ * cos lambda = n_B . e_AB, which assumes B moves relative to A only along e_AB; rows with
+ * |cos lambda| < minCosLambda are not used.
+ * Both give v_AB = H0 s exactly in a pure Hubble flow. The Hubble law is fitted as seen from the origin
+ * jointly with a dipole (fitHubbleFlow): the origin's own peculiar velocity u_A appears as a dipole -u_A,
+ * and a fit of H0 alone would alias it into H0 because a survey is lopsided as seen from anywhere but us.
+ * Errors: a distance error of B moves s by delta D cos lambda while v_AB stays (to first order), so the
+ * per-row error is vrErr |cos lambda| (minor form) or vrErr (major form), plus sigmaStar in quadrature.
+ * Browser-safe.
+ */
+import { fitHubbleFlow } from "./hubble.js";
+
+export interface RecentrePoints {
+  x: Float64Array;
+  y: Float64Array;
+  z: Float64Array;
+  vr: Float64Array;
+  vrErr?: Float64Array;
+  use?: Uint8Array;
+}
+
+export type RecentreOrigin = { x: number; y: number; z: number; vr: number } | { index: number };
+
+export interface RecentreOptions {
+  h0: number;
+  fitDipole?: boolean;
+  sigmaStar?: number;
+  maxDistMpc?: number;
+  /** Fit H0 (default true); false holds it at opts.h0 and fits the dipole alone. */
+  fitH0?: boolean;
+  /** "minor" (default) or "major" infall form. */
+  form?: "minor" | "major";
+  /** Major form only: rows with |cos lambda| below this are left out. Default 0.3. */
+  minCosLambda?: number;
+  /** Points closer to the origin than this are left out, Mpc. Default 0. */
+  minDistMpc?: number;
+}
+
+export interface Recentred {
+  /** Distance from the origin, Mpc (NaN for non-finite input). */
+  s: Float64Array;
+  /** Radial velocity seen from the origin, km/s; NaN for the origin itself and unused rows. */
+  vAB: Float64Array;
+  h0There: number;
+  h0ThereErr: number;
+  /** Dipole fitted from the origin, in the input frame, km/s (minus the origin's own peculiar velocity). */
+  dipole: [number, number, number];
+  dipoleErr: [number, number, number];
+  nUsed: number;
+  /** Unweighted rms of v_AB - H s - dipole . e over the used rows, km/s. */
+  residualRmsThere: number;
+  /** Covariance of (H, dx, dy, dz), row-major 4 x 4. */
+  cov: Float64Array;
+  /** cos lambda = n_B . e_AB (NaN where undefined). */
+  cosLambda: Float64Array;
+  /** Rows that entered the fit. */
+  used: Uint8Array;
+  /** Index of the origin row, -1 for a free point. */
+  originIndex: number;
+  /** The origin actually used: position and 3-D velocity in the input frame. */
+  origin: { x: number; y: number; z: number; vx: number; vy: number; vz: number };
+  chi2: number;
+  dof: number;
+  /** Always "radial-only": tangential peculiar velocities are taken as zero. */
+  velocityModel: "radial-only";
+}
+
+/** 3-D velocity of a point under the radial-only assumption: vr times the unit vector of r (0 at r = 0). */
+export function radialVelocity3(x: number, y: number, z: number, vr: number): [number, number, number] {
+  const d = Math.hypot(x, y, z);
+  if (!(d > 0)) return [0, 0, 0];
+  return [(vr * x) / d, (vr * y) / d, (vr * z) / d];
+}
+
+/** Resolves an origin to a position and a 3-D velocity. NaN coordinates for a bad index. */
+export function originOf(points: RecentrePoints, origin: RecentreOrigin): { index: number; x: number; y: number; z: number; vx: number; vy: number; vz: number; vr: number } {
+  if ("index" in origin) {
+    const i = origin.index;
+    if (!(Number.isInteger(i) && i >= 0 && i < points.x.length)) return { index: -1, x: NaN, y: NaN, z: NaN, vx: NaN, vy: NaN, vz: NaN, vr: NaN };
+    const x = points.x[i]!;
+    const y = points.y[i]!;
+    const z = points.z[i]!;
+    const vr = points.vr[i]!;
+    const [vx, vy, vz] = radialVelocity3(x, y, z, vr);
+    return { index: i, x, y, z, vx, vy, vz, vr };
+  }
+  const [vx, vy, vz] = radialVelocity3(origin.x, origin.y, origin.z, origin.vr);
+  return { index: -1, x: origin.x, y: origin.y, z: origin.z, vx, vy, vz, vr: origin.vr };
+}
+
+export function recentre(points: RecentrePoints, origin: RecentreOrigin, opts: RecentreOptions): Recentred {
+  const { x, y, z, vr, vrErr, use } = points;
+  const n = x.length;
+  const form = opts.form ?? "minor";
+  const minCos = opts.minCosLambda ?? 0.3;
+  const maxD = opts.maxDistMpc ?? Infinity;
+  const minD = opts.minDistMpc ?? 0;
+  const o = originOf(points, origin);
+  const ox = o.x;
+  const oy = o.y;
+  const oz = o.z;
+  const od = Math.hypot(ox, oy, oz);
+  // Unit vector of the origin as seen from us (for cos theta in the major form).
+  const onx = od > 0 ? ox / od : 0;
+  const ony = od > 0 ? oy / od : 0;
+  const onz = od > 0 ? oz / od : 0;
+
+  const s = new Float64Array(n);
+  const vAB = new Float64Array(n);
+  const cosL = new Float64Array(n);
+  const ex = new Float64Array(n);
+  const ey = new Float64Array(n);
+  const ez = new Float64Array(n);
+  const sig = new Float64Array(n);
+  const used = new Uint8Array(n);
+  for (let i = 0; i < n; i++) {
+    const dx = x[i]! - ox;
+    const dy = y[i]! - oy;
+    const dz = z[i]! - oz;
+    const si = Math.hypot(dx, dy, dz);
+    s[i] = si;
+    vAB[i] = NaN;
+    cosL[i] = NaN;
+    ex[i] = NaN;
+    ey[i] = NaN;
+    ez[i] = NaN;
+    sig[i] = NaN;
+    if (i === o.index || !(si > 0) || !Number.isFinite(vr[i]!)) continue;
+    if (use && !use[i]) continue;
+    const ux = dx / si;
+    const uy = dy / si;
+    const uz = dz / si;
+    const di = Math.hypot(x[i]!, y[i]!, z[i]!);
+    if (!(di > 0)) continue;
+    const nbx = x[i]! / di;
+    const nby = y[i]! / di;
+    const nbz = z[i]! / di;
+    const cl = nbx * ux + nby * uy + nbz * uz;
+    cosL[i] = cl;
+    let v: number;
+    if (form === "major") {
+      if (!(Math.abs(cl) >= minCos)) continue;
+      const cosTheta = od > 0 ? nbx * onx + nby * ony + nbz * onz : 0;
+      v = (vr[i]! - o.vr * cosTheta) / cl;
+    } else {
+      const vbx = vr[i]! * nbx - o.vx;
+      const vby = vr[i]! * nby - o.vy;
+      const vbz = vr[i]! * nbz - o.vz;
+      v = vbx * ux + vby * uy + vbz * uz;
+    }
+    const e = vrErr ? vrErr[i]! : 0;
+    const sg = form === "major" ? e : e * Math.abs(cl);
+    if (!Number.isFinite(v) || !Number.isFinite(sg)) continue;
+    vAB[i] = v;
+    ex[i] = ux;
+    ey[i] = uy;
+    ez[i] = uz;
+    sig[i] = sg;
+    if (si <= maxD && si >= minD) used[i] = 1;
+  }
+  const fitH0 = opts.fitH0 ?? true;
+  const fit = fitHubbleFlow(
+    { x: s, y: vAB, ex, ey, ez, sigma: sig, use: used },
+    { sigmaStar: opts.sigmaStar ?? 250, fitDipole: opts.fitDipole ?? true, ...(fitH0 ? {} : { fixedSlope: opts.h0 }) },
+  );
+  return {
+    s,
+    vAB,
+    h0There: fit.slope,
+    h0ThereErr: fit.slopeErr,
+    dipole: fit.dipole,
+    dipoleErr: fit.dipoleErr,
+    nUsed: fit.nUsed,
+    residualRmsThere: fit.residualRms,
+    cov: fit.cov,
+    cosLambda: cosL,
+    used,
+    originIndex: o.index,
+    origin: { x: ox, y: oy, z: oz, vx: o.vx, vy: o.vy, vz: o.vz },
+    chi2: fit.chi2,
+    dof: fit.dof,
+    velocityModel: "radial-only",
+  };
+}
+
+/**
+ * Positions and 3-D velocities (radial-only assumption) relative to an origin: the full vectors behind
+ * recentre's s and v_AB. Shifting by an origin and then by the negated origin is the identity.
+ */
+export function relativeFrame(
+  points: { x: Float64Array; y: Float64Array; z: Float64Array; vx: Float64Array; vy: Float64Array; vz: Float64Array },
+  origin: { x: number; y: number; z: number; vx: number; vy: number; vz: number },
+): { x: Float64Array; y: Float64Array; z: Float64Array; vx: Float64Array; vy: Float64Array; vz: Float64Array } {
+  const n = points.x.length;
+  const out = { x: new Float64Array(n), y: new Float64Array(n), z: new Float64Array(n), vx: new Float64Array(n), vy: new Float64Array(n), vz: new Float64Array(n) };
+  for (let i = 0; i < n; i++) {
+    out.x[i] = points.x[i]! - origin.x;
+    out.y[i] = points.y[i]! - origin.y;
+    out.z[i] = points.z[i]! - origin.z;
+    out.vx[i] = points.vx[i]! - origin.vx;
+    out.vy[i] = points.vy[i]! - origin.vy;
+    out.vz[i] = points.vz[i]! - origin.vz;
+  }
+  return out;
+}
