@@ -4,3 +4,4 @@ export * from "./restframes.js";
 export * from "./distance-indicators.js";
 export * from "./estimators.js";
 export * from "./zeropoint.js";
+export * from "./velocities.js";

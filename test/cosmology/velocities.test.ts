@@ -1,0 +1,172 @@
+import { describe, expect, it } from "vitest";
+import { tableFromColumns, float64Column, stringColumn, type ColumnData } from "../../src/catalogue/columns.js";
+import { META, readJsonMeta, type RoleMap } from "../../src/catalogue/meta.js";
+import { validMask } from "../../src/catalogue/validity.js";
+import { computeVelocities, type PositionedTable } from "../../src/cosmology/velocities.js";
+import { convertRedshifts } from "../../src/cosmology/restframes.js";
+import { C_KMS } from "../../src/cosmology/constants.js";
+import { angleDiffDeg } from "../../src/sky/index.js";
+
+const LCDM = { h0: 70, omegaM: 0.3 };
+
+/** An invented catalogue: ids g1..gN, positions, heliocentric cz, mu with errors. */
+function catalogue(rows: { ra: number; dec: number; cz: number; mu: number; muErr?: number; valid?: boolean; reason?: string }[], extra: ColumnData[] = [], roles: RoleMap = {}): PositionedTable {
+  const n = rows.length;
+  const cols: ColumnData[] = [
+    { name: "id", kind: "utf8", values: rows.map((_, i) => `g${i + 1}`) },
+    { name: "ra", kind: "float64", values: Float64Array.from(rows.map((r) => r.ra)), meta: { unit: "deg" } },
+    { name: "dec", kind: "float64", values: Float64Array.from(rows.map((r) => r.dec)), meta: { unit: "deg" } },
+    { name: "cz", kind: "float64", values: Float64Array.from(rows.map((r) => r.cz)), meta: { unit: "km/s" } },
+    { name: "mu", kind: "float64", values: Float64Array.from(rows.map((r) => r.mu)), meta: { unit: "mag" } },
+    { name: "mu_err", kind: "float64", values: Float64Array.from(rows.map((r) => r.muErr ?? NaN)), meta: { unit: "mag" } },
+    { name: "valid", kind: "bool", values: Uint8Array.from(rows.map((r) => (r.valid === false ? 0 : 1))) },
+    { name: "invalid_reason", kind: "utf8", values: rows.map((r) => r.reason ?? "") },
+    { name: "source_row", kind: "int32", values: Int32Array.from(rows.map((_, i) => i + 1)) },
+    ...extra,
+  ];
+  const table = tableFromColumns(cols, new Map(), n);
+  return {
+    table,
+    roles: { id: "id", ra: "ra", dec: "dec", cz: "cz", mu: "mu", mu_err: "mu_err", ...roles },
+    raDeg: Float64Array.from(rows.map((r) => r.ra)),
+    decDeg: Float64Array.from(rows.map((r) => r.dec)),
+    file: "invented.csv",
+  };
+}
+
+describe("the velocities step", () => {
+  it("gives the worked value v = 118.61 km/s for mu = 35 at cz_CMB = 7000 km/s", () => {
+    // Domain reference §5.1 (Davis & Scrimgeour 2014 exact estimator; H0 = 70, Omega_m = 0.3).
+    const cat = catalogue([{ ra: 150, dec: 20, cz: 7000, mu: 35, muErr: 0.4 }]);
+    const { table } = computeVelocities(cat, { frame: "cmb", cosmology: LCDM, estimator: "exact", redshiftFrame: "cmb" });
+    expect(float64Column(table, "cz_cmb")[0]).toBeCloseTo(7000, 9);
+    expect(Math.abs(float64Column(table, "v_pec")[0]! - 118.61)).toBeLessThan(0.006);
+    expect(Math.abs(float64Column(table, "z_cos")[0]! - 0.0229447818)).toBeLessThan(1e-10);
+    expect(float64Column(table, "dist_mpc")[0]).toBeCloseTo(100, 9);
+    expect(float64Column(table, "dist_err_mpc")[0]).toBeCloseTo((100 * Math.LN10 * 0.4) / 5, 9);
+    expect(Math.abs(float64Column(table, "dist_c_mpc")[0]! - 97.75699)).toBeLessThan(1e-5);
+  });
+
+  it("keeps every input column and adds the contract columns", () => {
+    const cat = catalogue([{ ra: 10, dec: -5, cz: 3000, mu: 33.5, muErr: 0.2 }]);
+    const { table } = computeVelocities(cat, { frame: "cmb", cosmology: LCDM, estimator: "exact" });
+    const names = table.schema.fields.map((f) => f.name);
+    for (const c of cat.table.schema.fields) expect(names).toContain(c.name);
+    for (const c of ["z_cmb", "cz_cmb", "dist_mpc", "dist_err_mpc", "dist_c_mpc", "z_cos", "v_pec", "v_pec_err", "l", "b", "sgl", "sgb", "sgx", "sgy", "sgz"]) {
+      expect(names).toContain(c);
+    }
+    expect(table.numRows).toBe(1);
+    expect(table.schema.fields.find((f) => f.name === "v_pec")!.metadata.get("unit")).toBe("km/s");
+  });
+
+  it("converts heliocentric cz with the frame module and the given apex", () => {
+    const cat = catalogue([
+      { ra: 187.70593075, dec: 12.39112331, cz: 1284, mu: 31, muErr: 0.3 },
+      { ra: 20, dec: -60, cz: 9000, mu: 36, muErr: 0.3 },
+    ]);
+    const { table } = computeVelocities(cat, { frame: "lg", apex: "km1996", form: "additive", cosmology: LCDM, estimator: "linear" });
+    // Domain reference §4.3 (astropy 8.0.1): the galaxy at (187.70593075, +12.39112331) with
+    // cz_helio = 1284 km/s has 1179.958 km/s in the LG frame of Karachentsev & Makarov 1996.
+    expect(Math.abs(float64Column(table, "cz_lg")[0]! - 1179.958)).toBeLessThan(2e-3);
+    const want = convertRedshifts([9000 / C_KMS], [20], [-60], { frame: "helio" }, { frame: "lg", apex: "km1996" }, "additive")[0]!;
+    expect(float64Column(table, "z_lg")[1]).toBeCloseTo(want, 14);
+  });
+
+  it("puts Galactic and supergalactic coordinates and the SG Cartesian of the comoving distance", () => {
+    const cat = catalogue([{ ra: 187.70593075, dec: 12.39112331, cz: 1284, mu: 31, muErr: 0.3 }]);
+    const { table } = computeVelocities(cat, { frame: "cmb", cosmology: LCDM, estimator: "exact" });
+    // Domain reference §3.1/§3.2 [computed with pyerfa 2.0.1.5 / astropy 8.0.1]: (l, b) = (283.777739, 74.491156),
+    // (SGL, SGB) = (102.880569, -2.347921).
+    expect(angleDiffDeg(float64Column(table, "l")[0]!, 283.777739)).toBeLessThan(2e-6);
+    expect(Math.abs(float64Column(table, "b")[0]! - 74.491156)).toBeLessThan(2e-6);
+    expect(angleDiffDeg(float64Column(table, "sgl")[0]!, 102.880569)).toBeLessThan(2e-6);
+    expect(Math.abs(float64Column(table, "sgb")[0]! - -2.347921)).toBeLessThan(2e-6);
+    const r = Math.hypot(float64Column(table, "sgx")[0]!, float64Column(table, "sgy")[0]!, float64Column(table, "sgz")[0]!);
+    expect(r).toBeCloseTo(float64Column(table, "dist_c_mpc")[0]!, 9);
+  });
+
+  it("flags rows without redshift, distance or position and keeps them all", () => {
+    const cat = catalogue([
+      { ra: 10, dec: 10, cz: 5000, mu: 34.5, muErr: 0.3 },
+      { ra: 10, dec: 10, cz: NaN, mu: 34.5, muErr: 0.3 },
+      { ra: 10, dec: 10, cz: 5000, mu: NaN, muErr: 0.3 },
+      { ra: NaN, dec: 10, cz: 5000, mu: 34.5, muErr: 0.3 },
+      { ra: 10, dec: 10, cz: 5000, mu: 34.5, valid: false, reason: "dec out of range" },
+    ]);
+    const { table, report } = computeVelocities(cat, { frame: "cmb", cosmology: LCDM, estimator: "exact" });
+    expect(table.numRows).toBe(5);
+    expect(Array.from(validMask(table))).toEqual([1, 0, 0, 0, 0]);
+    const why = stringColumn(table, "invalid_reason");
+    expect(why[0]).toBe("");
+    expect(why[1]).toMatch(/no usable redshift \(cz\)/);
+    expect(why[2]).toMatch(/no usable distance \(mu\)/);
+    expect(why[3]).toMatch(/no usable position/);
+    // A row flagged before keeps its reason; it has no mu error, so its velocity has no error.
+    expect(why[4]).toBe("dec out of range");
+    expect(report.withoutError).toBe(1);
+    expect(report.withVelocity).toBe(2);
+    expect(report.flagged["no usable position"]).toBe(1);
+    expect(report.valid).toBe(1);
+  });
+
+  it("records the settings in the schema metadata", () => {
+    const cat = catalogue([{ ra: 10, dec: 10, cz: 5000, mu: 34.5, muErr: 0.3 }]);
+    const { table } = computeVelocities(cat, { frame: "cmb", cosmology: { h0: 73, omegaM: 0.25 }, estimator: "log" });
+    const s = readJsonMeta<Record<string, unknown>>(table, META.settings)!;
+    expect(s.step).toBe("velocities");
+    expect(s.estimator).toBe("log");
+    expect(s.frame).toBe("cmb");
+    expect(s.apex).toBe("planck2018");
+    expect(s.h0).toBe(73);
+    expect(s.omegaM).toBe(0.25);
+    expect(String(s.apexCitation)).toMatch(/Planck 2018/);
+    const h = readJsonMeta<unknown[]>(table, META.history)!;
+    expect(h.length).toBe(1);
+  });
+
+  it("keeps an input column that clashes with an output under a new name", () => {
+    const extra: ColumnData[] = [
+      { name: "v_pec", kind: "float64", values: Float64Array.from([123]) },
+      { name: "l", kind: "float64", values: Float64Array.from([999]) },
+    ];
+    const cat = catalogue([{ ra: 10, dec: 10, cz: 5000, mu: 34.5, muErr: 0.3 }], extra);
+    const { table, report } = computeVelocities(cat, { frame: "cmb", cosmology: LCDM, estimator: "exact" });
+    expect(float64Column(table, "v_pec_input")[0]).toBe(123);
+    expect(float64Column(table, "l")[0]).not.toBe(999);
+    expect(report.renamed).toEqual(["v_pec -> v_pec_input"]);
+  });
+
+  it("uses a distance column of a stated kind and an eta column", () => {
+    const base = catalogue([{ ra: 10, dec: 10, cz: 7000, mu: 35, muErr: 0.4 }], [
+      { name: "d_com", kind: "float64", values: Float64Array.from([97.75698725367535]) },
+      { name: "logdr", kind: "float64", values: Float64Array.from([0.007553255297031447]) },
+      { name: "e_logdr", kind: "float64", values: Float64Array.from([0.08]) },
+    ]);
+    // The same galaxy three ways: mu = 35 (D_L = 100 Mpc), D_C = 97.757 Mpc, eta = 0.0075533 at cz_CMB = 7000
+    // (domain reference §5.1, §5.3): the exact estimator gives 118.61 km/s each time.
+    const common = { frame: "cmb" as const, redshiftFrame: "cmb" as const, cosmology: LCDM, estimator: "exact" as const };
+    const byDist = computeVelocities({ ...base, roles: { ...base.roles, dist: "d_com" } }, { ...common, distance: "dist", distKind: "comoving" });
+    const byEta = computeVelocities({ ...base, roles: { ...base.roles, eta: "logdr", eta_err: "e_logdr" } }, { ...common, distance: "eta" });
+    for (const r of [byDist, byEta]) {
+      expect(Math.abs(float64Column(r.table, "v_pec")[0]! - 118.61)).toBeLessThan(0.006);
+      expect(float64Column(r.table, "dist_mpc")[0]).toBeCloseTo(100, 4);
+    }
+    expect(byEta.report.distanceSource).toBe("eta");
+    expect(float64Column(byEta.table, "v_pec_err")[0]).toBeGreaterThan(0);
+  });
+
+  it("names the missing role in its error", () => {
+    const cat = catalogue([{ ra: 10, dec: 10, cz: 5000, mu: 34.5 }]);
+    expect(() => computeVelocities(cat, { frame: "cmb", cosmology: LCDM, estimator: "exact", distance: "eta" })).toThrow(/--col eta=NAME/);
+    const noZ = { ...cat, roles: { ra: "ra", dec: "dec", mu: "mu" } };
+    expect(() => computeVelocities(noZ, { frame: "cmb", cosmology: LCDM, estimator: "exact" })).toThrow(/no redshift column/);
+    expect(() => computeVelocities(cat, { frame: "cmb", cosmology: { h0: 0, omegaM: 0.3 }, estimator: "exact" })).toThrow(/H0/);
+  });
+
+  it("handles an empty table", () => {
+    const cat = catalogue([]);
+    const { table, report } = computeVelocities(cat, { frame: "cmb", cosmology: LCDM, estimator: "exact" });
+    expect(table.numRows).toBe(0);
+    expect(report.withVelocity).toBe(0);
+  });
+});
