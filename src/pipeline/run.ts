@@ -10,7 +10,9 @@ import { writeFileAtomic } from "../catalogue/atomic.js";
 import { parsePlan, type Plan } from "./plan.js";
 import { runSteps, stepError, type RunRecord } from "./runner.js";
 import { reportMarkdown, SUMMARY_FORMAT, type RunSummary } from "./report.js";
-import { STEPS, newState, comparisonsOf, plotsOf, type PipelineState } from "./steps.js";
+import { STEPS } from "./steps.js";
+import { comparisonsOf, plotsOf } from "./outcomes.js";
+import { newState, type PipelineState } from "./state.js";
 import { readTruth } from "./truth.js";
 
 /** A recovered number is called consistent with the truth in the report within this many sigma. */

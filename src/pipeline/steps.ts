@@ -1,73 +1,13 @@
 /**
- * The seven steps of a plan as calls into the library, the state they hand to each other, and
- * what the run takes from that state at the end: the comparisons with the truth and the plots.
- * Each step writes its tables as Arrow into the output folder and returns its headline numbers.
+ * The seven steps of a plan, each a call into the library (src/pipeline/steps/*.ts). A step whose
+ * library piece is not in this build fails with that reason instead of pretending.
  */
-import { join } from "node:path";
-import type { Table } from "apache-arrow";
 import { PeculiarError } from "../errors.js";
-import { writeFileAtomic } from "../catalogue/atomic.js";
-import { float64Column, hasColumn } from "../catalogue/columns.js";
-import { angleBetween, unitVector } from "../sky/vectors.js";
-import { RAD } from "../sky/angles.js";
 import type { StepName } from "./plan.js";
 import type { StepImpl } from "./runner.js";
-import { compare, type Comparison, type Truth } from "./truth.js";
-import { hubbleDiagramSvg, separationHistogramSvg, skyMapSvg, type SkyMarker } from "./plots.js";
-
-export interface MatchOutcome {
-  alias: string;
-  table: Table;
-  radiusArcsec: number;
-  /** Expected chance pairs within the radius (from the match report). */
-  expectedChance?: number;
-}
-
-export interface FlowOutcome {
-  h0: { value: number; error: number };
-  /** Galactic Cartesian km/s with 3x3 covariance (row-major). */
-  bulk: { vx: number; vy: number; vz: number; cov: number[]; amplitude: number; amplitudeErr: number; lDeg: number; bDeg: number };
-  nUsed: number;
-}
-
-export interface ClusterOutcome {
-  groupId: number;
-  members: number;
-  raDeg: number;
-  decDeg: number;
-  /** 1-sigma error of the centroid: rms angular offset of members / sqrt(N), deg. */
-  posErrDeg: number;
-  czKmS: number;
-  czErrKmS: number;
-  sigmaKmS: number;
-  sigmaErrKmS: number;
-  /** Truth members among the group's members, and the group's share of the truth cluster. */
-  purity?: number;
-  completeness?: number;
-}
-
-export interface PipelineState {
-  truth?: Truth;
-  redshifts?: Table;
-  distances: { alias: string; table: Table }[];
-  matches: MatchOutcome[];
-  offsets: { alias: string; offsetMag: number; errMag: number; nShared: number }[];
-  combined?: Table;
-  velocities?: Table;
-  /** The velocity frame the velocities step used (for the cz_<frame> column). */
-  frame?: string;
-  flagged?: Table;
-  grouped?: Table;
-  flow?: FlowOutcome;
-  cluster?: ClusterOutcome;
-  /** The table the view shows, relative to the output folder. */
-  finalName?: string;
-  finalTable?: Table;
-}
-
-export function newState(): PipelineState {
-  return { distances: [], matches: [], offsets: [] };
-}
+import type { PipelineState } from "./state.js";
+import { combineStep } from "./steps/combine.js";
+import { velocitiesStep } from "./steps/velocities.js";
 
 function missing(step: StepName, what: string): never {
   throw new PeculiarError("step", `${what} is not available yet in this build, so '${step}' cannot run`);
@@ -75,86 +15,10 @@ function missing(step: StepName, what: string): never {
 
 export const STEPS: Record<StepName, StepImpl<PipelineState>> = {
   match: () => missing("match", "the cross-match (src/crossmatch match) or the catalogue loader (src/catalogue/load.ts)"),
-  combine: () => missing("combine", "the zero-point combine (src/cosmology)"),
-  velocities: () => missing("velocities", "the velocities table step (src/cosmology)"),
+  combine: combineStep,
+  velocities: velocitiesStep,
   flag: () => missing("flag", "outlier flagging (src/flow)"),
   groups: () => missing("groups", "friends-of-friends groups (src/flow)"),
   flow: () => missing("flow", "the H0 and bulk-flow fit (src/flow)"),
   recentre: () => missing("recentre", "re-centring (src/flow)"),
 };
-
-/** The recovered numbers beside the truth, for everything the run got to. */
-export function comparisonsOf(s: PipelineState): Comparison[] {
-  const t = s.truth;
-  if (!t) return [];
-  const out: Comparison[] = [];
-  for (const z of t.zeroPoints) {
-    const o = s.offsets.find((x) => x.alias === z.alias);
-    if (o) out.push(compare(`zero_point.${z.alias}`, `zero-point offset of ${z.alias} against ${z.relativeTo}`, "mag", o.offsetMag, o.errMag, z.offsetMag));
-  }
-  if (s.flow) {
-    const f = s.flow;
-    out.push(compare("h0", "H0", "km/s/Mpc", f.h0.value, f.h0.error, t.h0));
-    const comps = ["vx", "vy", "vz"] as const;
-    comps.forEach((k, i) => out.push(compare(`bulk_flow.${k}`, `bulk flow ${k} (Galactic)`, "km/s", f.bulk[k], Math.sqrt(f.bulk.cov[4 * i]!), t.bulkFlow[k])));
-    out.push(compare("bulk_flow.amplitude", "bulk flow amplitude", "km/s", f.bulk.amplitude, f.bulk.amplitudeErr, t.bulkFlow.amplitude));
-  }
-  if (s.cluster) {
-    const c = s.cluster;
-    const sepDeg = angleBetween(...unitVector(c.raDeg, c.decDeg), ...unitVector(t.cluster.raDeg, t.cluster.decDeg)) * RAD;
-    out.push(compare("cluster.offset_deg", `${t.cluster.name}: centre offset from the injected centre`, "deg", sepDeg, c.posErrDeg, 0));
-    out.push(compare("cluster.cz", `${t.cluster.name}: mean cz (CMB)`, "km/s", c.czKmS, c.czErrKmS, t.cluster.czCmbKmS));
-    out.push(compare("cluster.sigma", `${t.cluster.name}: velocity dispersion`, "km/s", c.sigmaKmS, c.sigmaErrKmS, t.cluster.sigmaKmS));
-  }
-  return out;
-}
-
-function col(t: Table | undefined, name: string): Float64Array | undefined {
-  return t && hasColumn(t, name) ? float64Column(t, name) : undefined;
-}
-
-/** Writes the SVG plots the state allows and returns them with captions. */
-export async function plotsOf(s: PipelineState, outDir: string): Promise<{ file: string; caption: string }[]> {
-  const plots: { file: string; caption: string }[] = [];
-  const put = async (file: string, svg: string, caption: string) => {
-    await writeFileAtomic(join(outDir, file), svg);
-    plots.push({ file, caption });
-  };
-  for (const m of s.matches) {
-    const sep = col(m.table, "sep_arcsec");
-    if (!sep) continue;
-    const p: Parameters<typeof separationHistogramSvg>[0] = { sepArcsec: sep, radiusArcsec: m.radiusArcsec, title: `Separations, ${m.alias}` };
-    if (m.expectedChance !== undefined) p.expectedChance = m.expectedChance;
-    await put(`plot-separations-${m.alias}.svg`, separationHistogramSvg(p), `Separations of the matched pairs with ${m.alias}, with the expected chance pairs`);
-  }
-  const t = s.finalTable ?? s.velocities;
-  const vpec = col(t, "v_pec");
-  if (t && vpec) {
-    const frame = s.frame ?? "cmb";
-    const d = col(t, "dist_c_mpc") ?? col(t, "dist_mpc");
-    const v = col(t, `cz_${frame}`);
-    const outlier = col(t, "outlier");
-    if (d && v) {
-      const p: Parameters<typeof hubbleDiagramSvg>[0] = { distMpc: d, velKmS: v, vPecKmS: vpec, h0: s.flow?.h0.value ?? NaN, title: `Hubble diagram (${frame} frame)` };
-      const e = col(t, "v_pec_err");
-      if (e) p.vPecErrKmS = e;
-      if (outlier) p.outlier = outlier;
-      if (s.truth) p.h0Truth = s.truth.h0;
-      await put("plot-hubble.svg", hubbleDiagramSvg(p), "Hubble diagram: velocity against comoving distance with the fitted law; peculiar velocities below");
-    }
-    const l = col(t, "l");
-    const b = col(t, "b");
-    if (l && b) {
-      const markers: SkyMarker[] = [];
-      if (s.flow) markers.push({ lDeg: s.flow.bulk.lDeg, bDeg: s.flow.bulk.bDeg, label: "bulk flow (fit)", kind: "fit" });
-      if (s.truth) {
-        markers.push({ lDeg: s.truth.bulkFlow.lDeg, bDeg: s.truth.bulkFlow.bDeg, label: "bulk flow (injected)", kind: "truth" });
-        markers.push({ lDeg: s.truth.cluster.lDeg, bDeg: s.truth.cluster.bDeg, label: s.truth.cluster.name, kind: "truth" });
-      }
-      const p: Parameters<typeof skyMapSvg>[0] = { lDeg: l, bDeg: b, vPecKmS: vpec, markers };
-      if (outlier) p.outlier = outlier;
-      await put("plot-sky.svg", skyMapSvg(p), "Peculiar velocities on the sky in Galactic coordinates (Hammer equal-area)");
-    }
-  }
-  return plots;
-}
