@@ -5,3 +5,4 @@ export * from "./distance-indicators.js";
 export * from "./estimators.js";
 export * from "./zeropoint.js";
 export * from "./velocities.js";
+export * from "./combine.js";

@@ -1,0 +1,174 @@
+/**
+ * The combine step on a table that holds distance moduli from several catalogues (after a
+ * cross-match: columns such as `a_mu`, `b_mu` with `a_mu_err`, `b_mu_err`): the zero-point offset
+ * of each catalogue against a reference from the galaxies they share (zeropoint.ts), applied on
+ * request, then the inverse-variance combination per galaxy.
+ *
+ * Columns added: mu, mu_err (mag), n_dist (moduli combined), mu_chi2 (chi^2 of those moduli about
+ * the combined one, n_dist - 1 degrees of freedom). The `mu` and `mu_err` roles of the output point
+ * at them, so the velocities step picks them up. Input columns of the same names are kept as
+ * "<name>_input". The offsets go into the report and the schema metadata (`recordStep`).
+ * Nothing is flagged: a galaxy without any modulus gets n_dist = 0 and an empty mu.
+ */
+import type { Table } from "apache-arrow";
+import { float64Column, hasColumn, type ColumnData } from "../catalogue/columns.js";
+import { META, getRoles, recordStep, setJsonMeta } from "../catalogue/meta.js";
+import { withColumns } from "../catalogue/columns.js";
+import { PeculiarError } from "../errors.js";
+import { combineModuli, zeroPointOffset } from "./zeropoint.js";
+import { addColumnsKeepingInputs } from "./velocities.js";
+
+export interface CombineOptions {
+  /** The modulus columns, at least one. */
+  muColumns: string[];
+  /** Their error columns, in the same order; found by name when absent (see errorColumnFor). */
+  errColumns?: (string | undefined)[];
+  /** The reference: a column of muColumns or the alias that prefixes one ("a" for "a_mu"). Default the first. */
+  reference?: string;
+  /** Subtract the measured offsets before combining. */
+  apply: boolean;
+  /** Clipping threshold of the robust check (default 3). */
+  kappa?: number;
+  file?: string;
+}
+
+export interface CatalogueOffset {
+  column: string;
+  errColumn: string;
+  /** mu(column) - mu(reference), weighted mean over shared galaxies, mag. */
+  offsetMag: number;
+  offsetErrMag: number;
+  nShared: number;
+  chi2Dof: number;
+  scatterMag: number;
+  medianMag: number;
+  clippedOffsetMag: number;
+  clippedOffsetErrMag: number;
+  nRejected: number;
+  kappa: number;
+  /** The offset subtracted from this column before combining (0 when not applied). */
+  appliedMag: number;
+}
+
+export interface CombineReport {
+  rows: number;
+  reference: string;
+  applied: boolean;
+  offsets: CatalogueOffset[];
+  /** Rows by number of moduli combined: {"0": .., "1": .., "2": ..}. */
+  nDist: Record<string, number>;
+  notes: string[];
+  renamed: string[];
+}
+
+/**
+ * The error column of a modulus column, by the usual spellings: X_err, e_X, X_error, err_X, and
+ * for an alias-prefixed name P_B also P_e_B, P_B_err.
+ */
+export function errorColumnFor(table: Table, column: string): string | undefined {
+  const candidates = [`${column}_err`, `e_${column}`, `${column}_error`, `err_${column}`];
+  const k = column.indexOf("_");
+  if (k > 0) {
+    const p = column.slice(0, k);
+    const b = column.slice(k + 1);
+    candidates.push(`${p}_e_${b}`, `${p}_${b}_err`, `${p}_err_${b}`);
+  }
+  return candidates.find((c) => hasColumn(table, c));
+}
+
+function resolveReference(muColumns: string[], reference: string | undefined, file: string | undefined): number {
+  if (reference === undefined) return 0;
+  let k = muColumns.indexOf(reference);
+  if (k < 0) k = muColumns.findIndex((c) => c.startsWith(`${reference}_`));
+  if (k < 0) throw new PeculiarError("usage", "the reference is neither a modulus column nor the alias of one", { file, value: reference, expected: muColumns.join(", ") });
+  return k;
+}
+
+export function combineDistances(table: Table, o: CombineOptions): { table: Table; report: CombineReport } {
+  const file = o.file;
+  if (o.muColumns.length === 0) throw new PeculiarError("usage", "combine needs at least one modulus column (--mu a_mu,b_mu)", { file });
+  const seen = new Set<string>();
+  for (const c of o.muColumns) {
+    if (seen.has(c)) throw new PeculiarError("usage", "a modulus column is named twice", { file, column: c });
+    seen.add(c);
+    if (!hasColumn(table, c)) throw new PeculiarError("column", "no such modulus column", { file, column: c, expected: table.schema.fields.map((f) => f.name).join(", ") });
+  }
+  if (o.errColumns && o.errColumns.length !== o.muColumns.length) {
+    throw new PeculiarError("usage", `--err names ${o.errColumns.length} columns for ${o.muColumns.length} modulus columns`, { file });
+  }
+  const errNames = o.muColumns.map((c, k) => {
+    const e = o.errColumns?.[k] ?? errorColumnFor(table, c);
+    if (!e) throw new PeculiarError("column", "no error column found for this modulus; name it with --err", { file, column: c, expected: `${c}_err or e_${c}` });
+    if (!hasColumn(table, e)) throw new PeculiarError("column", "no such error column", { file, column: e });
+    return e;
+  });
+  const ref = resolveReference(o.muColumns, o.reference, file);
+  const mus = o.muColumns.map((c) => float64Column(table, c));
+  const errs = errNames.map((c) => float64Column(table, c));
+  const notes: string[] = [];
+  const offsets: CatalogueOffset[] = o.muColumns.map((c, k) => {
+    const r = zeroPointOffset(mus[ref]!, errs[ref]!, mus[k]!, errs[k]!, o.kappa !== undefined ? { kappa: o.kappa } : {});
+    let appliedMag = 0;
+    if (o.apply && k !== ref) {
+      if (r.nShared > 0) appliedMag = r.offsetMag;
+      else notes.push(`${c} shares no galaxy with the reference ${o.muColumns[ref]}: its offset is unknown and not applied`);
+    }
+    if (k !== ref && r.nShared > 1 && Math.abs(r.offsetMag - r.clippedOffsetMag) > 2 * r.offsetErrMag) {
+      notes.push(`${c}: the clipped offset (${r.clippedOffsetMag.toFixed(3)} mag, ${r.nRejected} rejected) differs from the plain one (${r.offsetMag.toFixed(3)}) by more than 2 sigma; check for wrong cross-identifications`);
+    }
+    return {
+      column: c,
+      errColumn: errNames[k]!,
+      offsetMag: r.offsetMag,
+      offsetErrMag: r.offsetErrMag,
+      nShared: r.nShared,
+      chi2Dof: r.chi2Dof,
+      scatterMag: r.scatterMag,
+      medianMag: r.medianMag,
+      clippedOffsetMag: r.clippedOffsetMag,
+      clippedOffsetErrMag: r.clippedOffsetErrMag,
+      nRejected: r.nRejected,
+      kappa: r.kappa,
+      appliedMag,
+    };
+  });
+  const comb = combineModuli(mus, errs, offsets.map((x) => x.appliedMag));
+  const n = table.numRows;
+  const nDist: Record<string, number> = {};
+  for (let i = 0; i < n; i++) nDist[String(comb.nDist[i])] = (nDist[String(comb.nDist[i])] ?? 0) + 1;
+  const nanNulls = (v: Float64Array) => {
+    const m = new Uint8Array(v.length);
+    let any = false;
+    for (let i = 0; i < v.length; i++) if (Number.isNaN(v[i]!)) {
+      m[i] = 1;
+      any = true;
+    }
+    return any ? m : undefined;
+  };
+  const col = (name: string, values: Float64Array, unit: string | undefined, ucd: string, description: string): ColumnData => {
+    const c: ColumnData = { name, kind: "float64", values, meta: unit ? { unit, ucd, description } : { ucd, description } };
+    const nl = nanNulls(values);
+    if (nl) c.nulls = nl;
+    return c;
+  };
+  const refName = o.muColumns[ref]!;
+  const columns: ColumnData[] = [
+    col("mu", comb.muMag, "mag", "phot.mag.distMod", `inverse-variance combination of ${o.muColumns.join(", ")}${o.apply ? ` on the zero point of ${refName}` : " (no zero-point offsets applied)"}`),
+    col("mu_err", comb.muErrMag, "mag", "stat.error;phot.mag.distMod", "1-sigma error of mu, 1/sqrt(sum of weights); offset errors not included"),
+    { name: "n_dist", kind: "int32", values: comb.nDist, meta: { description: "number of moduli combined into mu" } },
+    col("mu_chi2", comb.chi2, undefined, "stat.fit.chi2", "chi^2 of the combined moduli about mu (n_dist - 1 degrees of freedom)"),
+  ];
+  const added = addColumnsKeepingInputs(table, columns);
+  let meta = new Map(added.table.schema.metadata);
+  const roles = { ...getRoles(added.table), mu: "mu", mu_err: "mu_err" };
+  meta = setJsonMeta(meta, META.roles, roles);
+  meta = recordStep(meta, "combine", {
+    reference: refName,
+    applied: o.apply,
+    muColumns: o.muColumns,
+    errColumns: errNames,
+    offsets: offsets.map((x) => ({ column: x.column, offsetMag: x.offsetMag, offsetErrMag: x.offsetErrMag, nShared: x.nShared, clippedOffsetMag: x.clippedOffsetMag, appliedMag: x.appliedMag })),
+  });
+  const out = withColumns(added.table, [], meta);
+  return { table: out, report: { rows: n, reference: refName, applied: o.apply, offsets, nDist, notes, renamed: added.renamed } };
+}
