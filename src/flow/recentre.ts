@@ -48,6 +48,13 @@ export interface RecentreOptions {
   minCosLambda?: number;
   /** Points closer to the origin than this are left out, Mpc. Default 0. */
   minDistMpc?: number;
+  /**
+   * Minor form only. "log" (default): maximum likelihood with Gaussian errors in ln D along each
+   * galaxy's line of sight (see logDistanceFit); "linear": least squares of v_AB = H s + d . e at the
+   * observed positions, which is biased by the log-normal distance errors (about +1% from us and -1.4%
+   * from other galaxies for 18% errors, measured on mocks).
+   */
+  estimator?: "log" | "linear";
 }
 
 export interface Recentred {
@@ -75,6 +82,8 @@ export interface Recentred {
   origin: { x: number; y: number; z: number; vx: number; vy: number; vz: number };
   chi2: number;
   dof: number;
+  /** "log" (Gaussian in ln D, the default for the minor form) or "linear" (v_AB = H s + d . e). */
+  estimator: "log" | "linear";
   /** Always "radial-only": tangential peculiar velocities are taken as zero. */
   velocityModel: "radial-only";
 }
@@ -173,10 +182,54 @@ export function recentre(points: RecentrePoints, origin: RecentreOrigin, opts: R
     if (si <= maxD && si >= minD) used[i] = 1;
   }
   const fitH0 = opts.fitH0 ?? true;
-  const fit = fitHubbleFlow(
+  const sigmaStar = opts.sigmaStar ?? 250;
+  const fitDipole = opts.fitDipole ?? true;
+  const linearFit = fitHubbleFlow(
     { x: s, y: vAB, ex, ey, ez, sigma: sig, use: used },
-    { sigmaStar: opts.sigmaStar ?? 250, fitDipole: opts.fitDipole ?? true, ...(fitH0 ? {} : { fixedSlope: opts.h0 }) },
+    { sigmaStar, fitDipole, ...(fitH0 ? {} : { fixedSlope: opts.h0 }) },
   );
+  let h = linearFit.slope;
+  let d: [number, number, number] = linearFit.dipole;
+  let cov = linearFit.cov;
+  let hErr = linearFit.slopeErr;
+  let dErr = linearFit.dipoleErr;
+  let chi2 = linearFit.chi2;
+  let dof = linearFit.dof;
+  let nUsed = linearFit.nUsed;
+  if (form === "minor" && (opts.estimator ?? "log") === "log" && linearFit.ok) {
+    const g = logDistanceFit(points, o, used, vAB, { h0: opts.h0, hStart: h, dStart: d, fitH0, fitDipole, sigmaStar });
+    if (g.ok) {
+      h = g.h;
+      d = g.d;
+      cov = g.cov;
+      hErr = fitH0 ? Math.sqrt(cov[0]!) : 0;
+      dErr = fitDipole ? [Math.sqrt(cov[5]!), Math.sqrt(cov[10]!), Math.sqrt(cov[15]!)] : [0, 0, 0];
+      chi2 = g.chi2;
+      dof = g.dof;
+      nUsed = g.nUsed;
+    }
+  }
+  // Residual scatter in km/s at the observed positions, for the final parameters.
+  let sumR2 = 0;
+  let nR = 0;
+  for (let i = 0; i < n; i++) {
+    if (!used[i]) continue;
+    const r = vAB[i]! - h * s[i]! - d[0] * ex[i]! - d[1] * ey[i]! - d[2] * ez[i]!;
+    if (!Number.isFinite(r)) continue;
+    sumR2 += r * r;
+    nR++;
+  }
+  const fit = {
+    slope: h,
+    slopeErr: hErr,
+    dipole: d,
+    dipoleErr: dErr,
+    nUsed,
+    residualRms: nR > 0 && Number.isFinite(h) ? Math.sqrt(sumR2 / nR) : NaN,
+    cov,
+    chi2,
+    dof,
+  };
   return {
     s,
     vAB,
@@ -193,6 +246,7 @@ export function recentre(points: RecentrePoints, origin: RecentreOrigin, opts: R
     origin: { x: ox, y: oy, z: oz, vx: o.vx, vy: o.vy, vz: o.vz },
     chi2: fit.chi2,
     dof: fit.dof,
+    estimator: form === "minor" && (opts.estimator ?? "log") === "log" ? "log" : "linear",
     velocityModel: "radial-only",
   };
 }
@@ -216,4 +270,110 @@ export function relativeFrame(
     out.vz[i] = points.vz[i]! - origin.vz;
   }
   return out;
+}
+
+interface LogFitResult {
+  ok: boolean;
+  h: number;
+  d: [number, number, number];
+  cov: Float64Array;
+  chi2: number;
+  dof: number;
+  nUsed: number;
+}
+
+const MAX_ITER = 60;
+
+/**
+ * The Hubble law seen from origin A with log-normal distance errors, by Gauss-Newton on
+ * rho_B = ln(D_obs,B / D_pred,B): D_pred is where B must sit on its own line of sight (unit a) for its
+ * radial-only velocity w = V_B a - v_A to satisfy the model from A, F(D) = H s(D)^2 - (w - d).(D a - r_A) = 0
+ * (the root away from the point of closest approach D_c = a . r_A; the other root is D_c itself in a pure
+ * Hubble flow). Seen from us (r_A = 0) this is D_pred = (V_B - d . a)/H, i.e. the log-distance estimator
+ * of Watkins & Feldman 2015 (MNRAS 450, 1868), whose errors are Gaussian for log-normal distance errors.
+ * Each step is a linear fit by fitHubbleFlow of y = -kappa rho = dH s + dd . e, kappa = F'(D) D / s,
+ * with per-row error |kappa| f (f = vrErr / (h0 D_obs), the fractional distance error) and sigmaStar in
+ * quadrature; in a pure Hubble flow kappa = H D cos(lambda), so this is the linear fit made exact in ln D.
+ */
+function logDistanceFit(
+  points: RecentrePoints,
+  o: { x: number; y: number; z: number; vx: number; vy: number; vz: number },
+  used: Uint8Array,
+  vAB: Float64Array,
+  opts: { h0: number; hStart: number; dStart: [number, number, number]; fitH0: boolean; fitDipole: boolean; sigmaStar: number },
+): LogFitResult {
+  const { x, y, z, vr, vrErr } = points;
+  const n = x.length;
+  const fail: LogFitResult = { ok: false, h: NaN, d: [NaN, NaN, NaN], cov: new Float64Array(16), chi2: NaN, dof: 0, nUsed: 0 };
+  let h = opts.fitH0 ? opts.hStart : opts.h0;
+  const d: [number, number, number] = opts.fitDipole ? [...opts.dStart] : [0, 0, 0];
+  if (!(h > 0)) return fail;
+  const X = new Float64Array(n);
+  const Y = new Float64Array(n);
+  const EX = new Float64Array(n);
+  const EY = new Float64Array(n);
+  const EZ = new Float64Array(n);
+  const SG = new Float64Array(n);
+  const use = new Uint8Array(n);
+  const rA2 = o.x * o.x + o.y * o.y + o.z * o.z;
+  for (let it = 0; it < MAX_ITER; it++) {
+    for (let i = 0; i < n; i++) {
+      use[i] = 0;
+      if (!used[i] || !Number.isFinite(vAB[i]!)) continue;
+      const dObs = Math.hypot(x[i]!, y[i]!, z[i]!);
+      const ax = x[i]! / dObs;
+      const ay = y[i]! / dObs;
+      const az = z[i]! / dObs;
+      // w - d, with w = V_B a - v_A
+      const wx = vr[i]! * ax - o.vx - d[0];
+      const wy = vr[i]! * ay - o.vy - d[1];
+      const wz = vr[i]! * az - o.vz - d[2];
+      const q = wx * ax + wy * ay + wz * az;
+      const dc = ax * o.x + ay * o.y + az * o.z;
+      const px = dc * ax - o.x;
+      const py = dc * ay - o.y;
+      const pz = dc * az - o.z;
+      const b2 = Math.max(0, rA2 - dc * dc);
+      const c0 = h * b2 - (wx * px + wy * py + wz * pz);
+      const disc = q * q - 4 * h * c0;
+      if (!(disc > 0) || q === 0) continue;
+      const root = Math.sqrt(disc);
+      const t = (q + (q > 0 ? root : -root)) / (2 * h);
+      const dp = dc + t;
+      if (!(dp > 0)) continue;
+      const sx = dp * ax - o.x;
+      const sy = dp * ay - o.y;
+      const sz = dp * az - o.z;
+      const sp = Math.hypot(sx, sy, sz);
+      if (!(sp > 0)) continue;
+      const fD = q > 0 ? root : -root; // F'(D_pred) = 2 H t - q
+      const kappa = (fD * dp) / sp;
+      const rho = Math.log(dObs / dp);
+      const e = vrErr ? vrErr[i]! : 0;
+      const f = Number.isFinite(e) ? e / (opts.h0 * dObs) : 0;
+      X[i] = sp;
+      Y[i] = -kappa * rho;
+      EX[i] = sx / sp;
+      EY[i] = sy / sp;
+      EZ[i] = sz / sp;
+      SG[i] = Math.abs(kappa) * f;
+      use[i] = 1;
+    }
+    const step = fitHubbleFlow(
+      { x: X, y: Y, ex: EX, ey: EY, ez: EZ, sigma: SG, use },
+      { sigmaStar: opts.sigmaStar, fitDipole: opts.fitDipole, ...(opts.fitH0 ? {} : { fixedSlope: 0 }) },
+    );
+    if (!step.ok) return fail;
+    const dh = opts.fitH0 ? step.slope : 0;
+    h += dh;
+    if (opts.fitDipole) {
+      d[0] += step.dipole[0];
+      d[1] += step.dipole[1];
+      d[2] += step.dipole[2];
+    }
+    if (!(h > 0)) return fail;
+    const small = Math.abs(dh) <= 1e-12 * h && (!opts.fitDipole || Math.hypot(...step.dipole) <= 1e-9);
+    if (small) return { ok: true, h, d, cov: step.cov, chi2: step.chi2, dof: step.dof, nUsed: step.nUsed };
+  }
+  return fail;
 }
