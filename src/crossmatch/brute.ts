@@ -108,3 +108,42 @@ export function bruteGroups(n: number, pa: ArrayLike<number>, pb: ArrayLike<numb
   }
   return label;
 }
+
+/** The acceptance tests and scores of select.ts, written out plainly over every pair of a and b. */
+export function bruteCandidates(
+  a: SkyPoints,
+  b: SkyPoints,
+  o: { radiusRad?: number; sigmaK?: number; errARad?: Float64Array; errBRad?: Float64Array; vAKmS?: Float64Array; vBKmS?: Float64Array; maxDvKmS?: number },
+): BruteCandidate[] {
+  const out: BruteCandidate[] = [];
+  const search = o.radiusRad ?? Math.PI;
+  const all = brutePairs(a, b, search);
+  for (let k = 0; k < all.length; k++) {
+    const i = all.a[k]!;
+    const j = all.b[k]!;
+    const sep = all.sepRad[k]!;
+    let r = o.radiusRad ?? Infinity;
+    if (o.sigmaK !== undefined) {
+      const sa = o.errARad?.[i] ?? NaN;
+      const sb = o.errBRad?.[j] ?? NaN;
+      const sp = o.sigmaK * Math.sqrt(sa * sa + sb * sb);
+      if (Number.isNaN(sp) && r === Infinity) continue;
+      if (!Number.isNaN(sp) && sp < r) r = sp;
+    }
+    if (!(sep <= r)) continue;
+    let score = r > 0 ? (sep / r) * (sep / r) : 0;
+    if (o.maxDvKmS !== undefined) {
+      const d = o.vAKmS && o.vBKmS ? o.vBKmS[j]! - o.vAKmS[i]! : NaN;
+      if (Number.isNaN(d)) score += 1;
+      else if (Math.abs(d) > o.maxDvKmS) continue;
+      else score += o.maxDvKmS > 0 ? (d / o.maxDvKmS) * (d / o.maxDvKmS) : 0;
+    }
+    out.push({ a: i, b: j, sepRad: sep, score });
+  }
+  return out;
+}
+
+/** Ambiguity of each chosen candidate: another candidate sharing its a or b with score <= s + delta. */
+export function bruteAmbiguous(all: BruteCandidate[], chosen: BruteCandidate[], delta: number): boolean[] {
+  return chosen.map((x) => all.some((y) => y !== x && !(y.a === x.a && y.b === x.b) && (y.a === x.a || y.b === x.b) && y.score <= x.score + delta));
+}

@@ -4,3 +4,7 @@ export * from "./zones.js";
 export * from "./partitions.js";
 export * from "./pairs.js";
 export * from "./brute.js";
+export * from "./radius.js";
+export * from "./select.js";
+export * from "./match.js";
+export * from "./dedupe.js";

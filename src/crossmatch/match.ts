@@ -1,0 +1,239 @@
+/**
+ * Cross-matching two catalogues on typed arrays: pairs within the search radius (zone engine),
+ * acceptance tests and scores (select.ts), the chosen matches, their ambiguity, and the joined rows.
+ *
+ * Radius and per-source errors: with --radius R alone a pair is accepted when sep <= R; with
+ * --sigma K alone when sep <= K sqrt(sA^2 + sB^2) (the search radius is then K times the largest
+ * combined error present); with both, when both hold (R is a hard cap, and a pair lacking an error
+ * falls back on R alone). Without R, a pair lacking an error is rejected and counted.
+ */
+import { ARCSEC } from "../sky/angles.js";
+import { pairsWithin } from "./pairs.js";
+import { ambiguity, candidateCounts, scoreCandidates, selectMatches, AMBIGUITY_DELTA, type Candidates, type SelectMode } from "./select.js";
+import { skyPoints, type SkyPoints } from "./zones.js";
+
+export type JoinMode = "inner" | "left" | "outer";
+export const JOIN_MODES: readonly JoinMode[] = ["inner", "left", "outer"];
+
+/** One side of a match, as columns. */
+export interface MatchSide {
+  raDeg: ArrayLike<number>;
+  decDeg: ArrayLike<number>;
+  /** 1-sigma positional error per axis, arcsec (NaN unknown). */
+  posErrArcsec?: Float64Array;
+  /** Velocity cz (km/s), NaN unknown. */
+  velocityKmS?: Float64Array;
+}
+
+export interface MatchOptions {
+  radiusArcsec?: number;
+  sigmaK?: number;
+  maxDvKmS?: number;
+  select?: SelectMode;
+  ambiguityDelta?: number;
+  partitions?: number;
+  onProgress?: (done: number, total: number) => void;
+}
+
+export interface MatchResult {
+  /** The accepted candidates (all pairs passing the tests), sorted by A row then score. */
+  candidates: Candidates;
+  /** Indices into candidates of the chosen matches, increasing. */
+  chosen: Int32Array;
+  /** 1 where chosen[t] is ambiguous. */
+  ambiguous: Uint8Array;
+  /** Accepted candidates per A row. */
+  nCandidates: Int32Array;
+  /** Search radius actually used, arcsec. */
+  searchRadiusArcsec: number;
+  nA: number;
+  nB: number;
+  /** Rows with a usable position. */
+  usableA: number;
+  usableB: number;
+  pointsA: SkyPoints;
+  pointsB: SkyPoints;
+}
+
+/** Matches A against B. Throws (plain Error) on an option the kernel cannot use; the CLI checks options first. */
+export function crossMatch(a: MatchSide, b: MatchSide, o: MatchOptions): MatchResult {
+  const pa = skyPoints(a.raDeg, a.decDeg);
+  const pb = skyPoints(b.raDeg, b.decDeg);
+  const search = searchRadiusArcsec(a, b, o);
+  const pairs = pairsWithin(pa, pb, search * ARCSEC, { partitions: o.partitions, onProgress: o.onProgress });
+  const candidates = scoreCandidates(pairs, {
+    radiusRad: o.radiusArcsec === undefined ? undefined : o.radiusArcsec * ARCSEC,
+    sigmaK: o.sigmaK,
+    errARad: a.posErrArcsec && scaled(a.posErrArcsec, ARCSEC),
+    errBRad: b.posErrArcsec && scaled(b.posErrArcsec, ARCSEC),
+    vAKmS: a.velocityKmS,
+    vBKmS: b.velocityKmS,
+    maxDvKmS: o.maxDvKmS,
+  });
+  const nA = pa.length;
+  const nB = pb.length;
+  const chosen = selectMatches(candidates, o.select ?? "nearest", nA, nB);
+  const amb = ambiguity(candidates, chosen, nA, nB, o.ambiguityDelta ?? AMBIGUITY_DELTA);
+  return {
+    candidates,
+    chosen,
+    ambiguous: amb,
+    nCandidates: candidateCounts(candidates, nA),
+    searchRadiusArcsec: search,
+    nA,
+    nB,
+    usableA: countUsable(pa),
+    usableB: countUsable(pb),
+    pointsA: pa,
+    pointsB: pb,
+  };
+}
+
+/** The radius the engine searches: R, or K times the largest combined error when only --sigma is given. */
+export function searchRadiusArcsec(a: MatchSide, b: MatchSide, o: MatchOptions): number {
+  if (o.radiusArcsec !== undefined) return o.radiusArcsec;
+  if (o.sigmaK === undefined) throw new Error("a radius or a sigma factor is needed");
+  const ma = maxFinite(a.posErrArcsec);
+  const mb = maxFinite(b.posErrArcsec);
+  if (!(ma > 0 || mb > 0)) throw new Error("--sigma needs positional errors in at least one catalogue");
+  return o.sigmaK * Math.sqrt(ma * ma + mb * mb);
+}
+
+/** Output rows of a join: A row, B row and chosen-candidate index, each -1 where absent. */
+export interface JoinedRows {
+  rowA: Int32Array;
+  rowB: Int32Array;
+  /** index into MatchResult.chosen (-1 for an unmatched row) */
+  match: Int32Array;
+  length: number;
+}
+
+/**
+ * inner: the chosen matches in A order (several rows per A row in mode "all");
+ * left: every A row once per match, or once with no B; outer: left plus every B row no match uses,
+ * in B order.
+ */
+export function joinRows(r: MatchResult, join: JoinMode): JoinedRows {
+  const c = r.candidates;
+  const rowA: number[] = [];
+  const rowB: number[] = [];
+  const match: number[] = [];
+  let t = 0;
+  const m = r.chosen.length;
+  if (join === "inner") {
+    for (; t < m; t++) {
+      const k = r.chosen[t]!;
+      rowA.push(c.a[k]!);
+      rowB.push(c.b[k]!);
+      match.push(t);
+    }
+  } else {
+    for (let i = 0; i < r.nA; i++) {
+      let any = false;
+      while (t < m && c.a[r.chosen[t]!] === i) {
+        rowA.push(i);
+        rowB.push(c.b[r.chosen[t]!]!);
+        match.push(t);
+        t++;
+        any = true;
+      }
+      if (!any) {
+        rowA.push(i);
+        rowB.push(-1);
+        match.push(-1);
+      }
+    }
+    if (join === "outer") {
+      const used = new Uint8Array(r.nB);
+      for (let u = 0; u < m; u++) used[c.b[r.chosen[u]!]!] = 1;
+      for (let j = 0; j < r.nB; j++) {
+        if (used[j]) continue;
+        rowA.push(-1);
+        rowB.push(j);
+        match.push(-1);
+      }
+    }
+  }
+  return { rowA: Int32Array.from(rowA), rowB: Int32Array.from(rowB), match: Int32Array.from(match), length: rowA.length };
+}
+
+/** Summary counts of a match. */
+export interface MatchCounts {
+  rowsA: number;
+  rowsB: number;
+  usableA: number;
+  usableB: number;
+  /** accepted candidate pairs */
+  candidatePairs: number;
+  /** chosen pairs */
+  matchedPairs: number;
+  /** A rows / B rows in at least one chosen pair */
+  matchedA: number;
+  matchedB: number;
+  unmatchedA: number;
+  unmatchedB: number;
+  ambiguous: number;
+  /** A rows with more than one accepted candidate */
+  multipleCandidatesA: number;
+  rejectedBySigma: number;
+  rejectedByDv: number;
+  rejectedNoError: number;
+  uncheckedDv: number;
+}
+
+export function matchCounts(r: MatchResult): MatchCounts {
+  const c = r.candidates;
+  const usedA = new Uint8Array(r.nA);
+  const usedB = new Uint8Array(r.nB);
+  let amb = 0;
+  for (let t = 0; t < r.chosen.length; t++) {
+    const k = r.chosen[t]!;
+    usedA[c.a[k]!] = 1;
+    usedB[c.b[k]!] = 1;
+    amb += r.ambiguous[t]!;
+  }
+  const matchedA = usedA.reduce((s, x) => s + x, 0);
+  const matchedB = usedB.reduce((s, x) => s + x, 0);
+  let multi = 0;
+  for (let i = 0; i < r.nA; i++) if (r.nCandidates[i]! > 1) multi++;
+  return {
+    rowsA: r.nA,
+    rowsB: r.nB,
+    usableA: r.usableA,
+    usableB: r.usableB,
+    candidatePairs: c.length,
+    matchedPairs: r.chosen.length,
+    matchedA,
+    matchedB,
+    unmatchedA: r.nA - matchedA,
+    unmatchedB: r.nB - matchedB,
+    ambiguous: amb,
+    multipleCandidatesA: multi,
+    rejectedBySigma: c.rejectedBySigma,
+    rejectedByDv: c.rejectedByDv,
+    rejectedNoError: c.rejectedNoError,
+    uncheckedDv: c.uncheckedDv,
+  };
+}
+
+function scaled(x: Float64Array, f: number): Float64Array {
+  const out = new Float64Array(x.length);
+  for (let i = 0; i < x.length; i++) out[i] = x[i]! * f;
+  return out;
+}
+
+function maxFinite(x: Float64Array | undefined): number {
+  let m = 0;
+  if (!x) return 0;
+  for (let i = 0; i < x.length; i++) {
+    const v = x[i]!;
+    if (v > m && Number.isFinite(v)) m = v;
+  }
+  return m;
+}
+
+function countUsable(p: SkyPoints): number {
+  let n = 0;
+  for (let i = 0; i < p.length; i++) if (p.p[5 * i + 1] === p.p[5 * i + 1]) n++;
+  return n;
+}
