@@ -126,25 +126,43 @@ export function redshiftAtDistance(dMpc: number, kind: DistanceKind, c: Cosmolog
   if (!(dMpc >= 0)) return NaN;
   if (dMpc === 0) return 0;
   const dh = hubbleDistanceMpc(c);
-  const f = (z: number) => distanceOfKindMpc(z, kind, c);
-  const df = (z: number) => distanceDerivativeMpc(z, kind, c);
+  const top = solveRange(kind, c);
   let lo = 0;
-  // D_A rises to a maximum and falls again: invert on the rising branch only (the low-z root).
-  let hi = kind === "angular" ? angularMaximumRedshift(df) : Z_MAX;
-  if (f(hi) < dMpc) return NaN;
-  // Start from the low-z guess d = cz/H0.
+  let hi = top.zMax;
+  if (top.dMax < dMpc) return NaN;
+  // Start from the low-z guess d = cz/H0; Newton steps kept inside the bracket, else bisection.
   let z = Math.min(dMpc / dh, hi / 2);
   for (let it = 0; it < 100; it++) {
-    const g = f(z) - dMpc;
+    // One quadrature per step: D and dD/dz of the kind both follow from D_C(z) and E(z).
+    const dc = comovingDistanceMpc(z, c);
+    const dcdz = dh / efunc(z, c);
+    const a = 1 + z;
+    const f = kind === "comoving" ? dc : kind === "luminosity" ? a * dc : dc / a;
+    const df = kind === "comoving" ? dcdz : kind === "luminosity" ? dc + a * dcdz : dcdz / a - dc / (a * a);
+    const g = f - dMpc;
     if (g > 0) hi = z;
     else lo = z;
-    const d = df(z);
-    let next = d > 0 ? z - g / d : NaN;
+    let next = df > 0 ? z - g / df : NaN;
     if (!(next > lo && next < hi)) next = (lo + hi) / 2;
     if (Math.abs(next - z) <= 1e-15 * Math.max(1, z)) return next;
     z = next;
   }
   return z;
+}
+
+/** Upper end of the solve (z = 20, or the maximum of D_A) and the distance there, cached per model. */
+const rangeCache = new Map<string, { zMax: number; dMax: number }>();
+function solveRange(kind: DistanceKind, c: Cosmology): { zMax: number; dMax: number } {
+  const key = `${kind} ${c.h0} ${c.omegaM}`;
+  let r = rangeCache.get(key);
+  if (!r) {
+    // D_A rises to a maximum and falls again: invert on the rising branch only (the low-z root).
+    const zMax = kind === "angular" ? angularMaximumRedshift((z) => distanceDerivativeMpc(z, kind, c)) : Z_MAX;
+    r = { zMax, dMax: distanceOfKindMpc(zMax, kind, c) };
+    if (rangeCache.size > 64) rangeCache.clear();
+    rangeCache.set(key, r);
+  }
+  return r;
 }
 
 /** The redshift of the maximum of D_A (where its derivative changes sign), by bisection on [0, Z_MAX]. */
