@@ -1,3 +1,4 @@
 export * from "./mock.js";
 export * from "./hubble.js";
 export * from "./recentre.js";
+export * from "./bulkflow.js";
