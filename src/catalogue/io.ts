@@ -12,11 +12,13 @@ import { arrowFromTable, parseArrowColumns } from "./formats/arrow.js";
 import { csvFromTable, parseCsvColumns } from "./formats/csv.js";
 import { fitsFromTable, parseFitsColumns } from "./formats/fits.js";
 import { finishTable, type ParsedColumns, type SourceInfo } from "./formats/table.js";
+import { parseVOTableColumns, votableFromTable } from "./formats/votable.js";
 
 export { assertNotSameFile, writeFileAtomic } from "./atomic.js";
 export { parseCsv, csvFromTable, NULL_TOKENS } from "./formats/csv.js";
 export { parseArrow, arrowFromTable } from "./formats/arrow.js";
 export { parseFits, fitsFromTable } from "./formats/fits.js";
+export { parseVOTable, votableFromTable, VOTABLE_INFOS, VOTABLE_PARAMS } from "./formats/votable.js";
 
 export type FormatName = "csv" | "tsv" | "votable" | "fits" | "arrow";
 export const FORMAT_NAMES: readonly FormatName[] = ["csv", "tsv", "votable", "fits", "arrow"];
@@ -110,8 +112,9 @@ export function parseTable(bytes: Uint8Array, format: FormatName, options: { fil
       ({ parsed, info } = parseFitsColumns(bytes, o));
       break;
     }
-    default:
-      throw new PeculiarError("format", `reading ${format} is not available yet`, { file });
+    case "votable":
+      ({ parsed, info } = parseVOTableColumns(bytes, { file }));
+      break;
   }
   return finishTable(parsed, info);
 }
@@ -136,8 +139,8 @@ export function encodeTable(table: Table, format: FormatName, options: { stream?
       return arrowFromTable(table, { stream: options.stream ?? false });
     case "fits":
       return fitsFromTable(table);
-    default:
-      throw new PeculiarError("format", `writing ${format} is not available yet`);
+    case "votable":
+      return votableFromTable(table);
   }
 }
 

@@ -51,8 +51,8 @@ describe("formatFromPath", () => {
 });
 
 describe("readTable and writeTable", () => {
-  it("round-trips CSV, TSV and Arrow (file and stream) through the disk", async () => {
-    for (const name of ["rt.csv", "rt.tsv", "rt.arrow", "rt.arrows"]) {
+  it("round-trips CSV, TSV, Arrow (file and stream), VOTable and FITS through the disk", async () => {
+    for (const name of ["rt.csv", "rt.tsv", "rt.arrow", "rt.arrows", "rt.vot", "rt.xml", "rt.fits"]) {
       const path = join(dir, name);
       await writeTable(sample(), path);
       const back = await readTable(path);
@@ -129,6 +129,29 @@ describe("bad files", () => {
     const path = join(dir, "bad.arrow");
     writeFileSync(path, "id,cz\n1,2\n");
     await expect(readTable(path)).rejects.toThrow(`${path}: not`);
+  });
+});
+
+describe("bad FITS and VOTable files through readTable", () => {
+  it("fails on a truncated FITS file with the byte counts", async () => {
+    const path = join(dir, "cut.fits");
+    await writeTable(sample(), join(dir, "whole.fits"));
+    const whole = readFileSync(join(dir, "whole.fits"));
+    writeFileSync(path, whole.subarray(0, whole.length - 2880 + 10)); // headers and 10 bytes of the data block
+    await expect(readTable(path)).rejects.toThrow(`${path}: truncated: header says`);
+  });
+
+  it("fails on truncated XML naming the file", async () => {
+    const path = join(dir, "cut.vot");
+    await writeTable(sample(), join(dir, "whole.vot"));
+    const text = readFileSync(join(dir, "whole.vot"), "utf8");
+    writeFileSync(path, text.slice(0, text.length / 2));
+    await expect(readTable(path)).rejects.toThrow(`${path}: malformed XML`);
+  });
+
+  it("passes the HDU choice to the FITS reader", async () => {
+    await expect(readTable(join(dir, "whole.fits"), { hdu: 0 })).rejects.toThrow("HDU 0 primary is not a BINTABLE");
+    expect((await readTable(join(dir, "whole.fits"), { hdu: "CATALOGUE" })).numRows).toBe(3);
   });
 });
 
