@@ -1,0 +1,284 @@
+/**
+ * A catalogue ready for the steps: the table as read, its column roles, ICRS positions in degrees,
+ * and every row with an unusable position kept but flagged (valid = false, reason appended).
+ *
+ * Positions come from the ra/dec columns (numbers in deg, rad or h, or sexagesimal text), from
+ * Galactic glon/glat when there is no RA/Dec, or from CDS ReadMe sexagesimal parts
+ * (RAh RAm RAs DE- DEd DEm DEs, CDS "Standard for Astronomical Catalogues" v3.5) when neither is there.
+ * The unit of a coordinate column comes from (in order) --unit, the column's unit metadata, a unit
+ * suffix in its name (ra_deg, ra_rad, ra_hours); without any, numbers are degrees and bare
+ * sexagesimal text is hours for RA and degrees for Dec (common practice), and a note says so.
+ * Hours and degrees are never guessed from the values.
+ */
+import { Schema, Table } from "apache-arrow";
+import { PeculiarError } from "../errors.js";
+import {
+  anglesFromNumbers,
+  convertPositions,
+  parseAngleUnit,
+  parseAngles,
+  type AngleColumn,
+  type AngleKind,
+  type AngleUnit,
+} from "../sky/index.js";
+import { columnMeta, float64Column, kindOf, nullMask, stringColumn } from "./columns.js";
+import { readTable, type FormatName } from "./io.js";
+import { META, ROLES, SOURCE_ROW, readJsonMeta, setJsonMeta, type Role, type RoleMap } from "./meta.js";
+import { detectRoles } from "./roles.js";
+import { flagRows, invalidReasons } from "./validity.js";
+
+export interface Catalogue {
+  table: Table;
+  roles: RoleMap;
+  /** ICRS positions in degrees; NaN where the row's position is unusable. */
+  raDeg: Float64Array;
+  decDeg: Float64Array;
+  /** The unit each role was read in, for the summary ("h", "deg", "h:m:s", "km/s", ...). */
+  units: Partial<Record<Role, string>>;
+  /** How positions were found: "radec", "galactic", "cds-parts" or "none". */
+  positions: "radec" | "galactic" | "cds-parts" | "none";
+  /** Rows this step flagged for their positions. */
+  badPositions: number;
+  notes: string[];
+  file: string;
+}
+
+export interface PrepareOptions {
+  file: string;
+  /** --col ROLE=NAME; an empty name unsets a role. */
+  overrides?: RoleMap;
+  /** --unit ROLE=UNIT for coordinate columns without (or with wrong) unit metadata. */
+  units?: Partial<Record<Role, string>>;
+  /** Roles the calling step needs; absent ones raise PeculiarError("column"). ra/dec are met by any position source. */
+  require?: Role[];
+}
+
+export interface LoadOptions extends Omit<PrepareOptions, "file"> {
+  format?: FormatName;
+  hdu?: number | string;
+}
+
+/** "line" for text tables, "row" for binary ones: how the reasons name source_row. */
+function rowWord(table: Table): string {
+  const src = readJsonMeta<{ format?: string }>(table, META.source);
+  return src?.format === "csv" || src?.format === "tsv" ? "line" : "row";
+}
+
+function sourceRows(table: Table): Int32Array {
+  const n = table.numRows;
+  if (!table.getChild(SOURCE_ROW)) return Int32Array.from({ length: n }, (_, i) => i + 1);
+  const f = float64Column(table, SOURCE_ROW);
+  return Int32Array.from(f, (x, i) => (Number.isNaN(x) ? i + 1 : x));
+}
+
+/** The angle unit for a coordinate column, from --unit, metadata or the name; undefined = default. */
+function unitFor(table: Table, role: Role, column: string, given: string | undefined, file: string, notes: string[]): AngleUnit | undefined {
+  const metaUnit = columnMeta(table, column).unit;
+  const text = given ?? metaUnit;
+  const u = parseAngleUnit(text);
+  if (u === null) {
+    throw new PeculiarError("column", `unit "${text}" is not an angle unit`, {
+      file,
+      column,
+      expected: `deg, rad or h (give one with --unit ${role}=UNIT)`,
+    });
+  }
+  if (u !== undefined) return u;
+  const k = column.toLowerCase();
+  if (/(^|_)(deg|degrees?)$/.test(k)) return "deg";
+  if (/(^|_)(rad|radians?)$/.test(k)) return "rad";
+  if (/(^|_)(h|hr|hours?)$/.test(k)) return "h";
+  return undefined;
+}
+
+interface Parsed {
+  col: AngleColumn;
+  unitLabel: string;
+}
+
+/** Reads one coordinate column as degrees with a reason per bad row. */
+function readAngles(table: Table, column: string, kind: AngleKind, unit: AngleUnit | undefined, file: string, role: Role, notes: string[]): Parsed {
+  const field = table.schema.fields.find((f) => f.name === column)!;
+  const type = kindOf(field.type);
+  if (type === "utf8") {
+    const col = parseAngles(stringColumn(table, column), kind, unit);
+    const label = unit ?? (kind === "ra" ? "h:m:s" : "d:m:s");
+    if (unit === undefined) notes.push(`${role} <- ${column}: text without a unit; sexagesimal read as ${kind === "ra" ? "hours" : "degrees"}, plain numbers as degrees (common practice; --unit ${role}=UNIT to change)`);
+    return { col, unitLabel: unit === undefined ? label : `${unit}` };
+  }
+  if (type === "bool") {
+    throw new PeculiarError("column", "is a boolean column, not an angle", { file, column, expected: `an angle column for ${role}` });
+  }
+  if (unit === undefined) notes.push(`${role} <- ${column}: no unit; read as degrees (common practice; --unit ${role}=h or rad to change)`);
+  const col = anglesFromNumbers(float64Column(table, column), kind, unit ?? "deg");
+  // Nulls and NaN are "missing" rather than "not a number".
+  const nulls = nullMask(table, column);
+  for (let i = 0; i < col.reasons.length; i++) if (col.reasons[i] === "is not a number") col.reasons[i] = nulls[i] ? "is empty" : "is NaN";
+  return { col, unitLabel: unit ?? "deg" };
+}
+
+/** The text of a cell for a reason: strings quoted, numbers as written. */
+function cellText(table: Table, column: string, row: number): string {
+  const v = table.getChild(column)!;
+  if (!v.isValid(row)) return "";
+  const x = v.get(row) as unknown;
+  return typeof x === "string" ? JSON.stringify(x) : typeof x === "bigint" ? x.toString() : String(x);
+}
+
+/**
+ * Adds reasons for bad coordinates of one column. A missing value already reported by the reader
+ * for this column (a numeric column's unreadable cell) is not reported twice.
+ */
+function collect(table: Table, column: string, col: AngleColumn, word: string, rows: Int32Array, prior: string[], bad: Uint8Array, reasons: (string | undefined)[]): void {
+  for (let i = 0; i < col.reasons.length; i++) {
+    const r = col.reasons[i];
+    if (r === undefined) continue;
+    bad[i] = 1;
+    const missing = r === "is empty" || r === "is NaN";
+    if (missing && prior[i]!.includes(`column ${column}:`)) continue;
+    const text = missing ? `${word} ${rows[i]}: column ${column}: missing value` : `${word} ${rows[i]}: column ${column}: ${cellText(table, column, i)} ${r}`;
+    reasons[i] = reasons[i] ? `${reasons[i]}; ${text}` : text;
+  }
+}
+
+const CDS_PARTS = { h: "RAh", m: "RAm", s: "RAs", sign: "DE-", d: "DEd", dm: "DEm", ds: "DEs" } as const;
+
+function findColumn(table: Table, name: string): string | undefined {
+  return table.schema.fields.find((f) => f.name.toLowerCase() === name.toLowerCase())?.name;
+}
+
+/** RA and Dec from CDS sexagesimal part columns; undefined when they are not all there. */
+function cdsParts(table: Table): { ra: AngleColumn; dec: AngleColumn; names: string[] } | undefined {
+  const h = findColumn(table, CDS_PARTS.h);
+  const d = findColumn(table, CDS_PARTS.d);
+  const sign = findColumn(table, CDS_PARTS.sign);
+  if (!h || !d || !sign) return undefined;
+  const m = findColumn(table, CDS_PARTS.m);
+  const s = findColumn(table, CDS_PARTS.s);
+  const dm = findColumn(table, CDS_PARTS.dm);
+  const ds = findColumn(table, CDS_PARTS.ds);
+  const n = table.numRows;
+  const text = (col: string | undefined) => (col ? stringColumn(table, col) : new Array<string | null>(n).fill("0"));
+  const H = text(h), M = text(m), S = text(s), SG = text(sign), D = text(d), DM = text(dm), DS = text(ds);
+  const raText = new Array<string | null>(n);
+  const decText = new Array<string | null>(n);
+  for (let i = 0; i < n; i++) {
+    raText[i] = H[i] === null || M[i] === null || S[i] === null ? null : `${H[i]} ${M[i]} ${S[i]}`;
+    const sg = (SG[i] ?? "+").trim() || "+";
+    decText[i] = D[i] === null || DM[i] === null || DS[i] === null ? null : `${sg}${D[i]} ${DM[i]} ${DS[i]}`;
+  }
+  const names = [h, m, s, sign, d, dm, ds].filter((x): x is string => x !== undefined);
+  return { ra: parseAngles(raText, "ra", "h"), dec: parseAngles(decText, "dec", "deg"), names };
+}
+
+function withSchemaMetadata(table: Table, metadata: Map<string, string>): Table {
+  return new Table(new Schema(table.schema.fields, metadata), table.batches);
+}
+
+/**
+ * Detects roles, resolves ICRS positions, flags rows whose position is missing, not an angle or
+ * out of range, and records the roles in `peculiar.roles`. Pure: the input table is not changed.
+ */
+export function prepareCatalogue(table: Table, options: PrepareOptions): Catalogue {
+  const file = options.file;
+  const { roles, notes } = detectRoles(table, options.overrides ?? {}, file);
+  const n = table.numRows;
+  const units: Partial<Record<Role, string>> = {};
+  for (const r of ROLES) {
+    const c = roles[r];
+    if (c === undefined) continue;
+    const u = columnMeta(table, c).unit;
+    if (u) units[r] = u;
+  }
+  const word = rowWord(table);
+  const rows = sourceRows(table);
+  const prior = invalidReasons(table);
+  const bad = new Uint8Array(n);
+  const reasons: (string | undefined)[] = new Array(n).fill(undefined);
+  let raDeg: Float64Array = new Float64Array(n).fill(NaN);
+  let decDeg: Float64Array = new Float64Array(n).fill(NaN);
+  let positions: Catalogue["positions"] = "none";
+
+  const pairFrom = (lonRole: Role, latRole: Role) => {
+    const lonCol = roles[lonRole]!;
+    const latCol = roles[latRole]!;
+    const lon = readAngles(table, lonCol, "ra", unitFor(table, lonRole, lonCol, options.units?.[lonRole], file, notes), file, lonRole, notes);
+    const lat = readAngles(table, latCol, "dec", unitFor(table, latRole, latCol, options.units?.[latRole], file, notes), file, latRole, notes);
+    units[lonRole] = lon.unitLabel;
+    units[latRole] = lat.unitLabel;
+    collect(table, lonCol, lon.col, word, rows, prior, bad, reasons);
+    collect(table, latCol, lat.col, word, rows, prior, bad, reasons);
+    return { lon: lon.col.deg, lat: lat.col.deg };
+  };
+
+  if (roles.ra !== undefined && roles.dec !== undefined) {
+    const p = pairFrom("ra", "dec");
+    raDeg = p.lon;
+    decDeg = p.lat;
+    positions = "radec";
+  } else if (roles.ra !== undefined || roles.dec !== undefined) {
+    notes.push(`${roles.ra !== undefined ? `ra <- ${roles.ra}` : `dec <- ${roles.dec}`} has no partner column; no positions`);
+  }
+  if (positions === "none" && roles.glon !== undefined && roles.glat !== undefined) {
+    const p = pairFrom("glon", "glat");
+    const icrs = convertPositions(p.lon, p.lat, "galactic", "icrs");
+    raDeg = icrs.lonDeg;
+    decDeg = icrs.latDeg;
+    positions = "galactic";
+    notes.push(`positions: ICRS from Galactic glon <- ${roles.glon}, glat <- ${roles.glat}`);
+  }
+  if (positions === "none" && roles.ra === undefined && roles.dec === undefined) {
+    const parts = cdsParts(table);
+    if (parts) {
+      raDeg = parts.ra.deg;
+      decDeg = parts.dec.deg;
+      positions = "cds-parts";
+      units.ra = "h:m:s";
+      units.dec = "d:m:s";
+      const raName = parts.names.filter((x) => /^ra/i.test(x)).join(" ");
+      const decName = parts.names.filter((x) => /^de/i.test(x)).join(" ");
+      for (let i = 0; i < n; i++) {
+        for (const [name, col] of [[raName, parts.ra], [decName, parts.dec]] as const) {
+          const r = col.reasons[i];
+          if (r === undefined) continue;
+          bad[i] = 1;
+          const text = r === "is empty" ? `${word} ${rows[i]}: columns ${name}: missing value` : `${word} ${rows[i]}: columns ${name}: ${r}`;
+          reasons[i] = reasons[i] ? `${reasons[i]}; ${text}` : text;
+        }
+      }
+      notes.push(`positions: from the sexagesimal parts ${parts.names.join(" ")}`);
+    }
+  }
+  if (positions === "none" && n > 0) notes.push("no sky positions (no ra/dec, glon/glat or RAh..DEs columns)");
+
+  const missing = (options.require ?? []).filter((r) => {
+    if (r === "ra" || r === "dec") return positions === "none";
+    return roles[r] === undefined;
+  });
+  if (missing.length > 0) {
+    const names = table.schema.fields.map((f) => f.name).join(", ");
+    throw new PeculiarError("column", `no column for ${missing.join(", ")} (name one with --col ROLE=NAME)`, {
+      file,
+      expected: `the columns are ${names}`,
+    });
+  }
+
+  let badPositions = 0;
+  for (let i = 0; i < n; i++) if (bad[i]) badPositions++;
+  let out = flagRows(table, bad, reasons);
+  out = withSchemaMetadata(out, setJsonMeta(out.schema.metadata, META.roles, roles));
+  return { table: out, roles, raDeg, decDeg, units, positions, badPositions, notes, file };
+}
+
+/** readTable + prepareCatalogue. */
+export async function loadCatalogue(path: string, options: LoadOptions = {}): Promise<Catalogue> {
+  const read: { format?: FormatName; hdu?: number | string } = {};
+  if (options.format !== undefined) read.format = options.format;
+  if (options.hdu !== undefined) read.hdu = options.hdu;
+  const table = await readTable(path, read);
+  const prep: PrepareOptions = { file: path };
+  if (options.overrides) prep.overrides = options.overrides;
+  if (options.units) prep.units = options.units;
+  if (options.require) prep.require = options.require;
+  return prepareCatalogue(table, prep);
+}
