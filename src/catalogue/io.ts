@@ -7,7 +7,7 @@ import { readFile, stat } from "node:fs/promises";
 import { extname } from "node:path";
 import type { Table } from "apache-arrow";
 import { PeculiarError } from "../errors.js";
-import { writeFileAtomic } from "./atomic.js";
+import { assertNotSameFile, writeFileAtomic } from "./atomic.js";
 import { arrowFromTable, parseArrowColumns } from "./formats/arrow.js";
 import { csvFromTable, parseCsvColumns } from "./formats/csv.js";
 import { fitsFromTable, parseFitsColumns } from "./formats/fits.js";
@@ -67,6 +67,8 @@ export interface ReadOptions {
 
 export interface WriteOptions {
   format?: FormatName;
+  /** The file the table was read from: writing over it is refused (see assertNotSameFile). */
+  input?: string;
   /** Arrow: write the stream format (default for `.arrows`, else the file format). */
   stream?: boolean;
 }
@@ -145,6 +147,7 @@ export function encodeTable(table: Table, format: FormatName, options: { stream?
 }
 
 export async function writeTable(table: Table, path: string, options: WriteOptions = {}): Promise<void> {
+  if (options.input !== undefined) assertNotSameFile(options.input, path);
   const format = options.format ?? formatFromPath(path);
   const stream = options.stream ?? extname(path).toLowerCase() === ".arrows";
   let data: Uint8Array | string;

@@ -180,6 +180,13 @@ describe("atomic writes", () => {
     expect(readFileSync(path, "utf8")).toContain("g1");
   });
 
+  it("writeTable refuses to write over the input it is told about, and leaves it as it was", async () => {
+    const input = join(dir, "in.csv");
+    writeFileSync(input, "a\n1\n");
+    await expect(writeTable(sample(), input, { input })).rejects.toThrow(`${input}: output is the input file`);
+    expect(readFileSync(input, "utf8")).toBe("a\n1\n");
+  });
+
   it("refuses to write over the input, also through a link", () => {
     const input = join(dir, "rt.csv");
     expect(() => assertNotSameFile(input, input)).toThrow("output is the input file");

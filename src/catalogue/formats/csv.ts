@@ -223,6 +223,8 @@ const INT64_MAX = 2n ** 63n - 1n;
 function buildColumn(name: string, cells: (string | undefined)[], quoted: boolean[], reasons: string[], meta: ColumnMeta): ColumnData {
   const n = cells.length;
   const isNull = new Uint8Array(n);
+  // Quoted empty cells: null unless the column turns out to be text.
+  const quotedEmpty = new Uint8Array(n);
   let nonNull = 0;
   let bools = 0;
   let nums = 0;
@@ -233,6 +235,11 @@ function buildColumn(name: string, cells: (string | undefined)[], quoted: boolea
     const c = cells[i];
     if (c === undefined || (!quoted[i] && NULL_TOKENS.has(c))) {
       isNull[i] = 1;
+      continue;
+    }
+    if (c === "") {
+      isNull[i] = 1;
+      quotedEmpty[i] = 1;
       continue;
     }
     nonNull++;
@@ -297,6 +304,7 @@ function buildColumn(name: string, cells: (string | undefined)[], quoted: boolea
     return withMeta({ name, kind: "float64", values: v });
   }
   // Text: quoted empty cells are empty strings, the rest as read.
+  for (let i = 0; i < n; i++) if (quotedEmpty[i]) isNull[i] = 0;
   const v = new Array<string>(n);
   for (let i = 0; i < n; i++) v[i] = isNull[i] ? "" : cells[i]!;
   return withMeta({ name, kind: "utf8", values: v });

@@ -74,6 +74,13 @@ describe("parseCsv", () => {
     expect(cells(t, "valid")).toEqual([true, true, true, true, true]);
   });
 
+  it("reads a quoted empty cell in a numeric column as null, not as a bad number", () => {
+    const t = parseCsv('a,s\n1,x\n"",""\n3,z\n', { file });
+    expect(cells(t, "a")).toEqual([1, null, 3]);
+    expect(cells(t, "s")).toEqual(["x", "", "z"]);
+    expect(cells(t, "valid")).toEqual([true, true, true]);
+  });
+
   it("keeps a mostly numeric column numeric, nulls its bad cell and flags the row", () => {
     const t = parseCsv("id,cz\ng1,100\ng2,abc\ng3,300\ng4,400\n", { file });
     expect(columnDataOf(t, "cz").kind).toBe("int32");
