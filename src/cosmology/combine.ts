@@ -35,6 +35,8 @@ export interface CombineOptions {
 export interface CatalogueOffset {
   column: string;
   errColumn: string;
+  /** The reference catalogue's own entry (offset 0; nShared = its usable moduli). */
+  isReference: boolean;
   /** mu(column) - mu(reference), weighted mean over shared galaxies, mag. */
   offsetMag: number;
   offsetErrMag: number;
@@ -107,18 +109,26 @@ export function combineDistances(table: Table, o: CombineOptions): { table: Tabl
   const errs = errNames.map((c) => float64Column(table, c));
   const notes: string[] = [];
   const offsets: CatalogueOffset[] = o.muColumns.map((c, k) => {
+    if (k === ref) {
+      // The reference against itself: zero by definition; nShared counts its usable moduli.
+      let m = 0;
+      for (let i = 0; i < mus[k]!.length; i++) if (Number.isFinite(mus[k]![i]!) && errs[k]![i]! > 0) m++;
+      const kappa = o.kappa ?? 3;
+      return { column: c, errColumn: errNames[k]!, isReference: true, offsetMag: 0, offsetErrMag: 0, nShared: m, chi2Dof: NaN, scatterMag: NaN, medianMag: 0, clippedOffsetMag: 0, clippedOffsetErrMag: 0, nRejected: 0, kappa, appliedMag: 0 };
+    }
     const r = zeroPointOffset(mus[ref]!, errs[ref]!, mus[k]!, errs[k]!, o.kappa !== undefined ? { kappa: o.kappa } : {});
     let appliedMag = 0;
-    if (o.apply && k !== ref) {
+    if (o.apply) {
       if (r.nShared > 0) appliedMag = r.offsetMag;
       else notes.push(`${c} shares no galaxy with the reference ${o.muColumns[ref]}: its offset is unknown and not applied`);
     }
-    if (k !== ref && r.nShared > 1 && Math.abs(r.offsetMag - r.clippedOffsetMag) > 2 * r.offsetErrMag) {
+    if (r.nShared > 1 && Math.abs(r.offsetMag - r.clippedOffsetMag) > 2 * r.offsetErrMag) {
       notes.push(`${c}: the clipped offset (${r.clippedOffsetMag.toFixed(3)} mag, ${r.nRejected} rejected) differs from the plain one (${r.offsetMag.toFixed(3)}) by more than 2 sigma; check for wrong cross-identifications`);
     }
     return {
       column: c,
       errColumn: errNames[k]!,
+      isReference: false,
       offsetMag: r.offsetMag,
       offsetErrMag: r.offsetErrMag,
       nShared: r.nShared,
