@@ -2,3 +2,4 @@ export * from "./mock.js";
 export * from "./hubble.js";
 export * from "./recentre.js";
 export * from "./bulkflow.js";
+export * from "./outliers.js";
