@@ -9,6 +9,10 @@ import { PeculiarError } from "../../errors.js";
 import { finishTable, type ParsedColumns } from "./table.js";
 
 export function parseArrowColumns(bytes: Uint8Array, options: { file: string }): ParsedColumns {
+  const magic = (at: number) => String.fromCharCode(...bytes.subarray(at, at + 6)) === "ARROW1";
+  if (magic(0) && (bytes.length < 12 || !magic(bytes.length - 6))) {
+    throw new PeculiarError("format", "truncated: Arrow IPC file does not end with its ARROW1 footer", { file: options.file });
+  }
   let table: Table;
   try {
     table = tableFromIPC(bytes);
