@@ -8,3 +8,4 @@ export * from "./radius.js";
 export * from "./select.js";
 export * from "./match.js";
 export * from "./dedupe.js";
+export * from "./diagnostics.js";

@@ -48,3 +48,13 @@ export function matchBlock(a: SkyPoints, b: SkyPoints, radiusRad: number, out: P
   if (index.length === 0) return;
   queryZoneIndex(index, sortQueries(grid, a, queryRows), radiusRad, out);
 }
+
+/** For each row of a, the number of rows of b within radiusRad (NaN rows: 0). */
+export function countWithin(a: SkyPoints, b: SkyPoints, radiusRad: number, rowsPerCell = DEFAULT_ROWS_PER_CELL): Int32Array {
+  const counts = new Int32Array(a.length);
+  if (b.length === 0 || a.length === 0) return counts;
+  const grid = makeZoneGrid(chooseCellRad(radiusRad / 2, b.length, occupiedAreaSr(b), rowsPerCell));
+  const index = buildZoneIndex(grid, b);
+  queryZoneIndex(index, sortQueries(grid, a), radiusRad, counts);
+  return counts;
+}

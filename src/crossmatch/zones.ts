@@ -289,11 +289,14 @@ export class PairBuffer {
 }
 
 /**
- * Every (query row, indexed row) pair with exact separation <= radiusRad, appended to `out`.
+ * Every (query row, indexed row) pair with exact separation <= radiusRad, appended to `out`
+ * (or, when `out` is an Int32Array indexed by query row, only counted there).
  * Queries are visited in their sorted (cell) order, so consecutive queries read neighbouring memory.
  * Pairs come out grouped by query row, in no particular order within a row.
  */
-export function queryZoneIndex(index: ZoneIndex, q: SortedQueries, radiusRad: number, out: PairBuffer): void {
+export function queryZoneIndex(index: ZoneIndex, q: SortedQueries, radiusRad: number, out: PairBuffer | Int32Array): void {
+  const counts = out instanceof Int32Array ? out : null;
+  const buffer = out instanceof PairBuffer ? out : null;
   if (!(radiusRad >= 0)) throw new Error(`radius must be >= 0 radians (got ${radiusRad})`);
   const grid = index.grid;
   const { nZones, nRa, raScale, zoneBase, zoneHeightRad } = grid;
@@ -380,7 +383,10 @@ export function queryZoneIndex(index: ZoneIndex, q: SortedQueries, radiusRad: nu
           const dz = bzk - az;
           if (dx * dx + dy * dy + dz * dz > chord2) continue;
           const sep = angleBetween(ax, ay, az, bxk, byk, bzk);
-          if (sep <= R) out.push(row, rowOf[k]!, sep);
+          if (sep <= R) {
+            if (counts) counts[row]!++;
+            else buffer!.push(row, rowOf[k]!, sep);
+          }
         }
       }
     }
