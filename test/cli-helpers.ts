@@ -4,7 +4,7 @@
  * dist/cli.js is newer than every file in src/), then `runCli([...])`.
  */
 import { spawnSync } from "node:child_process";
-import { existsSync, mkdtempSync, readdirSync, rmSync, statSync } from "node:fs";
+import { existsSync, mkdirSync, mkdtempSync, readdirSync, rmSync, statSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { dirname, join, resolve } from "node:path";
 import { fileURLToPath } from "node:url";
@@ -49,13 +49,41 @@ function newestMtime(dir: string): number {
 
 let built = false;
 
-/** Builds dist/ with `npm run build` unless dist/cli.js is newer than src/ (once per process). */
+const isFresh = () => existsSync(CLI) && statSync(CLI).mtimeMs >= newestMtime(join(ROOT, "src"));
+const sleep = (ms: number) => Atomics.wait(new Int32Array(new SharedArrayBuffer(4)), 0, 0, ms);
+
+/**
+ * Builds dist/ with `npm run build` unless dist/cli.js is newer than src/ (once per process).
+ * Test files run in parallel processes: a lock folder makes one build while the others wait.
+ */
 export function buildOnce(): void {
   if (built) return;
-  const fresh = existsSync(CLI) && statSync(CLI).mtimeMs >= newestMtime(join(ROOT, "src"));
-  if (!fresh) {
-    const r = spawnSync("npm", ["run", "build", "--silent"], { cwd: ROOT, encoding: "utf8" });
-    if (r.status !== 0) throw new Error(`npm run build failed:\n${r.stdout}\n${r.stderr}`);
+  const lock = join(ROOT, "dist", ".build-lock");
+  const deadline = Date.now() + 120_000;
+  while (!isFresh()) {
+    try {
+      mkdirSync(join(ROOT, "dist"), { recursive: true });
+      mkdirSync(lock);
+    } catch {
+      // Another process builds; a lock older than two minutes is stale.
+      try {
+        if (Date.now() - statSync(lock).mtimeMs > 120_000) rmSync(lock, { recursive: true, force: true });
+      } catch {
+        /* gone meanwhile */
+      }
+      if (Date.now() > deadline) throw new Error("timed out waiting for another test process to build dist/");
+      sleep(200);
+      continue;
+    }
+    try {
+      if (!isFresh()) {
+        const r = spawnSync("npm", ["run", "build", "--silent"], { cwd: ROOT, encoding: "utf8" });
+        if (r.status !== 0) throw new Error(`npm run build failed:\n${r.stdout}\n${r.stderr}`);
+      }
+    } finally {
+      rmSync(lock, { recursive: true, force: true });
+    }
+    break;
   }
   built = true;
 }
