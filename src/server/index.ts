@@ -1,0 +1,2 @@
+export * from "./sidecars.js";
+export * from "./view-server.js";

@@ -1,0 +1,79 @@
+/**
+ * Headless Chromium for the browser tests and the benchmark: Debian's /usr/bin/chromium driven by
+ * playwright-core, a fresh profile folder per launch (removed on close), no network services of its own.
+ */
+import { chromium, type BrowserContext, type Page } from "playwright-core";
+import { existsSync, mkdtempSync, readdirSync, rmSync, statSync } from "node:fs";
+import { spawnSync } from "node:child_process";
+import { ROOT } from "../cli-helpers.js";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
+
+export const CHROMIUM = process.env.PECULIAR_CHROMIUM ?? "/usr/bin/chromium";
+
+export const CHROMIUM_ARGS = [
+  "--headless",
+  "--no-sandbox",
+  "--disable-gpu",
+  "--disable-background-networking",
+  "--disable-component-update",
+  "--disable-sync",
+  "--no-first-run",
+];
+
+export interface Browser {
+  context: BrowserContext;
+  newPage(): Promise<Page>;
+  close(): Promise<void>;
+}
+
+export async function launchBrowser(viewport = { width: 1600, height: 1400 }): Promise<Browser> {
+  const profile = mkdtempSync(join(tmpdir(), "peculiar-chromium-"));
+  const context = await chromium.launchPersistentContext(profile, {
+    executablePath: CHROMIUM,
+    headless: true,
+    args: CHROMIUM_ARGS,
+    viewport,
+    acceptDownloads: true,
+  });
+  return {
+    context,
+    newPage: () => context.newPage(),
+    close: async () => {
+      await context.close();
+      rmSync(profile, { recursive: true, force: true });
+    },
+  };
+}
+
+/** Console errors and page errors collected from a page, for the "no console errors" check. */
+export function collectErrors(page: Page): string[] {
+  const errors: string[] = [];
+  page.on("console", (m) => {
+    if (m.type() === "error") errors.push(m.text());
+  });
+  page.on("pageerror", (e) => errors.push(String(e)));
+  return errors;
+}
+
+
+function newestMtime(dir: string): number {
+  let t = 0;
+  for (const e of readdirSync(dir, { withFileTypes: true })) {
+    const p = join(dir, e.name);
+    t = Math.max(t, e.isDirectory() ? newestMtime(p) : statSync(p).mtimeMs);
+  }
+  return t;
+}
+
+/** Builds dist/ (CLI and page) unless dist/web/app.js and dist/cli.js are newer than src/ and web/. */
+export function buildWebOnce(): void {
+  const app = join(ROOT, "dist", "web", "app.js");
+  const cli = join(ROOT, "dist", "cli.js");
+  const newest = Math.max(newestMtime(join(ROOT, "src")), newestMtime(join(ROOT, "web")));
+  if (existsSync(app) && existsSync(cli) && Math.min(statSync(app).mtimeMs, statSync(cli).mtimeMs) >= newest) return;
+  const r = spawnSync(process.execPath, ["scripts/build.mjs"], { cwd: ROOT, encoding: "utf8" });
+  if (r.status !== 0) throw new Error(`build failed:\n${r.stdout}\n${r.stderr}`);
+}
+
+export const ARTIFACTS = join(ROOT, "test-artifacts");

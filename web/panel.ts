@@ -1,0 +1,193 @@
+/**
+ * A plot panel: points on a canvas, axes, graticules and legends in an SVG overlay on top, and the
+ * pointer handling every panel shares. Drag draws a selection rectangle (linked brushing), a click
+ * on a galaxy re-centres on it, hovering shows the tooltip. Picking goes through the library's
+ * PlaneIndex over the screen positions of the drawn points, built lazily after each draw.
+ */
+import * as d3 from "d3";
+import { PlaneIndex } from "../src/crossmatch/plane-index.js";
+import type { ViewState } from "./state.js";
+import type { BinnedColours } from "./colour.js";
+import { BACKGROUND } from "./colour.js";
+
+/** How far (CSS px) from a point a click or hover still picks it. */
+export const PICK_RADIUS_PX = 7;
+/** A drag shorter than this (CSS px) is a click. */
+const DRAG_THRESHOLD_PX = 4;
+
+export interface PanelActions {
+  recentreOn(row: number): void;
+  select(rows: Int32Array): void;
+  hover(row: number, clientX: number, clientY: number): void;
+}
+
+export type SvgSel = d3.Selection<SVGSVGElement, unknown, null, undefined>;
+export type GSel = d3.Selection<SVGGElement, unknown, null, undefined>;
+
+export abstract class CanvasPanel {
+  readonly root: HTMLElement;
+  readonly body: HTMLDivElement;
+  readonly canvas: HTMLCanvasElement;
+  readonly ctx: CanvasRenderingContext2D;
+  readonly svg: SvgSel;
+  /** Redrawn on every draw. */
+  readonly layer: GSel;
+  /** The selection rectangle while dragging. */
+  private readonly brushRect: d3.Selection<SVGRectElement, unknown, null, undefined>;
+  readonly footer: HTMLElement;
+  readonly name: string;
+  width = 0;
+  height = 0;
+  /** Screen position (CSS px, panel coordinates) of each row as drawn; NaN when not drawn. */
+  px: Float64Array;
+  py: Float64Array;
+  /** Number of galaxies drawn in the last draw. */
+  drawn = 0;
+  /** Colour bins of the last draw (export re-uses them for vector points). */
+  bins: BinnedColours | null = null;
+  pointRadius = 1.5;
+  private index: PlaneIndex | null = null;
+
+  constructor(
+    parent: HTMLElement,
+    readonly state: ViewState,
+    readonly actions: PanelActions,
+    opts: { id: string; title: string; tools?: HTMLElement[] },
+  ) {
+    this.name = opts.id;
+    const n = state.data.n;
+    this.px = new Float64Array(n).fill(NaN);
+    this.py = new Float64Array(n).fill(NaN);
+    this.root = document.createElement("section");
+    this.root.className = "panel";
+    this.root.id = `panel-${opts.id}`;
+    const head = document.createElement("header");
+    const h = document.createElement("h2");
+    h.textContent = opts.title;
+    head.appendChild(h);
+    const tools = document.createElement("div");
+    tools.className = "tools";
+    for (const t of opts.tools ?? []) tools.appendChild(t);
+    head.appendChild(tools);
+    this.root.appendChild(head);
+    this.body = document.createElement("div");
+    this.body.className = "plot";
+    this.canvas = document.createElement("canvas");
+    this.body.appendChild(this.canvas);
+    this.ctx = this.canvas.getContext("2d")!;
+    this.svg = d3.select(this.body).append("svg").attr("class", "overlay").attr("xmlns", "http://www.w3.org/2000/svg");
+    this.layer = this.svg.append("g");
+    this.brushRect = this.svg.append("rect").attr("class", "brush").attr("display", "none");
+    this.root.appendChild(this.body);
+    this.footer = document.createElement("footer");
+    this.root.appendChild(this.footer);
+    parent.appendChild(this.root);
+    this.attachPointer();
+  }
+
+  /** Fills px/py for the rows it draws, draws the canvas and the overlay; returns the number drawn. */
+  protected abstract draw(ctx: CanvasRenderingContext2D): number;
+
+  render(): void {
+    const w = Math.max(50, Math.floor(this.body.clientWidth));
+    const h = Math.max(50, Math.floor(this.body.clientHeight));
+    const dpr = window.devicePixelRatio || 1;
+    if (w !== this.width || h !== this.height || this.canvas.width !== Math.round(w * dpr)) {
+      this.width = w;
+      this.height = h;
+      this.canvas.width = Math.round(w * dpr);
+      this.canvas.height = Math.round(h * dpr);
+      this.canvas.style.width = `${w}px`;
+      this.canvas.style.height = `${h}px`;
+      this.svg.attr("width", w).attr("height", h).attr("viewBox", `0 0 ${w} ${h}`);
+    }
+    const ctx = this.ctx;
+    ctx.setTransform(dpr, 0, 0, dpr, 0, 0);
+    ctx.fillStyle = BACKGROUND;
+    ctx.fillRect(0, 0, w, h);
+    this.px.fill(NaN);
+    this.py.fill(NaN);
+    this.layer.selectAll("*").remove();
+    this.drawn = this.draw(ctx);
+    this.index = null;
+    this.root.dataset.drawn = String(this.drawn);
+  }
+
+  /** The drawn row nearest to (x, y) within r CSS px, or -1. */
+  pick(x: number, y: number, r = PICK_RADIUS_PX): number {
+    if (!this.index) this.index = new PlaneIndex(this.px, this.py);
+    return this.index.nearest(x, y, r);
+  }
+
+  rowsIn(x0: number, y0: number, x1: number, y1: number): Int32Array {
+    if (!this.index) this.index = new PlaneIndex(this.px, this.py);
+    return this.index.within(Math.min(x0, x1), Math.min(y0, y1), Math.max(x0, x1), Math.max(y0, y1));
+  }
+
+  /** Where row i was drawn, in page coordinates (for tests and the tooltip), or null. */
+  clientPosition(row: number): { x: number; y: number } | null {
+    const x = this.px[row]!;
+    const y = this.py[row]!;
+    if (!Number.isFinite(x) || !Number.isFinite(y)) return null;
+    const r = this.canvas.getBoundingClientRect();
+    return { x: r.left + x, y: r.top + y };
+  }
+
+  private attachPointer(): void {
+    const el = this.svg.node()!;
+    let start: [number, number] | null = null;
+    let dragging = false;
+    const local = (e: PointerEvent): [number, number] => {
+      const r = el.getBoundingClientRect();
+      return [e.clientX - r.left, e.clientY - r.top];
+    };
+    el.addEventListener("pointerdown", (e) => {
+      if (e.button !== 0) return;
+      start = local(e);
+      dragging = false;
+      el.setPointerCapture(e.pointerId);
+    });
+    el.addEventListener("pointermove", (e) => {
+      const p = local(e);
+      if (start) {
+        if (!dragging && Math.hypot(p[0] - start[0], p[1] - start[1]) > DRAG_THRESHOLD_PX) dragging = true;
+        if (dragging) {
+          this.brushRect
+            .attr("display", null)
+            .attr("x", Math.min(start[0], p[0]))
+            .attr("y", Math.min(start[1], p[1]))
+            .attr("width", Math.abs(p[0] - start[0]))
+            .attr("height", Math.abs(p[1] - start[1]));
+        }
+        return;
+      }
+      this.actions.hover(this.pick(p[0], p[1]), e.clientX, e.clientY);
+    });
+    el.addEventListener("pointerup", (e) => {
+      if (!start) return;
+      const p = local(e);
+      if (dragging) {
+        this.brushRect.attr("display", "none");
+        this.actions.select(this.rowsIn(start[0], start[1], p[0], p[1]));
+      } else {
+        const row = this.pick(p[0], p[1]);
+        if (row >= 0) this.actions.recentreOn(row);
+      }
+      start = null;
+      dragging = false;
+    });
+    el.addEventListener("pointerleave", () => {
+      if (!start) this.actions.hover(-1, 0, 0);
+    });
+  }
+}
+
+/** A small button for a panel's tool bar. */
+export function toolButton(label: string, title: string, onClick: () => void): HTMLButtonElement {
+  const b = document.createElement("button");
+  b.type = "button";
+  b.textContent = label;
+  b.title = title;
+  b.addEventListener("click", onClick);
+  return b;
+}

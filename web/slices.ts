@@ -1,0 +1,157 @@
+/**
+ * Slices through the supergalactic Cartesian volume, centred on the current origin: the SGX-SGY plane
+ * and the other two, each a slab |third coordinate| <= thickness / 2. Each galaxy is a dot with a line
+ * along the direction from the origin, of length u / H Mpc (u = radial peculiar velocity seen from the
+ * origin; outward = receding), coloured on the sky map's scale.
+ */
+import * as d3 from "d3";
+import { CanvasPanel, type PanelActions } from "./panel.js";
+import type { ViewState } from "./state.js";
+import { BACKGROUND, binByColour, FAINT_INK, INK, N_BINS, ORIGIN_MARK, type VelocityScale } from "./colour.js";
+import { drawMarks, drawPointsWithSelection } from "./draw.js";
+
+export type Plane = "xy" | "xz" | "yz";
+const AXES: Record<Plane, [0 | 1 | 2, 0 | 1 | 2, 0 | 1 | 2]> = { xy: [0, 1, 2], xz: [0, 2, 1], yz: [1, 2, 0] };
+const NAMES = ["SGX", "SGY", "SGZ"];
+const M = { left: 44, right: 10, top: 22, bottom: 34 };
+
+/** Half-width of the slices' square window, Mpc: the 99th percentile of |coordinate| about the origin. */
+export function sliceExtentMpc(x: Float64Array, y: Float64Array, z: Float64Array): number {
+  const v: number[] = [];
+  for (let i = 0; i < x.length; i++) {
+    const m = Math.max(Math.abs(x[i]!), Math.abs(y[i]!), Math.abs(z[i]!));
+    if (Number.isFinite(m)) v.push(m);
+  }
+  if (v.length === 0) return 100;
+  v.sort((a, b) => a - b);
+  return Math.max(1, d3.quantileSorted(v, 0.99)! * 1.05);
+}
+
+export class SlicePanel extends CanvasPanel {
+  readonly plane: Plane;
+  readonly scale: VelocityScale;
+  /** Cached extent for the origin it was computed for. */
+  private extent: { origin: unknown; mpc: number } | null = null;
+
+  constructor(parent: HTMLElement, state: ViewState, actions: PanelActions, scale: VelocityScale, plane: Plane, tools: HTMLElement[]) {
+    const [a, b, c] = AXES[plane];
+    super(parent, state, actions, { id: `slice-${plane}`, title: `${NAMES[a]}–${NAMES[b]} slice (|${NAMES[c]}| ≤ half the slab)`, tools });
+    this.plane = plane;
+    this.scale = scale;
+    this.pointRadius = 1.3;
+  }
+
+  protected draw(ctx: CanvasRenderingContext2D): number {
+    const st = this.state;
+    const d = st.data;
+    const o = st.origin;
+    const [ia, ib, ic] = AXES[this.plane];
+    const cols = [o.x, o.y, o.z];
+    const A = cols[ia]!;
+    const B = cols[ib]!;
+    const C = cols[ic]!;
+    if (!this.extent || this.extent.origin !== o) this.extent = { origin: o, mpc: sliceExtentMpc(o.x, o.y, o.z) };
+    const R = this.extent.mpc;
+    const w = this.width;
+    const h = this.height;
+    const side = Math.max(10, Math.min(w - M.left - M.right, h - M.top - M.bottom));
+    const cx = M.left + (w - M.left - M.right) / 2;
+    const cy = M.top + (h - M.top - M.bottom) / 2;
+    const sx = d3.scaleLinear().domain([-R, R]).range([cx - side / 2, cx + side / 2]);
+    const sy = d3.scaleLinear().domain([-R, R]).range([cy + side / 2, cy - side / 2]);
+    const half = st.slabMpc / 2;
+    const H = Number.isFinite(o.h0) ? o.h0 : d.h0;
+    const px = this.px;
+    const py = this.py;
+    const inSlab = new Uint8Array(d.n);
+    let unknown = 0;
+    for (let i = 0; i < d.n; i++) {
+      const a = A[i]!;
+      const b = B[i]!;
+      const c = C[i]!;
+      if (!Number.isFinite(a + b + c)) {
+        unknown++;
+        continue;
+      }
+      if (Math.abs(c) > half || Math.abs(a) > R || Math.abs(b) > R) continue;
+      px[i] = sx(a);
+      py[i] = sy(b);
+      inSlab[i] = 1;
+    }
+    ctx.save();
+    ctx.beginPath();
+    ctx.rect(sx(-R), sy(R), side, side);
+    ctx.clip();
+    ctx.fillStyle = "#171b22";
+    ctx.fillRect(sx(-R), sy(R), side, side);
+    // Velocity lines, one stroke per colour bin.
+    const bins = binByColour(o.u, this.scale, inSlab);
+    const k = side / (2 * R) / H; // px per km/s: u / H Mpc times px per Mpc
+    ctx.lineWidth = 1;
+    ctx.globalAlpha = st.nSelected > 0 ? 0.35 : 0.9;
+    for (let bn = 0; bn < N_BINS; bn++) {
+      const s0 = bins.start[bn]!;
+      const s1 = bins.start[bn + 1]!;
+      if (s0 === s1) continue;
+      ctx.strokeStyle = bins.colours[bn]!;
+      ctx.beginPath();
+      for (let q = s0; q < s1; q++) {
+        const i = bins.order[q]!;
+        const s = o.s[i]!;
+        const u = o.u[i]!;
+        if (!(s > 0) || !Number.isFinite(u)) continue;
+        const L = (u * k) / s;
+        ctx.moveTo(px[i]!, py[i]!);
+        ctx.lineTo(px[i]! + A[i]! * L, py[i]! - B[i]! * L);
+      }
+      ctx.stroke();
+    }
+    ctx.globalAlpha = 1;
+    const { drawn } = drawPointsWithSelection(ctx, st, px, py, o.u, this.scale, this.pointRadius);
+    this.bins = binByColour(o.u, this.scale, inSlab);
+    drawMarks(ctx, st, px, py, this.pointRadius);
+    // The origin, and us when re-centred.
+    ctx.strokeStyle = ORIGIN_MARK;
+    ctx.lineWidth = 1.5;
+    ctx.beginPath();
+    ctx.moveTo(sx(0) - 7, sy(0));
+    ctx.lineTo(sx(0) + 7, sy(0));
+    ctx.moveTo(sx(0), sy(0) - 7);
+    ctx.lineTo(sx(0), sy(0) + 7);
+    ctx.stroke();
+    if (o.kind !== "home") {
+      const us = [-o.ox, -o.oy, -o.oz];
+      ctx.strokeStyle = INK;
+      ctx.beginPath();
+      ctx.arc(sx(us[ia]!), sy(us[ib]!), 5, 0, 2 * Math.PI);
+      ctx.stroke();
+    }
+    ctx.restore();
+    ctx.fillStyle = BACKGROUND;
+
+    const g = this.layer;
+    g.append("g")
+      .attr("transform", `translate(0,${sy(-R)})`)
+      .call(d3.axisBottom(sx).ticks(5))
+      .call((s) => s.selectAll("text").attr("fill", INK))
+      .call((s) => s.selectAll("line,path").attr("stroke", FAINT_INK));
+    g.append("g")
+      .attr("transform", `translate(${sx(-R)},0)`)
+      .call(d3.axisLeft(sy).ticks(5))
+      .call((s) => s.selectAll("text").attr("fill", INK))
+      .call((s) => s.selectAll("line,path").attr("stroke", FAINT_INK));
+    const rel = o.kind === "home" ? "" : " − origin";
+    g.append("text").attr("x", cx).attr("y", h - 4).attr("text-anchor", "middle").attr("fill", INK).text(`${NAMES[ia]}${rel} (Mpc)`);
+    g.append("text").attr("transform", `translate(11,${cy}) rotate(-90)`).attr("text-anchor", "middle").attr("fill", INK).text(`${NAMES[ib]}${rel} (Mpc)`);
+    g.append("text")
+      .attr("x", sx(-R) + 6)
+      .attr("y", sy(R) + 14)
+      .attr("fill", INK)
+      .attr("font-size", 10)
+      .text(`slab ${st.slabMpc.toFixed(0)} Mpc · ${o.kind === "home" ? "origin: here" : "origin: " + o.label + " (○ = us)"}`);
+    this.root.dataset.inSlab = String(drawn);
+    this.footer.textContent = `${drawn} in the slab${unknown ? `, ${unknown} with unknown position` : ""} · line: u/H Mpc along the line of sight from the origin, outward = receding`;
+    this.footer.title = "Each line is the radial peculiar velocity u seen from the origin, drawn as the distance u/H it is worth, along the direction from the origin (outward = receding, inward = approaching).";
+    return drawn;
+  }
+}
