@@ -3,3 +3,4 @@ export * from "./hubble.js";
 export * from "./recentre.js";
 export * from "./bulkflow.js";
 export * from "./outliers.js";
+export * from "./fof.js";
