@@ -54,10 +54,16 @@ export function finishTable(parsed: ParsedColumns, info: SourceInfo): Table {
   let reason: ColumnData | undefined;
   let sourceRow: ColumnData | undefined;
   for (const c of parsed.columns) {
-    if (c.name === VALID && c.kind === "bool") valid = c;
-    else if (c.name === INVALID_REASON && c.kind === "utf8") reason = c;
-    else if (c.name === SOURCE_ROW && INT_KINDS.has(c.kind)) sourceRow = c;
-    else if (c.name === VALID || c.name === INVALID_REASON || c.name === SOURCE_ROW) {
+    if (c.name === VALID && c.kind === "bool") {
+      valid = c;
+      continue;
+    } else if (c.name === INVALID_REASON && c.kind === "utf8") {
+      reason = c;
+      continue;
+    } else if (c.name === SOURCE_ROW && INT_KINDS.has(c.kind)) {
+      sourceRow = c;
+      continue;
+    } else if (c.name === VALID || c.name === INVALID_REASON || c.name === SOURCE_ROW) {
       // Same name, other type: the file's column is kept under a free name.
       const renamed = freeName(c.name, taken);
       taken.add(renamed);
