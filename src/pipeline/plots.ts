@@ -52,10 +52,12 @@ export function hubbleDiagramSvg(p: HubblePlotInput): string {
   s += text(left, 20, `${title}: ${nOk} galaxies${nOk < n ? ` (${n - nOk} without distance or velocity not drawn)` : ""}`, `font-weight="bold"`);
   if (nOk === 0) return s + emptyNote(W / 2, H / 2, "no galaxy with both a distance and a velocity") + svgClose();
 
-  const dExt = finiteExtent(p.distMpc, ok)!;
+  // Axis ranges from the bulk of the points: a few blunders at 5x the distance would squash the rest.
+  const dMax = robustMax(p.distMpc, ok);
   const vExt = finiteExtent(p.velKmS, ok)!;
-  const x = d3.scaleLinear().domain([0, dExt[1]]).nice().range([left, right]);
+  const x = d3.scaleLinear().domain([0, dMax]).nice().range([left, right]);
   const y = d3.scaleLinear().domain([Math.min(0, vExt[0]), vExt[1]]).nice().range([bottom1, top1]);
+  let beyond = 0;
   const uLim = symmetricLimit(p.vPecKmS, ok, 0.99);
   const yr = d3.scaleLinear().domain([-uLim, uLim]).nice().range([bottom2, top2]);
   const clampR = (v: number) => Math.max(yr.domain()[0]!, Math.min(yr.domain()[1]!, v));
@@ -70,6 +72,10 @@ export function hubbleDiagramSvg(p: HubblePlotInput): string {
   let rdots = "";
   for (let i = 0; i < n; i++) {
     if (!ok[i]) continue;
+    if (p.distMpc[i]! > x.domain()[1]!) {
+      beyond++;
+      continue;
+    }
     const cx = x(p.distMpc[i]!);
     const cy = y(p.velKmS[i]!);
     const ry = yr(clampR(p.vPecKmS[i]!));
@@ -98,10 +104,12 @@ export function hubbleDiagramSvg(p: HubblePlotInput): string {
     s += `<path class="truth-line" d="${line(p.h0Truth)}" stroke="#c2461b" stroke-width="1.2" stroke-dasharray="5,4" fill="none"/>\n`;
   }
   s += `<path class="zero-line" d="M${px(left)},${px(yr(0))}H${px(right)}" stroke="#111" stroke-width="1" fill="none"/>\n`;
-  let key = `fit H0 = ${fmt(p.h0, 2)} km/s/Mpc`;
-  if (p.h0Truth !== undefined) key += `   injected H0 = ${fmt(p.h0Truth, 2)} (dashed)`;
-  if (p.outlier) key += `   x = flagged outlier`;
-  s += text(left + 8, top1 + 14, key);
+  s += text(left + 8, top1 + 14, `fit H0 = ${fmt(p.h0, 2)} km/s/Mpc (solid)`);
+  if (p.h0Truth !== undefined) s += text(left + 8, top1 + 28, `injected H0 = ${fmt(p.h0Truth, 2)} km/s/Mpc (dashed)`);
+  const extras: string[] = [];
+  if (p.outlier) extras.push("x = flagged outlier");
+  if (beyond > 0) extras.push(`${beyond} beyond ${fmt(x.domain()[1]!, 0)} Mpc not drawn`);
+  if (extras.length) s += text(left + 8, top1 + 42, extras.join("; "));
   return s + svgClose();
 }
 
@@ -127,7 +135,7 @@ export interface SkyPlotInput {
 /** Galactic-coordinate sky map, longitude increasing to the left, l = 0 at the centre. */
 export function skyMapSvg(p: SkyPlotInput): string {
   const W = 720;
-  const H = 430;
+  const H = 460;
   const title = p.title ?? "Peculiar velocities on the sky (Galactic)";
   const n = p.lDeg.length;
   const ok = new Uint8Array(n);
@@ -138,7 +146,7 @@ export function skyMapSvg(p: SkyPlotInput): string {
       nOk++;
     }
   }
-  const proj = geoHammer().reflectX(true).fitExtent([[20, 30], [W - 20, H - 70]], { type: "Sphere" });
+  const proj = geoHammer().reflectX(true).fitExtent([[20, 30], [W - 20, H - 95]], { type: "Sphere" });
   const path = d3.geoPath(proj);
   let s = svgOpen(W, H, title);
   s += text(20, 18, `${title}: ${nOk} galaxies`, `font-weight="bold"`);
@@ -175,7 +183,7 @@ export function skyMapSvg(p: SkyPlotInput): string {
   // Legend: a horizontal colour bar with ticks at -lim, 0, +lim.
   const lx0 = W / 2 - 150;
   const lx1 = W / 2 + 150;
-  const ly = H - 48;
+  const ly = H - 78;
   const stops = d3.range(0, 1.0001, 0.1).map((t) => `<stop offset="${px(t * 100)}%" stop-color="${colour(-lim + 2 * lim * t)}"/>`).join("");
   s += `<defs><linearGradient id="vpec-scale">${stops}</linearGradient></defs>\n`;
   s += `<rect x="${lx0}" y="${ly}" width="${lx1 - lx0}" height="10" fill="url(#vpec-scale)" stroke="#333" stroke-width="0.5"/>\n`;
@@ -236,6 +244,16 @@ export function separationHistogramSvg(p: SeparationPlotInput): string {
     s += text(right - 4, top + 14, `expected chance pairs: ${fmt(p.expectedChance, 1)} (curve)`, `text-anchor="end"`);
   }
   return s + svgClose();
+}
+
+/** 1.1 times the 99.5 % quantile of the rows in `mask`, capped at their maximum. */
+function robustMax(v: ArrayLike<number>, mask: ArrayLike<number>): number {
+  const a: number[] = [];
+  for (let i = 0; i < v.length; i++) if (mask[i] && Number.isFinite(v[i]!)) a.push(v[i]!);
+  a.sort((p, q) => p - q);
+  const q = d3.quantileSorted(a, 0.995) ?? 1;
+  const top = a[a.length - 1] ?? 1;
+  return Math.max(1e-9, Math.min(top, 1.1 * q));
 }
 
 /** A symmetric colour/axis limit: the q-quantile of |v| over the rows in `mask`, at least 1. */

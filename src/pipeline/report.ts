@@ -43,7 +43,7 @@ function fmtSig(x: number, sig: number): string {
 }
 
 function cell(v: unknown): string {
-  if (typeof v === "number") return fmtSig(v, 4);
+  if (typeof v === "number") return Number.isInteger(v) ? String(v) : fmtSig(v, 4);
   if (v === null || v === undefined) return "";
   if (typeof v === "object") return "`" + JSON.stringify(v).replace(/\|/g, "\\|") + "`";
   return String(v).replace(/\|/g, "\\|");

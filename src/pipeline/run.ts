@@ -4,7 +4,7 @@
  * writes the plots and report.md from what exists. Every file lands atomically.
  */
 import { mkdir, readFile } from "node:fs/promises";
-import { join, relative, resolve } from "node:path";
+import { join, resolve } from "node:path";
 import { PeculiarError } from "../errors.js";
 import { writeFileAtomic } from "../catalogue/atomic.js";
 import { parsePlan, type Plan } from "./plan.js";
@@ -69,7 +69,7 @@ export async function runPlan(plan: Plan, opts: RunOptions): Promise<RunResult> 
       plots: [],
     };
     if (record.failedStep) s.failedStep = record.failedStep;
-    if (plan.truth) s.truthFile = relative(outDir, plan.truth);
+    if (plan.truth) s.truthFile = plan.truth;
     if (state.finalName) s.final = state.finalName;
     return s;
   };

@@ -68,7 +68,7 @@ export async function runSteps<S>(ctx: RunContext<S>, impls: Record<StepName, St
   for (const rec of steps) {
     const name = rec.step;
     if (failed) {
-      rec.reason = `not run: step '${record.failedStep}' failed`;
+      rec.reason = `step '${record.failedStep}' failed`;
       continue;
     }
     if (!ctx.plan.enabled.has(name)) {

@@ -6,6 +6,7 @@ import { PeculiarError } from "../errors.js";
 import type { StepName } from "./plan.js";
 import type { StepImpl } from "./runner.js";
 import type { PipelineState } from "./state.js";
+import { matchStep } from "./steps/match.js";
 import { combineStep } from "./steps/combine.js";
 import { velocitiesStep } from "./steps/velocities.js";
 
@@ -14,7 +15,7 @@ function missing(step: StepName, what: string): never {
 }
 
 export const STEPS: Record<StepName, StepImpl<PipelineState>> = {
-  match: () => missing("match", "the cross-match (src/crossmatch match) or the catalogue loader (src/catalogue/load.ts)"),
+  match: matchStep,
   combine: combineStep,
   velocities: velocitiesStep,
   flag: () => missing("flag", "outlier flagging (src/flow)"),

@@ -3,12 +3,13 @@
  * rows, the zero-point offset of each catalogue against the reference from the galaxies both
  * measured, and one inverse-variance combined modulus per galaxy (src/cosmology/zeropoint.ts).
  * Columns added per catalogue ALIAS: ALIAS_id, ALIAS_mu, ALIAS_mu_err, ALIAS_sep_arcsec, ALIAS_row
- * (source row in that file); then mu_combined, mu_combined_err, n_dist, mu_chi2.
+ * (source row in that file); then combineDistances (src/cosmology/combine.ts) adds mu, mu_err, n_dist,
+ * mu_chi2 and points the mu roles at them.
  */
 import { float64Column, stringColumn, withColumns, type ColumnData } from "../../catalogue/columns.js";
-import { META, recordStep, setJsonMeta, SOURCE_ROW } from "../../catalogue/meta.js";
+import { getRoles, recordStep, SOURCE_ROW } from "../../catalogue/meta.js";
 import { validMask } from "../../catalogue/validity.js";
-import { combineModuli, zeroPointOffset } from "../../cosmology/zeropoint.js";
+import { combineDistances } from "../../cosmology/combine.js";
 import { PeculiarError } from "../../errors.js";
 import type { RunContext, StepOutcome } from "../runner.js";
 import { saveTable, withTable, type PipelineState } from "../state.js";
@@ -32,8 +33,6 @@ export async function combineStep(ctx: RunContext<PipelineState>): Promise<StepO
   const n = survey.table.numRows;
   const settings = plan.steps.combine;
   const refAlias = settings.reference ?? s.matches[0]!.alias;
-  const mus: Float64Array[] = [];
-  const errs: (Float64Array | undefined)[] = [];
   const cols: ColumnData[] = [];
   for (const m of s.matches) {
     const B = m.catalogue;
@@ -67,8 +66,6 @@ export async function combineStep(ctx: RunContext<PipelineState>): Promise<StepO
       mu[i] = muB[r]!;
       err[i] = errB ? errB[r]! : NaN;
     }
-    mus.push(mu);
-    errs.push(errB ? err : undefined);
     cols.push(
       { name: `${m.alias}_id`, kind: "utf8", values: id, nulls: idNull, meta: { description: `id in ${m.alias}` } },
       f64(`${m.alias}_mu`, mu, "mag", `distance modulus from ${m.alias} (as published; offsets are applied in mu_combined)`),
@@ -77,55 +74,28 @@ export async function combineStep(ctx: RunContext<PipelineState>): Promise<StepO
       { name: `${m.alias}_row`, kind: "int32", values: row, nulls: rowNull, meta: { description: `source row in ${m.alias}` } },
     );
   }
-  const refIndex = s.matches.findIndex((m) => m.alias === refAlias);
-  if (refIndex < 0) throw new PeculiarError("step", `the reference catalogue '${refAlias}' was not matched`);
-  const offsets: number[] = [];
-  const offsetNumbers: Record<string, unknown>[] = [];
-  s.offsets = [];
-  s.matches.forEach((m, k) => {
-    if (k === refIndex) {
-      offsets.push(0);
-      return;
-    }
-    const ea = errs[refIndex] ?? new Float64Array(n).fill(NaN);
-    const eb = errs[k] ?? new Float64Array(n).fill(NaN);
-    const zp = zeroPointOffset(mus[refIndex]!, ea, mus[k]!, eb);
-    offsets.push(settings.applyOffsets && Number.isFinite(zp.offsetMag) ? zp.offsetMag : 0);
-    s.offsets.push({ alias: m.alias, offsetMag: zp.offsetMag, errMag: zp.offsetErrMag, nShared: zp.nShared });
-    offsetNumbers.push({
-      alias: m.alias,
-      relativeTo: refAlias,
-      offsetMag: zp.offsetMag,
-      offsetErrMag: zp.offsetErrMag,
-      nShared: zp.nShared,
-      chi2Dof: zp.chi2Dof,
-      medianMag: zp.medianMag,
-      clippedOffsetMag: zp.clippedOffsetMag,
-      nRejected: zp.nRejected,
-      applied: settings.applyOffsets,
-    });
+  const meta = recordStep(new Map(survey.table.schema.metadata), "combine-inputs", { catalogues: s.matches.map((m) => m.alias) });
+  const aligned = withColumns(survey.table, cols, meta);
+  const { table, report } = combineDistances(aligned, {
+    muColumns: s.matches.map((m) => `${m.alias}_mu`),
+    errColumns: s.matches.map((m) => `${m.alias}_mu_err`),
+    reference: `${refAlias}_mu`,
+    apply: settings.applyOffsets,
+    file: survey.file,
   });
-  const comb = combineModuli(mus, errs, offsets);
-  let withDistance = 0;
-  let withSeveral = 0;
-  for (let i = 0; i < n; i++) {
-    if (comb.nDist[i]! > 0) withDistance++;
-    if (comb.nDist[i]! > 1) withSeveral++;
+  s.offsets = [];
+  const offsetNumbers: Record<string, unknown>[] = [];
+  for (const o of report.offsets) {
+    const alias = o.column.replace(/_mu$/, "");
+    if (o.isReference) continue;
+    s.offsets.push({ alias, offsetMag: o.offsetMag, errMag: o.offsetErrMag, nShared: o.nShared });
+    offsetNumbers.push({ alias, relativeTo: refAlias, offsetMag: o.offsetMag, offsetErrMag: o.offsetErrMag, nShared: o.nShared, chi2Dof: o.chi2Dof, medianMag: o.medianMag, clippedOffsetMag: o.clippedOffsetMag, nRejected: o.nRejected, appliedMag: o.appliedMag });
   }
-  cols.push(
-    f64("mu_combined", comb.muMag, "mag", `inverse-variance combined distance modulus on the ${refAlias} zero point`),
-    f64("mu_combined_err", comb.muErrMag, "mag", "error of mu_combined (zero-point errors not included)"),
-    { name: "n_dist", kind: "int32", values: comb.nDist, meta: { description: "number of distance moduli combined" } },
-    f64("mu_chi2", comb.chi2, undefined, "chi2 of the moduli about mu_combined (n_dist - 1 degrees of freedom)"),
-  );
-  const roles = { ...survey.roles, mu: "mu_combined", mu_err: "mu_combined_err" };
-  let meta = setJsonMeta(new Map(survey.table.schema.metadata), META.roles, roles);
-  meta = recordStep(meta, "combine", { reference: refAlias, applyOffsets: settings.applyOffsets, offsets: offsetNumbers });
-  const table = withColumns(survey.table, cols, meta);
-  s.combined = withTable(survey, table, roles);
+  s.combined = withTable(survey, table, getRoles(table));
   const out = await saveTable(ctx.outDir, "02-combined.arrow", table);
   return {
     outputs: [out],
-    numbers: { reference: refAlias, offsets: offsetNumbers, galaxiesWithDistance: withDistance, galaxiesWithSeveralDistances: withSeveral },
+    numbers: { reference: refAlias, applied: report.applied, offsets: offsetNumbers, galaxiesByDistanceCount: report.nDist },
+    notes: report.notes,
   };
 }
