@@ -10,6 +10,8 @@ Outputs (test/reference/formats/):
   mixed_tabledata.vot    VOTable TABLEDATA (astropy.io.votable)
   mixed_binary2.vot      VOTable BINARY2
   mixed_binary.vot       VOTable BINARY
+  mixed_space.ecsv       ECSV 1.0, space-separated (astropy Table.write format="ascii.ecsv")
+  mixed_comma.ecsv       ECSV 1.0, comma-separated
   expected.json          per file: column -> {values, unit}; int64 values as strings
 """
 import json
@@ -149,6 +151,14 @@ for fmt in ["tabledata", "binary2", "binary"]:
 
     back = parse_single_table(path).to_table()
     expected[f"mixed_{fmt}.vot"] = raw_votable_units(path, describe(back))
+
+# 5. ECSV (Astropy APE 6), space- and comma-separated.
+for name, delim in [("mixed_space.ecsv", " "), ("mixed_comma.ecsv", ",")]:
+    t = mixed_table()
+    t["cz"].description = "heliocentric cz"
+    path = os.path.join(OUT, name)
+    t.write(path, format="ascii.ecsv", delimiter=delim, overwrite=True)
+    expected[name] = describe(Table.read(path, format="ascii.ecsv"))
 
 with open(os.path.join(OUT, "expected.json"), "w") as f:
     json.dump(expected, f, indent=1, sort_keys=True)

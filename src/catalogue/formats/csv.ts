@@ -22,8 +22,9 @@
  *   `line 17: 5 fields, expected 7` / `line 17: 9 fields, expected 7 (extra: "a", "b")`.
  */
 import type { Table } from "apache-arrow";
-import { columnsOf, type ColumnData, type ColumnMeta } from "../columns.js";
+import { columnsOf, type ColumnData, type ColumnKind, type ColumnMeta } from "../columns.js";
 import { PeculiarError } from "../../errors.js";
+import { ecsvKind, isEcsv, parseEcsvHeader } from "./ecsv.js";
 import { addReason, finishTable, formatFloat, type ParsedColumns } from "./table.js";
 
 /** Unquoted cells read as null (case-sensitive). */
@@ -70,6 +71,7 @@ function splitRecords(text: string, delim: string): { recs: Rec[]; marker: boole
       continue;
     }
     const rec: Rec = { cells: [], quoted: [], line, unterminated: false };
+    if (d === 32) i = j; // space-separated: leading blanks are not a field
     // Cells of one record.
     for (;;) {
       let k = i;
@@ -117,6 +119,11 @@ function splitRecords(text: string, delim: string): { recs: Rec[]; marker: boole
       }
       if (i < n && text.charCodeAt(i) === d) {
         i++;
+        if (d === 32) {
+          // space-separated: a run of blanks is one separator; blanks before the line end are none
+          while (i < n && (text.charCodeAt(i) === 32 || text.charCodeAt(i) === 9)) i++;
+          if (i >= n || text.charCodeAt(i) === 10 || text.charCodeAt(i) === 13) break;
+        }
         continue;
       }
       break;
@@ -310,6 +317,77 @@ function buildColumn(name: string, cells: (string | undefined)[], quoted: boolea
   return withMeta({ name, kind: "utf8", values: v });
 }
 
+/** Schema-metadata key for the `meta:` block of an ECSV header (YAML text). */
+export const ECSV_META = "ecsv.meta";
+
+/** The comment lines at the very top of the text. */
+function leadingComments(text: string): string[] {
+  const out: string[] = [];
+  for (const line of text.split(/\r\n|\n|\r/)) {
+    if (!line.startsWith("#")) break;
+    out.push(line);
+  }
+  return out;
+}
+
+const INT_RANGE: Partial<Record<ColumnKind, [bigint, bigint]>> = {
+  int8: [-128n, 127n],
+  int16: [-32768n, 32767n],
+  int32: [-2147483648n, 2147483647n],
+  int64: [INT64_MIN, INT64_MAX],
+  uint8: [0n, 255n],
+  uint16: [0n, 65535n],
+  uint32: [0n, 4294967295n],
+  uint64: [0n, 2n ** 64n - 1n],
+};
+const TYPED_ARRAYS: Partial<Record<ColumnKind, new (n: number) => ColumnData["values"]>> = {
+  int8: Int8Array, int16: Int16Array, int32: Int32Array, int64: BigInt64Array, uint8: Uint8Array, uint16: Uint16Array, uint32: Uint32Array, uint64: BigUint64Array,
+  float32: Float32Array, float64: Float64Array, bool: Uint8Array,
+};
+
+/** A column whose type the file declares (ECSV): no inference; cells that do not fit are null and flagged. */
+function buildDeclaredColumn(name: string, cells: (string | undefined)[], reasons: string[], meta: ColumnMeta, datatype: string, kind: ColumnKind): ColumnData {
+  const n = cells.length;
+  const nulls = new Uint8Array(n);
+  const values = kind === "utf8" ? new Array<string>(n).fill("") : new TYPED_ARRAYS[kind]!(n);
+  const bad = (i: number) => {
+    nulls[i] = 1;
+    addReason(reasons, i, `column ${name}: ${JSON.stringify(cells[i])} is not a valid ${datatype}`);
+  };
+  for (let i = 0; i < n; i++) {
+    const c = cells[i];
+    // ECSV writes a missing value as an empty field (quoted "" when space-separated).
+    if (c === undefined || c === "") {
+      nulls[i] = 1;
+      continue;
+    }
+    const t = c.trim();
+    if (kind === "utf8") (values as string[])[i] = c;
+    else if (kind === "bool") {
+      const l = t.toLowerCase();
+      if (l === "true" || l === "1") (values as Uint8Array)[i] = 1;
+      else if (l !== "false" && l !== "0") bad(i);
+    } else if (kind === "float32" || kind === "float64") {
+      if (/^[+-]?nan$/i.test(t)) nulls[i] = 1;
+      else if (isNumber(t)) (values as Float64Array)[i] = parseNumber(t);
+      else bad(i);
+    } else {
+      const range = INT_RANGE[kind]!;
+      if (!INT_RE.test(t)) bad(i);
+      else {
+        const b = BigInt(t);
+        if (b < range[0] || b > range[1]) bad(i);
+        else if (kind === "int64" || kind === "uint64") (values as BigInt64Array)[i] = b;
+        else (values as Int32Array)[i] = Number(b);
+      }
+    }
+  }
+  const col: ColumnData = { name, kind, values };
+  if (nulls.some((x) => x === 1)) col.nulls = nulls;
+  if (Object.keys(meta).length > 0) col.meta = meta;
+  return col;
+}
+
 /** Reads CSV/TSV text into a table (bookkeeping columns and peculiar.source included). */
 export function parseCsv(text: string, options: CsvOptions): Table {
   return finishTable(parseCsvColumns(text, options), { file: options.file, format: options.format ?? (options.delimiter === "\t" ? "tsv" : "csv") });
@@ -321,12 +399,19 @@ export function parseCsvColumns(text: string, options: CsvOptions): ParsedColumn
     throw new PeculiarError("usage", "delimiter must be one character other than a quote or newline", { value: delim });
   }
   const body = text.charCodeAt(0) === 0xfeff ? text.slice(1) : text;
-  const { recs, marker } = splitRecords(body, delim);
+  const ecsv = isEcsv(body) ? parseEcsvHeader(leadingComments(body), options.file) : undefined;
+  const { recs, marker } = splitRecords(body, ecsv ? ecsv.delimiter : delim);
   const header = recs[0];
   if (!header) throw new PeculiarError("format", "no header row (the file has only comments or blank lines)", { file: options.file });
   const names = headerNames(header.cells);
   const width = names.length;
-  const hasUnits = marker || isUnitsRow(recs, width);
+  if (ecsv) {
+    const listed = ecsv.columns.map((c) => c.name);
+    if (listed.join("\u0000") !== header.cells.map((c) => c.trim()).join("\u0000")) {
+      throw new PeculiarError("format", `ECSV header lists columns ${listed.join(", ")} but the header row has ${header.cells.join(", ")}`, { file: options.file, row: header.line });
+    }
+  }
+  const hasUnits = !ecsv && (marker || isUnitsRow(recs, width));
   const units = hasUnits ? recs[1]!.cells : [];
   const first = hasUnits ? 2 : 1;
   const rows = recs.length - first;
@@ -351,11 +436,21 @@ export function parseCsvColumns(text: string, options: CsvOptions): ParsedColumn
       cells[r] = rec.cells[j];
       quoted[r] = rec.quoted[j] ?? false;
     }
+    const declared = ecsv?.columns[j];
+    if (declared) {
+      const meta: ColumnMeta = {};
+      if (declared.unit) meta.unit = declared.unit;
+      if (declared.description) meta.description = declared.description;
+      columns.push(buildDeclaredColumn(names[j]!, cells, reasons, meta, declared.datatype, ecsvKind(declared)));
+      continue;
+    }
     const u = units[j]?.trim() ?? "";
     const meta: ColumnMeta = unitCell(u) === "none" ? {} : { unit: u };
     columns.push(buildColumn(names[j]!, cells, quoted, reasons, meta));
   }
-  return { columns, rows, reasons, sourceRows, metadata: new Map() };
+  const metadata = new Map<string, string>();
+  if (ecsv?.meta) metadata.set(ECSV_META, ecsv.meta);
+  return { columns, rows, reasons, sourceRows, metadata };
 }
 
 export interface CsvWriteOptions {

@@ -1,4 +1,6 @@
 import { describe, expect, it } from "vitest";
+import { readFileSync } from "node:fs";
+import { join } from "node:path";
 import type { Table } from "apache-arrow";
 import { parseCsv, csvFromTable, UNITS_MARKER } from "../../../src/catalogue/formats/csv.js";
 import { columnMeta, stringColumn, tableFromColumns, columnDataOf } from "../../../src/catalogue/columns.js";
@@ -185,5 +187,39 @@ describe("csvFromTable", () => {
     expect(cells(back, "valid")).toEqual([true, false]);
     expect(back.schema.fields.filter((f) => f.name === "valid").length).toBe(1);
     expect(col(back, "a")).toEqual(new Int32Array([1, 3]));
+  });
+});
+
+describe("ECSV header (Astropy APE 6)", () => {
+  const REF = join(__dirname, "../../reference/formats");
+  const expected = JSON.parse(readFileSync(join(REF, "expected.json"), "utf8")) as Record<string, Record<string, { values: unknown[]; unit: string | null }>>;
+  for (const name of ["mixed_space.ecsv", "mixed_comma.ecsv"]) {
+    it(`reads ${name} written by astropy 5.2.1 exactly, with declared types, units and nulls`, () => {
+      const t = parseCsv(readFileSync(join(REF, name), "utf8"), { file: name });
+      for (const [col, { values, unit }] of Object.entries(expected[name]!)) {
+        const kind = columnDataOf(t, col).kind;
+        const want = kind === "int64" ? values.map((v) => (v === null ? null : BigInt(v as string))) : values;
+        expect(cells(t, col), `${name} ${col}`).toEqual(want);
+        expect(columnMeta(t, col).unit ?? null).toBe(unit);
+      }
+      expect(["id", "mag", "n16", "n64", "u8", "u16", "u32", "flag"].map((c) => columnDataOf(t, c).kind)).toEqual(["utf8", "float32", "int16", "int64", "uint8", "uint16", "uint32", "bool"]);
+      expect(columnMeta(t, "cz").description).toBe("heliocentric cz");
+      // 15 header comment lines (16 with the delimiter line), then the names, then the data
+      expect(cells(t, "source_row")).toEqual([17, 18, 19, 20, 21].map((l) => l + (name.includes("comma") ? 1 : 0)));
+    });
+  }
+
+  it("keeps text that looks like numbers as text when the header says string, and flags cells that do not fit", () => {
+    const text = "# %ECSV 1.0\n# ---\n# datatype:\n# - name: id\n#   datatype: string\n# - {name: n, datatype: uint8}\n# meta: !!omap\n# - {H0: 70}\n# schema: astropy-2.0\nid n\n007 1\n008 300\n";
+    const t = parseCsv(text, { file: "e.ecsv" });
+    expect(cells(t, "id")).toEqual(["007", "008"]);
+    expect(cells(t, "n")).toEqual([1, null]);
+    expect(cells(t, "invalid_reason")).toEqual(["", 'column n: "300" is not a valid uint8']);
+    expect(t.schema.metadata.get("ecsv.meta")).toBe("- {H0: 70}");
+  });
+
+  it("fails when the header row does not match the declared columns", () => {
+    const text = "# %ECSV 1.0\n# ---\n# datatype:\n# - {name: a, datatype: int32}\nb\n1\n";
+    expect(() => parseCsv(text, { file: "m.ecsv" })).toThrow("m.ecsv:5: ECSV header lists columns a but the header row has b");
   });
 });
