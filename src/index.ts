@@ -6,3 +6,4 @@ export * from "./crossmatch/index.js";
 export * from "./cosmology/index.js";
 export * from "./flow/index.js";
 export * from "./pipeline/index.js";
+export * from "./server/index.js";
