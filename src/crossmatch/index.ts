@@ -9,3 +9,5 @@ export * from "./select.js";
 export * from "./match.js";
 export * from "./dedupe.js";
 export * from "./diagnostics.js";
+export * from "./inputs.js";
+export * from "./output.js";

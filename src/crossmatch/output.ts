@@ -1,0 +1,154 @@
+/**
+ * The joined table of a match: every column of A and of B (values and metadata kept), names that
+ * appear in both prefixed with the catalogue's alias and "_" (a_ra, b_ra), then
+ *   sep_arcsec    separation (null without a pair)
+ *   dv            v_B - v_A in km/s (when both catalogues have velocities; null when unknown)
+ *   n_candidates  accepted candidates of the A row (null for rows of B alone)
+ *   ambiguous     true when a competing candidate is almost as good (select.ts); false without a pair
+ *   row_a, row_b  source rows (source_row: 1-based line or row) in A and B; null where absent
+ * The bookkeeping columns are combined: valid = valid in A and in B (an absent side counts as
+ * valid), invalid_reason = "alias: reason" of each invalid side joined by "; ", source_row = the
+ * row of this table (1-based). Each side's own source_row is what row_a/row_b carry.
+ */
+import type { Table } from "apache-arrow";
+import { columnsOf, float64Column, tableFromColumns, takeColumn, type ColumnData } from "../catalogue/columns.js";
+import { getRoles, INVALID_REASON, META, recordStep, setJsonMeta, SOURCE_ROW, VALID, type RoleMap } from "../catalogue/meta.js";
+import { invalidReasons, validMask } from "../catalogue/validity.js";
+import { PeculiarError } from "../errors.js";
+import { ARCSEC } from "../sky/angles.js";
+import type { JoinedRows, MatchResult } from "./match.js";
+
+export const ADDED_COLUMNS = ["sep_arcsec", "dv", "n_candidates", "ambiguous", "row_a", "row_b"] as const;
+const BOOKKEEPING = new Set([VALID, INVALID_REASON, SOURCE_ROW]);
+
+/** Source rows (1-based) of a table: its source_row column, or the row number. */
+export function sourceRows(table: Table): Int32Array {
+  const n = table.numRows;
+  if (!table.getChild(SOURCE_ROW)) return Int32Array.from({ length: n }, (_, i) => i + 1);
+  const f = float64Column(table, SOURCE_ROW);
+  return Int32Array.from(f, (x, i) => (Number.isNaN(x) ? i + 1 : x));
+}
+
+/** Output column names for A and B: clashes (with each other or with the added columns) prefixed. */
+export function outputNames(a: Table, b: Table, aliasA: string, aliasB: string): { a: Map<string, string>; b: Map<string, string> } {
+  if (aliasA === aliasB) throw new PeculiarError("usage", `the two catalogues need different aliases (both are "${aliasA}"); use --alias A,B`);
+  const na = a.schema.fields.map((f) => f.name).filter((n) => !BOOKKEEPING.has(n));
+  const nb = b.schema.fields.map((f) => f.name).filter((n) => !BOOKKEEPING.has(n));
+  const sa = new Set(na);
+  const sb = new Set(nb);
+  const added = new Set<string>([...ADDED_COLUMNS, ...BOOKKEEPING]);
+  const ma = new Map<string, string>();
+  const mb = new Map<string, string>();
+  for (const n of na) ma.set(n, sb.has(n) || added.has(n) ? `${aliasA}_${n}` : n);
+  for (const n of nb) mb.set(n, sa.has(n) || added.has(n) ? `${aliasB}_${n}` : n);
+  const all = [...ma.values(), ...mb.values()];
+  const seen = new Set<string>();
+  for (const n of all) {
+    if (seen.has(n)) throw new PeculiarError("column", `two output columns would both be called "${n}"; choose other aliases with --alias`, { column: n });
+    seen.add(n);
+  }
+  return { a: ma, b: mb };
+}
+
+export interface MatchTableOptions {
+  aliasA: string;
+  aliasB: string;
+  /** true when both sides have velocities: the dv column is written */
+  withDv: boolean;
+  /** settings recorded in the schema metadata (peculiar.settings / peculiar.history) */
+  settings: Record<string, unknown>;
+  /** roles of each input (default: from its schema metadata) */
+  rolesA?: RoleMap;
+  rolesB?: RoleMap;
+}
+
+export function matchTable(a: Table, b: Table, r: MatchResult, j: JoinedRows, o: MatchTableOptions): Table {
+  const names = outputNames(a, b, o.aliasA, o.aliasB);
+  const n = j.length;
+  const cols: ColumnData[] = [];
+  for (const c of columnsOf(a)) {
+    if (BOOKKEEPING.has(c.name)) continue;
+    const t = takeColumn(c, j.rowA);
+    t.name = names.a.get(c.name)!;
+    cols.push(t);
+  }
+  for (const c of columnsOf(b)) {
+    if (BOOKKEEPING.has(c.name)) continue;
+    const t = takeColumn(c, j.rowB);
+    t.name = names.b.get(c.name)!;
+    cols.push(t);
+  }
+  const cand = r.candidates;
+  const sep = new Float64Array(n);
+  const dv = new Float64Array(n);
+  const ncand = new Int32Array(n);
+  const amb = new Uint8Array(n);
+  const rowA = new Int32Array(n);
+  const rowB = new Int32Array(n);
+  const nullSep = new Uint8Array(n);
+  const nullDv = new Uint8Array(n);
+  const nullN = new Uint8Array(n);
+  const nullRA = new Uint8Array(n);
+  const nullRB = new Uint8Array(n);
+  const srcA = sourceRows(a);
+  const srcB = sourceRows(b);
+  const validA = validMask(a);
+  const validB = validMask(b);
+  const reasonA = invalidReasons(a);
+  const reasonB = invalidReasons(b);
+  const valid = new Uint8Array(n);
+  const reason = new Array<string>(n);
+  const ownRow = new Int32Array(n);
+  for (let t = 0; t < n; t++) {
+    const i = j.rowA[t]!;
+    const k = j.rowB[t]!;
+    const m = j.match[t]!;
+    ownRow[t] = t + 1;
+    if (m >= 0) {
+      const c = r.chosen[m]!;
+      sep[t] = cand.sepRad[c]! / ARCSEC;
+      const d = cand.dvKmS[c]!;
+      if (d === d) dv[t] = d;
+      else nullDv[t] = 1;
+      amb[t] = r.ambiguous[m]!;
+    } else {
+      nullSep[t] = 1;
+      nullDv[t] = 1;
+    }
+    if (i >= 0) {
+      ncand[t] = r.nCandidates[i]!;
+      rowA[t] = srcA[i]!;
+    } else {
+      nullN[t] = 1;
+      nullRA[t] = 1;
+    }
+    if (k >= 0) rowB[t] = srcB[k]!;
+    else nullRB[t] = 1;
+    const okA = i < 0 || validA[i] === 1;
+    const okB = k < 0 || validB[k] === 1;
+    valid[t] = okA && okB ? 1 : 0;
+    const parts: string[] = [];
+    if (!okA) parts.push(`${o.aliasA}: ${reasonA[i] || "invalid"}`);
+    if (!okB) parts.push(`${o.aliasB}: ${reasonB[k] || "invalid"}`);
+    reason[t] = parts.join("; ");
+  }
+  cols.push({ name: "sep_arcsec", kind: "float64", values: sep, nulls: nullSep, meta: { unit: "arcsec", ucd: "pos.angDistance", description: "separation of the matched pair (Vincenty/atan2 form)" } });
+  if (o.withDv) cols.push({ name: "dv", kind: "float64", values: dv, nulls: nullDv, meta: { unit: "km/s", ucd: "spect.dopplerVeloc", description: `velocity of ${o.aliasB} minus velocity of ${o.aliasA}` } });
+  cols.push({ name: "n_candidates", kind: "int32", values: ncand, nulls: nullN, meta: { description: `accepted candidates in ${o.aliasB} for the row of ${o.aliasA}` } });
+  cols.push({ name: "ambiguous", kind: "bool", values: amb, meta: { description: "a competing candidate sharing a row has a score within the ambiguity gap" } });
+  cols.push({ name: "row_a", kind: "int32", values: rowA, nulls: nullRA, meta: { description: `source row in ${o.aliasA}` } });
+  cols.push({ name: "row_b", kind: "int32", values: rowB, nulls: nullRB, meta: { description: `source row in ${o.aliasB}` } });
+  cols.push({ name: VALID, kind: "bool", values: valid });
+  cols.push({ name: INVALID_REASON, kind: "utf8", values: reason });
+  cols.push({ name: SOURCE_ROW, kind: "int32", values: ownRow });
+  for (const c of cols) if (c.nulls && !c.nulls.some((x) => x === 1)) delete c.nulls;
+  // roles: A's roles under their output names (positions of the match are A's), B's in the settings
+  const roles: RoleMap = {};
+  for (const [role, col] of Object.entries(o.rolesA ?? getRoles(a))) if (col && names.a.has(col)) roles[role as keyof RoleMap] = names.a.get(col)!;
+  const rolesB: RoleMap = {};
+  for (const [role, col] of Object.entries(o.rolesB ?? getRoles(b))) if (col && names.b.has(col)) rolesB[role as keyof RoleMap] = names.b.get(col)!;
+  let meta = new Map(a.schema.metadata);
+  meta = setJsonMeta(meta, META.roles, roles);
+  meta = recordStep(meta, "match", { ...o.settings, aliasA: o.aliasA, aliasB: o.aliasB, rolesB });
+  return tableFromColumns(cols, meta, n);
+}
