@@ -9,7 +9,7 @@ import type { RoleMap } from "../catalogue/meta.js";
 import { PeculiarError } from "../errors.js";
 
 /** Speed of light in km/s (exact; SI definition of the metre). */
-export const C_KMS = 299792.458;
+const C_KMS = 299792.458;
 
 export interface SideExtras {
   velocityKmS?: Float64Array;
