@@ -4,3 +4,5 @@ export * from "./recentre.js";
 export * from "./bulkflow.js";
 export * from "./outliers.js";
 export * from "./fof.js";
+export * from "./groups.js";
+export * from "./infall.js";
