@@ -65,7 +65,7 @@ export function groupTable(g: GroupInput, c: Cosmology): GroupTable {
   const count = new Int32Array(G + 1);
   for (let i = 0; i < n; i++) {
     const id = g.groupId[i]!;
-    if (id >= 1 && id <= G) count[id]++;
+    if (id >= 1 && id <= G) count[id] = count[id]! + 1;
   }
   const memberStart = new Int32Array(G + 1);
   for (let k = 0; k < G; k++) memberStart[k + 1] = memberStart[k]! + count[k + 1]!;

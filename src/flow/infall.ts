@@ -73,10 +73,10 @@ export function infallProfile(points: RecentrePoints, origin: RecentreOrigin, o:
     const wi = v - h * s;
     bin[i] = lo;
     w[i] = wi;
-    cnt[lo]++;
-    sumS[lo] += s;
-    sumW[lo] += wi;
-    sumW2[lo] += wi * wi;
+    cnt[lo] = cnt[lo]! + 1;
+    sumS[lo] = sumS[lo]! + s;
+    sumW[lo] = sumW[lo]! + wi;
+    sumW2[lo] = sumW2[lo]! + wi * wi;
   }
   const out: InfallProfile = {
     n: cnt,
