@@ -58,9 +58,15 @@ export interface LoadOptions extends Omit<PrepareOptions, "file"> {
   hdu?: number | string;
 }
 
-/** "line" for text tables, "row" for binary ones: how the reasons name source_row. */
+/**
+ * "line" for text tables, "row" for binary ones: how the reasons name source_row. A table we wrote
+ * and read back keeps the source_row of the first file, so the first file's format decides.
+ */
 function rowWord(table: Table): string {
-  const src = readJsonMeta<{ format?: string }>(table, META.source);
+  let src = readJsonMeta<{ format?: string; previous?: unknown }>(table, META.source);
+  for (let k = 0; k < 100 && src && typeof src.previous === "object" && src.previous !== null; k++) {
+    src = src.previous as { format?: string; previous?: unknown };
+  }
   return src?.format === "csv" || src?.format === "tsv" ? "line" : "row";
 }
 
@@ -126,19 +132,26 @@ function cellText(table: Table, column: string, row: number): string {
 }
 
 /**
- * Adds reasons for bad coordinates of one column. A missing value already reported by the reader
- * for this column (a numeric column's unreadable cell) is not reported twice.
+ * Adds reasons for bad coordinates of one column. A problem the row's reason already names (the
+ * reader's "not a number" for this column, or the same finding in a file we wrote earlier) is not
+ * reported twice.
  */
 function collect(table: Table, column: string, col: AngleColumn, word: string, rows: Int32Array, prior: string[], bad: Uint8Array, reasons: (string | undefined)[]): void {
   for (let i = 0; i < col.reasons.length; i++) {
     const r = col.reasons[i];
     if (r === undefined) continue;
-    bad[i] = 1;
     const missing = r === "is empty" || r === "is NaN";
-    if (missing && prior[i]!.includes(`column ${column}:`)) continue;
-    const text = missing ? `${word} ${rows[i]}: column ${column}: missing value` : `${word} ${rows[i]}: column ${column}: ${cellText(table, column, i)} ${r}`;
-    reasons[i] = reasons[i] ? `${reasons[i]}; ${text}` : text;
+    const finding = missing ? `column ${column}: missing value` : `column ${column}: ${cellText(table, column, i)} ${r}`;
+    addFinding(i, finding, missing ? `column ${column}:` : finding, word, rows, prior, bad, reasons);
   }
+}
+
+/** Flags row i with "<word> <row>: finding" unless its prior reason already contains `known`. */
+function addFinding(i: number, finding: string, known: string, word: string, rows: Int32Array, prior: string[], bad: Uint8Array, reasons: (string | undefined)[]): void {
+  if (prior[i]!.includes(known)) return;
+  bad[i] = 1;
+  const text = `${word} ${rows[i]}: ${finding}`;
+  reasons[i] = reasons[i] ? `${reasons[i]}; ${text}` : text;
 }
 
 const CDS_PARTS = { h: "RAh", m: "RAm", s: "RAs", sign: "DE-", d: "DEd", dm: "DEm", ds: "DEs" } as const;
@@ -241,9 +254,8 @@ export function prepareCatalogue(table: Table, options: PrepareOptions): Catalog
         for (const [name, col] of [[raName, parts.ra], [decName, parts.dec]] as const) {
           const r = col.reasons[i];
           if (r === undefined) continue;
-          bad[i] = 1;
-          const text = r === "is empty" ? `${word} ${rows[i]}: columns ${name}: missing value` : `${word} ${rows[i]}: columns ${name}: ${r}`;
-          reasons[i] = reasons[i] ? `${reasons[i]}; ${text}` : text;
+          const finding = r === "is empty" ? `columns ${name}: missing value` : `columns ${name}: ${r}`;
+          addFinding(i, finding, finding, word, rows, prior, bad, reasons);
         }
       }
       notes.push(`positions: from the sexagesimal parts ${parts.names.join(" ")}`);

@@ -6,6 +6,7 @@
  *   --unit ROLE=UNIT    read a coordinate column in UNIT (deg, rad, h) when the file does not say.
  *   --format F          input format (csv, tsv, votable, fits, arrow) instead of the extension's.
  *   --out-format F      output format instead of the output extension's.
+ *   --hdu N|NAME        FITS: the HDU to read (default: the first binary table).
  *
  * Spread CATALOGUE_FLAGS into a command's option table, call parseCatalogueFlags on the parsed
  * values, then loadForCommand for each input.
@@ -23,6 +24,7 @@ export const CATALOGUE_FLAGS = {
   unit: { type: "string", multiple: true },
   format: { type: "string" },
   "out-format": { type: "string" },
+  hdu: { type: "string" },
 } as const;
 
 /** Help lines for the shared flags, to paste into a command's help. */
@@ -33,6 +35,7 @@ export const CATALOGUE_FLAGS_HELP = [
   "  --unit ROLE=UNIT   unit of a coordinate column the file does not give (deg, rad, h)",
   "  --format F         input format instead of the extension's: csv, tsv, votable, fits, arrow",
   "  --out-format F     output format instead of the output extension's",
+  "  --hdu N|NAME       FITS: the HDU to read (number, 0 = primary, or EXTNAME); default the first table",
 ].join("\n");
 
 export interface CatalogueFlags {
@@ -43,6 +46,7 @@ export interface CatalogueFlags {
   units: Partial<Record<Role, string>>;
   format?: FormatName;
   outFormat?: FormatName;
+  hdu?: number | string;
 }
 
 interface RawValues {
@@ -50,6 +54,7 @@ interface RawValues {
   unit?: string[] | undefined;
   format?: string | undefined;
   "out-format"?: string | undefined;
+  hdu?: string | undefined;
 }
 
 function parseRole(role: string, flag: string, item: string): Role {
@@ -82,6 +87,7 @@ export function parseCatalogueFlags(values: RawValues): CatalogueFlags {
   }
   if (values.format !== undefined) out.format = parseFormatName(values.format);
   if (values["out-format"] !== undefined) out.outFormat = parseFormatName(values["out-format"]);
+  if (values.hdu !== undefined) out.hdu = /^\d+$/.test(values.hdu.trim()) ? Number(values.hdu) : values.hdu.trim();
   return out;
 }
 
@@ -105,6 +111,7 @@ export function reportCatalogue(cat: Catalogue, io: Io): void {
 export async function loadForCommand(path: string, flags: CatalogueFlags, io: Io, options: { index?: number; require?: Role[] } = {}): Promise<Catalogue> {
   const o: Parameters<typeof loadCatalogue>[1] = { overrides: overridesFor(flags, options.index ?? 1), units: flags.units };
   if (flags.format !== undefined) o.format = flags.format;
+  if (flags.hdu !== undefined) o.hdu = flags.hdu;
   if (options.require) o.require = options.require;
   let cat: Catalogue;
   try {

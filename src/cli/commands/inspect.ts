@@ -1,13 +1,161 @@
-// Placeholder until this command lands; replaced by its owner.
-import type { Command } from "../command.js";
+/**
+ * peculiar inspect FILE: the schema (name, type, unit, UCD, nulls, role), the detected roles and
+ * units, row counts, and the invalid rows as file:line: reason (first 20, then a count).
+ */
+import type { Table } from "apache-arrow";
+import { COMMON_FLAGS, parseFlags, type Command } from "../command.js";
+import { CATALOGUE_FLAGS, CATALOGUE_FLAGS_HELP, overridesFor, parseCatalogueFlags } from "../catalogue-flags.js";
 import { usageError } from "../../errors.js";
+import { loadCatalogue, type Catalogue } from "../../catalogue/load.js";
+import { columnMeta, float64Column, kindOf, nullMask } from "../../catalogue/columns.js";
+import { describeRoles } from "../../catalogue/roles.js";
+import { invalidReasons, invalidRows } from "../../catalogue/validity.js";
+import { META, SOURCE_ROW, readJsonMeta, type Role } from "../../catalogue/meta.js";
+
+const SHOWN = 20;
+
+const help = `usage: peculiar inspect FILE [--col ROLE=NAME ...] [--format F] [--json]
+
+Shows what peculiar makes of a catalogue: every column (type, unit, UCD, null count and the role it
+was given), the detected roles and units, how many rows are valid, and each invalid row as
+FILE:LINE: reason (the first ${SHOWN}, then how many more). Nothing is written.
+
+options:
+${CATALOGUE_FLAGS_HELP}
+  --json             print one JSON object instead of text (all invalid rows)
+  -q, --quiet        no notes on stderr
+`;
+
+interface ColumnInfo {
+  name: string;
+  type: string;
+  unit: string;
+  ucd: string;
+  nulls: number;
+  role: string;
+}
+
+interface InvalidRow {
+  /** source_row: the line (text) or row (binary) in the file the row first came from. */
+  line: number;
+  /** 1-based row in this file's table. */
+  row: number;
+  reason: string;
+}
+
+function columnInfo(cat: Catalogue): ColumnInfo[] {
+  const roleOf = new Map<string, Role[]>();
+  for (const [role, col] of Object.entries(cat.roles) as [Role, string][]) roleOf.set(col, [...(roleOf.get(col) ?? []), role]);
+  return cat.table.schema.fields.map((f) => {
+    const m = columnMeta(cat.table, f.name);
+    let nulls = 0;
+    for (const x of nullMask(cat.table, f.name)) nulls += x;
+    return {
+      name: f.name,
+      type: kindOf(f.type) ?? String(f.type),
+      unit: m.unit ?? "",
+      ucd: m.ucd ?? "",
+      nulls,
+      role: (roleOf.get(f.name) ?? []).join(","),
+    };
+  });
+}
+
+/** The invalid rows with their line numbers; "line N: " / "row N: " prefixes for that same row are dropped. */
+function invalidList(table: Table): InvalidRow[] {
+  const rows = invalidRows(table);
+  const reasons = invalidReasons(table);
+  const src = table.getChild(SOURCE_ROW) ? float64Column(table, SOURCE_ROW) : undefined;
+  return Array.from(rows, (i) => {
+    const line = src && !Number.isNaN(src[i]!) ? src[i]! : i + 1;
+    const prefix = new RegExp(`(^|; )(line|row) ${line}: `, "g");
+    return { line, row: i + 1, reason: (reasons[i] || "flagged").replace(prefix, "$1") };
+  });
+}
+
+function pad(rows: string[][]): string[] {
+  const widths = rows[0]!.map((_, j) => Math.max(...rows.map((r) => r[j]!.length)));
+  return rows.map((r) => ("  " + r.map((c, j) => (j === r.length - 1 ? c : c.padEnd(widths[j]!))).join("  ")).trimEnd());
+}
+
+/** The first file of a table that was read back from our own output, or undefined when read from its origin. */
+function originFile(source: { previous?: unknown }): string | undefined {
+  let src: { file?: string; previous?: unknown } = source;
+  let origin: string | undefined;
+  for (let k = 0; k < 100 && typeof src.previous === "object" && src.previous !== null; k++) {
+    src = src.previous as { file?: string; previous?: unknown };
+    origin = src.file;
+  }
+  return origin;
+}
 
 const command: Command = {
   name: "inspect",
-  summary: "",
-  help: "peculiar inspect: not built yet",
-  run: async () => {
-    throw usageError("'inspect' is not built yet");
+  summary: "show a catalogue's columns, detected roles, units and invalid rows",
+  help,
+  async run(argv, io) {
+    const { values, positionals } = parseFlags(argv, { ...COMMON_FLAGS, ...CATALOGUE_FLAGS, json: { type: "boolean" } }, "inspect");
+    if (positionals.length !== 1) throw usageError(`inspect: expected one FILE, got ${positionals.length}; see 'peculiar inspect --help'`);
+    const file = positionals[0]!;
+    const flags = parseCatalogueFlags(values);
+    if (flags.outFormat !== undefined) throw usageError("inspect writes nothing; --out-format does not apply");
+    const opts: Parameters<typeof loadCatalogue>[1] = { overrides: overridesFor(flags, 1), units: flags.units };
+    if (flags.format !== undefined) opts.format = flags.format;
+    if (flags.hdu !== undefined) opts.hdu = flags.hdu;
+    const cat = await loadCatalogue(file, opts);
+    const cols = columnInfo(cat);
+    const bad = invalidList(cat.table);
+    const total = cat.table.numRows;
+    const source = readJsonMeta<{ format?: string; hdu?: number; extname?: string; skipped?: string[]; previous?: unknown }>(cat.table, META.source) ?? {};
+
+    if (values.json) {
+      const out = {
+        file,
+        format: source.format ?? null,
+        ...(source.hdu !== undefined ? { hdu: source.hdu } : {}),
+        ...(source.extname !== undefined ? { extname: source.extname } : {}),
+        rows: total,
+        valid: total - bad.length,
+        invalid: bad.length,
+        columns: cols,
+        roles: cat.roles,
+        units: cat.units,
+        positions: cat.positions,
+        notes: cat.notes,
+        skipped: source.skipped ?? [],
+        origin: originFile(source) ?? file,
+        invalidRows: bad,
+      };
+      io.stdout.write(JSON.stringify(out, null, 2) + "\n");
+      return 0;
+    }
+
+    const lines: string[] = [];
+    const where = source.hdu !== undefined ? `, HDU ${source.hdu}${source.extname ? ` (${source.extname})` : ""}` : "";
+    lines.push(`${file} (${source.format ?? "?"}${where}): ${total} rows, ${total - bad.length} valid, ${bad.length} invalid`);
+    lines.push("");
+    lines.push("columns:");
+    lines.push(...pad([["name", "type", "unit", "ucd", "nulls", "role"], ...cols.map((c) => [c.name, c.type, c.unit, c.ucd, String(c.nulls), c.role])]));
+    lines.push("");
+    lines.push(`roles: ${describeRoles(cat.table, cat.roles, cat.units)}`);
+    const positions = { radec: "from RA/Dec", galactic: "from Galactic l, b", "cds-parts": "from sexagesimal part columns", none: "none" }[cat.positions];
+    lines.push(`positions: ${positions}`);
+    if (cat.notes.length || source.skipped?.length) {
+      lines.push("notes:");
+      for (const n of cat.notes) lines.push(`  ${n}`);
+      for (const s of source.skipped ?? []) lines.push(`  skipped: ${s}`);
+    }
+    if (bad.length) {
+      lines.push("");
+      lines.push("invalid rows:");
+      // A table we wrote earlier keeps the source_row of its first file: name both places.
+      const origin = originFile(source);
+      const label = (b: InvalidRow) => (origin === undefined ? `${file}:${b.line}` : `${file} row ${b.row} (${origin}:${b.line})`);
+      for (const b of bad.slice(0, SHOWN)) lines.push(`  ${label(b)}: ${b.reason}`);
+      if (bad.length > SHOWN) lines.push(`  ... and ${bad.length - SHOWN} more invalid rows (--json lists all)`);
+    }
+    io.stdout.write(lines.join("\n") + "\n");
+    return 0;
   },
 };
 export default command;
