@@ -6,7 +6,8 @@
  *
  * Columns added: mu, mu_err (mag), n_dist (moduli combined), mu_chi2 (chi^2 of those moduli about
  * the combined one, n_dist - 1 degrees of freedom). The `mu` and `mu_err` roles of the output point
- * at them, so the velocities step picks them up. Input columns of the same names are kept as
+ * at them, and their UCDs carry meta.main, so the velocities step (and role detection on re-reading)
+ * picks them up. Input columns of the same names are kept as
  * "<name>_input". The offsets go into the report and the schema metadata (`recordStep`).
  * Nothing is flagged: a galaxy without any modulus gets n_dist = 0 and an empty mu.
  */
@@ -163,8 +164,8 @@ export function combineDistances(table: Table, o: CombineOptions): { table: Tabl
   };
   const refName = o.muColumns[ref]!;
   const columns: ColumnData[] = [
-    col("mu", comb.muMag, "mag", "phot.mag.distMod", `inverse-variance combination of ${o.muColumns.join(", ")}${o.apply ? ` on the zero point of ${refName}` : " (no zero-point offsets applied)"}`),
-    col("mu_err", comb.muErrMag, "mag", "stat.error;phot.mag.distMod", "1-sigma error of mu, 1/sqrt(sum of weights); offset errors not included"),
+    col("mu", comb.muMag, "mag", "phot.mag.distMod;meta.main", `inverse-variance combination of ${o.muColumns.join(", ")}${o.apply ? ` on the zero point of ${refName}` : " (no zero-point offsets applied)"}`),
+    col("mu_err", comb.muErrMag, "mag", "stat.error;phot.mag.distMod;meta.main", "1-sigma error of mu, 1/sqrt(sum of weights); offset errors not included"),
     { name: "n_dist", kind: "int32", values: comb.nDist, meta: { description: "number of moduli combined into mu" } },
     col("mu_chi2", comb.chi2, undefined, "stat.fit.chi2", "chi^2 of the combined moduli about mu (n_dist - 1 degrees of freedom)"),
   ];
