@@ -68,6 +68,17 @@ describe("peculiar combine", () => {
     expect(j.offsets.find((o) => o.column === "a_mu")!.offsetMag).toBeLessThan(-0.15);
   });
 
+  it("hands the combined modulus to velocities even when the input moduli stay in the table", () => {
+    const small = join(tmp.dir, "small.csv");
+    // Invented rows: q1 has both catalogues, q2 only b; cz is heliocentric.
+    writeFileSync(small, "id,ra,dec,cz,dm,e_dm,b_mu,b_mu_err\nq1,150,20,7000,35.0,0.3,35.2,0.3\nq2,160,10,6000,,,34.8,0.2\n");
+    const comb = join(tmp.dir, "small-comb.arrow");
+    expect(runCli(["combine", small, "-o", comb, "--mu", "dm,b_mu", "--err", "e_dm,b_mu_err", "--apply"]).code).toBe(0);
+    const r = runCli(["velocities", comb, "-o", join(tmp.dir, "small-v.csv")]);
+    expect(r.code).toBe(0);
+    expect(r.stderr).toMatch(/distance from mu column mu\)/);
+  });
+
   it("says what is wrong with the options", () => {
     const out = join(tmp.dir, "bad.csv");
     let r = runCli(["combine", input, "-o", out]);

@@ -155,6 +155,22 @@ describe("the velocities step", () => {
     expect(float64Column(byEta.table, "v_pec_err")[0]).toBeGreaterThan(0);
   });
 
+  it("takes a z column with its error when there is no cz", () => {
+    const cat = catalogue([{ ra: 150, dec: 20, cz: NaN, mu: 35, muErr: 0.4 }], [
+      { name: "zspec", kind: "float64", values: Float64Array.from([7000 / C_KMS]) },
+      { name: "zspec_err", kind: "float64", values: Float64Array.from([30 / C_KMS]) },
+    ]);
+    const roles = { ...cat.roles, z: "zspec", z_err: "zspec_err" } as RoleMap;
+    delete roles.cz;
+    const withZ = computeVelocities({ ...cat, roles }, { frame: "cmb", redshiftFrame: "cmb", cosmology: LCDM, estimator: "exact" });
+    expect(withZ.report.redshiftColumn).toBe("zspec");
+    // Domain reference §5.1 worked case again (Davis & Scrimgeour 2014 estimator).
+    expect(Math.abs(float64Column(withZ.table, "v_pec")[0]! - 118.61)).toBeLessThan(0.006);
+    const noZErr = computeVelocities({ ...cat, roles: { ...roles, z_err: undefined } as RoleMap }, { frame: "cmb", redshiftFrame: "cmb", cosmology: LCDM, estimator: "exact" });
+    // The redshift error adds in quadrature: sigma_v grows.
+    expect(float64Column(withZ.table, "v_pec_err")[0]).toBeGreaterThan(float64Column(noZErr.table, "v_pec_err")[0]!);
+  });
+
   it("names the missing role in its error", () => {
     const cat = catalogue([{ ra: 10, dec: 10, cz: 5000, mu: 34.5 }]);
     expect(() => computeVelocities(cat, { frame: "cmb", cosmology: LCDM, estimator: "exact", distance: "eta" })).toThrow(/--col eta=NAME/);
