@@ -115,6 +115,7 @@ function readAngles(table: Table, column: string, kind: AngleKind, unit: AngleUn
   if (type === "bool") {
     throw new PeculiarError("column", "is a boolean column, not an angle", { file, column, expected: `an angle column for ${role}` });
   }
+  if (type === "float32") notes.push(`${role} <- ${column} is float32: RA above 256 deg carries up to 0.055 arcsec of rounding (half a float32 step, 2^-15 deg)`);
   if (unit === undefined) notes.push(`${role} <- ${column}: no unit; read as degrees (common practice; --unit ${role}=h or rad to change)`);
   const col = anglesFromNumbers(float64Column(table, column), kind, unit ?? "deg");
   // Nulls and NaN are "missing" rather than "not a number".

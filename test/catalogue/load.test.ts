@@ -147,6 +147,17 @@ describe("prepareCatalogue", () => {
     expect(countInvalid(none.table)).toBe(0);
   });
 
+  it("notes float32 coordinate columns, whose rounding reaches 0.055 arcsec", () => {
+    // IEEE 754 binary32: 24-bit significand, so a step of 2^-15 deg between 256 and 512 deg (common practice).
+    const t = tableFromColumns([
+      { name: "ra", kind: "float32", values: new Float32Array([300.1]), meta: { unit: "deg" } },
+      { name: "dec", kind: "float64", values: new Float64Array([1]), meta: { unit: "deg" } },
+    ]);
+    const cat = prepareCatalogue(t, { file: "x.fits" });
+    expect(cat.notes.some((n) => /ra <- ra is float32/.test(n))).toBe(true);
+    expect(Math.abs(cat.raDeg[0]! - 300.1) * 3600).toBeLessThan(0.055);
+  });
+
   it("does not change the input table", () => {
     const t = parseCsv("ra,dec\n400,0\n", { file: "a.csv" });
     prepareCatalogue(t, { file: "a.csv" });
