@@ -31,7 +31,7 @@ export const SCENARIO = {
   bulkLDeg: 292,
   bulkBDeg: 16,
   /** The Amberwell cluster. */
-  cluster: { name: "Amberwell cluster", raDeg: 196.4, decDeg: -12.6, distMpc: 62, nMembers: 450, sigmaKmS: 850, rCoreMpc: 1.2, infallKmS: 450, infallRefMpc: 10, infallSlope: 0.9, infallMaxMpc: 40 },
+  cluster: { name: "Amberwell cluster", raDeg: 196.4, decDeg: -12.6, distMpc: 62, nMembers: 450, sigmaKmS: 850, rCoreMpc: 1.2, infallKmS: 400, infallRefMpc: 5, infallSlope: 0.5, infallMaxMpc: 30 },
   /** Survey volume and selection: n(d) ~ d^2 exp(-(d / selectionScaleMpc)^2) out to rMaxMpc. */
   rMaxMpc: 200,
   selectionScaleMpc: 95,
@@ -280,8 +280,14 @@ export async function generateSamples(outDir: string, seed = SAMPLE_SEED): Promi
   const [cl, cb] = convertPosition(c.raDeg, c.decDeg, "icrs", "galactic");
   let membersInSurvey = 0;
   let membersWithDistance = 0;
+  let sv = 0;
+  let svv = 0;
+  let nm = 0;
   for (let i = 0; i < nAll; i++) {
     if (mock.clusterOf[i] !== 0) continue;
+    sv += mock.vPecTrue[i]!;
+    svv += mock.vPecTrue[i]! ** 2;
+    nm++;
     if (inSurvey[i]) membersInSurvey++;
     if (calderaIdOf.has(i) || sor.includes(i)) membersWithDistance++;
   }
@@ -302,7 +308,8 @@ export async function generateSamples(outDir: string, seed = SAMPLE_SEED): Promi
       bDeg: round(cb, 6),
       distMpc: c.distMpc,
       czCmbKmS: round(czCluster, 3),
-      sigmaKmS: c.sigmaKmS,
+      sigmaKmS: round(Math.sqrt(svv / nm - (sv / nm) ** 2), 3),
+      coreSigmaKmS: c.sigmaKmS,
       members: membersInSurvey,
       membersWithDistance,
       vPecCentreKmS: round(ct.vPecCentreKmS, 3),

@@ -20,7 +20,7 @@ export const PLAN_HELP = `plan format (JSON; paths relative to the plan's folder
       "combine":    { "reference": "ALIAS", "applyOffsets": true },
       "velocities": { "frame": "cmb", "apex": "NAME", "h0": 70, "omegaM": 0.3, "estimator": "exact" | "linear" | "log" },
       "flag":       { "method": "clip" | "mad", "kappa": 3.5, "sigmaStarKmS": 250 },
-      "groups":     { "linkMpc": 0.5, "linkKmS": 350, "minMembers": 5 },
+      "groups":     { "scaling": "hg82" | "constant", "linkMpc": 0.74, "linkKmS": 350, "minMembers": 5 },
       "flow":       { "sigmaStarKmS": 250, "maxDistMpc": 200 },
       "recentre":   { "on": "group:richest" | "group:ID" | "id:NAME" | "RA,DEC,DIST" }
     }

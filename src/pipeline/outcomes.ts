@@ -31,6 +31,7 @@ export function comparisonsOf(s: PipelineState): Comparison[] {
     out.push(compare("cluster.d_ra", `${t.cluster.name}: centre offset along RA (times cos Dec)`, "deg", c.dRaCosDecDeg, c.posErrDeg, 0));
     out.push(compare("cluster.d_dec", `${t.cluster.name}: centre offset along Dec`, "deg", c.dDecDeg, c.posErrDeg, 0));
     out.push(compare("cluster.cz", `${t.cluster.name}: mean cz (CMB)`, "km/s", c.czKmS, c.czErrKmS, t.cluster.czCmbKmS));
+    out.push(compare("cluster.distance", `${t.cluster.name}: distance (comoving)`, "Mpc", c.distCMpc, c.distCErrMpc, t.cluster.distMpc));
     out.push(compare("cluster.sigma", `${t.cluster.name}: velocity dispersion`, "km/s", c.sigmaKmS, c.sigmaErrKmS, t.cluster.sigmaKmS));
   }
   return out;

@@ -51,7 +51,9 @@ export interface FlagSettings {
   sigmaStarKmS: number;
 }
 export interface GroupsSettings {
-  /** Projected linking length at the fiducial velocity, Mpc (h = H0/100 applied by the step). */
+  /** How the linking lengths grow with distance: Huchra & Geller 1982 ("hg82") or not at all. */
+  scaling: "hg82" | "constant";
+  /** Projected linking length at the fiducial velocity, Mpc (default 0.52 h^-1 Mpc at the plan's H0). */
   linkMpc?: number;
   /** Velocity linking length at the fiducial velocity, km/s. */
   linkKmS?: number;
@@ -95,7 +97,7 @@ export const DEFAULT_STEPS: StepSettings = {
   combine: { applyOffsets: true },
   velocities: { frame: "cmb", h0: 70, omegaM: 0.3, estimator: "exact" },
   flag: { method: "clip", kappa: 3.5, sigmaStarKmS: 250 },
-  groups: { minMembers: 5 },
+  groups: { scaling: "hg82", minMembers: 5 },
   flow: { sigmaStarKmS: 250 },
   recentre: { on: "group:richest" },
 };
@@ -198,8 +200,9 @@ function stepSettings(c: Checker, name: StepName, v: Json, path: string): StepSe
       return s;
     }
     case "groups": {
-      c.keys(o, path, ["linkMpc", "linkKmS", "minMembers"]);
+      c.keys(o, path, ["scaling", "linkMpc", "linkKmS", "minMembers"]);
       const s: GroupsSettings = { ...DEFAULT_STEPS.groups };
+      if (o.scaling !== undefined) s.scaling = c.oneOf(o.scaling, `${path}.scaling`, ["hg82", "constant"] as const);
       if (o.linkMpc !== undefined) s.linkMpc = c.num(o.linkMpc, `${path}.linkMpc`, pos, "Mpc > 0");
       if (o.linkKmS !== undefined) s.linkKmS = c.num(o.linkKmS, `${path}.linkKmS`, pos, "km/s > 0");
       if (o.minMembers !== undefined) s.minMembers = c.num(o.minMembers, `${path}.minMembers`, (x) => Number.isInteger(x) && x >= 2, "an integer >= 2");

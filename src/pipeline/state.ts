@@ -6,6 +6,8 @@ import type { Table } from "apache-arrow";
 import { writeTable } from "../catalogue/io.js";
 import type { RoleMap } from "../catalogue/meta.js";
 import type { Truth } from "./truth.js";
+import type { FlowFit } from "../flow/bulkflow.js";
+import type { GroupTable } from "../flow/groups.js";
 
 /** A loaded catalogue: the table, the roles of its columns and its positions in degrees (NaN where unusable). */
 export interface LoadedCatalogue {
@@ -50,9 +52,9 @@ export interface ClusterOutcome {
   czErrKmS: number;
   sigmaKmS: number;
   sigmaErrKmS: number;
-  /** Share of the group's members that are truth members, and of the truth members in the group. */
-  purity?: number;
-  completeness?: number;
+  /** Error-weighted comoving distance of the members with a trusted distance, Mpc. */
+  distCMpc: number;
+  distCErrMpc: number;
 }
 
 export interface PipelineState {
@@ -67,6 +69,9 @@ export interface PipelineState {
   flagged?: LoadedCatalogue;
   grouped?: LoadedCatalogue;
   flow?: FlowOutcome;
+  /** The full fit (positions and velocities used), for re-centring. */
+  flowFit?: FlowFit;
+  groups?: GroupTable;
   cluster?: ClusterOutcome;
   /** The table the view shows, relative to the output folder. */
   finalName?: string;

@@ -9,6 +9,10 @@ import type { PipelineState } from "./state.js";
 import { matchStep } from "./steps/match.js";
 import { combineStep } from "./steps/combine.js";
 import { velocitiesStep } from "./steps/velocities.js";
+import { flagStep } from "./steps/flag.js";
+import { groupsStep } from "./steps/groups.js";
+import { flowStep } from "./steps/flow.js";
+import { recentreStep } from "./steps/recentre.js";
 
 function missing(step: StepName, what: string): never {
   throw new PeculiarError("step", `${what} is not available yet in this build, so '${step}' cannot run`);
@@ -18,8 +22,8 @@ export const STEPS: Record<StepName, StepImpl<PipelineState>> = {
   match: matchStep,
   combine: combineStep,
   velocities: velocitiesStep,
-  flag: () => missing("flag", "outlier flagging (src/flow)"),
-  groups: () => missing("groups", "friends-of-friends groups (src/flow)"),
-  flow: () => missing("flow", "the H0 and bulk-flow fit (src/flow)"),
-  recentre: () => missing("recentre", "re-centring (src/flow)"),
+  flag: flagStep,
+  groups: groupsStep,
+  flow: flowStep,
+  recentre: recentreStep,
 };

@@ -27,7 +27,7 @@ export interface Truth {
     distMpc: number;
     /** Systemic CMB-frame cz of the cluster, km/s. */
     czCmbKmS: number;
-    /** Core line-of-sight velocity dispersion, km/s. */
+    /** Line-of-sight velocity dispersion of the members (core dispersion and infall together), km/s. */
     sigmaKmS: number;
     /** Galaxies of the redshift survey that belong to it. */
     members: number;
