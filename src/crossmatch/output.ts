@@ -11,9 +11,9 @@
  * row of this table (1-based). Each side's own source_row is what row_a/row_b carry.
  */
 import type { Table } from "apache-arrow";
-import { columnsOf, float64Column, tableFromColumns, takeColumn, type ColumnData } from "../catalogue/columns.js";
+import { columnDataOf, float64Column, tableFromColumns, takeColumn, type ColumnData } from "../catalogue/columns.js";
 import { getRoles, INVALID_REASON, META, recordStep, setJsonMeta, SOURCE_ROW, VALID, type RoleMap } from "../catalogue/meta.js";
-import { invalidReasons, validMask } from "../catalogue/validity.js";
+import { validMask } from "../catalogue/validity.js";
 import { PeculiarError } from "../errors.js";
 import { ARCSEC } from "../sky/angles.js";
 import type { JoinedRows, MatchResult } from "./match.js";
@@ -24,9 +24,30 @@ const BOOKKEEPING = new Set([VALID, INVALID_REASON, SOURCE_ROW]);
 /** Source rows (1-based) of a table: its source_row column, or the row number. */
 export function sourceRows(table: Table): Int32Array {
   const n = table.numRows;
-  if (!table.getChild(SOURCE_ROW)) return Int32Array.from({ length: n }, (_, i) => i + 1);
+  const out = new Int32Array(n);
+  if (!table.getChild(SOURCE_ROW)) {
+    for (let i = 0; i < n; i++) out[i] = i + 1;
+    return out;
+  }
   const f = float64Column(table, SOURCE_ROW);
-  return Int32Array.from(f, (x, i) => (Number.isNaN(x) ? i + 1 : x));
+  for (let i = 0; i < n; i++) {
+    const x = f[i]!;
+    out[i] = x === x ? x : i + 1;
+  }
+  return out;
+}
+
+/** The invalid_reason of the rows where valid is 0 (others ""): reads only the strings it needs. */
+function reasonsOfInvalid(table: Table, valid: Uint8Array): string[] {
+  const out = new Array<string>(valid.length).fill("");
+  const col = table.getChild(INVALID_REASON);
+  if (!col) return out;
+  for (let i = 0; i < valid.length; i++) {
+    if (valid[i]) continue;
+    const v = col.get(i) as string | null;
+    out[i] = v ?? "";
+  }
+  return out;
 }
 
 /** Output column names for A and B: clashes (with each other or with the added columns) prefixed. */
@@ -66,17 +87,16 @@ export function matchTable(a: Table, b: Table, r: MatchResult, j: JoinedRows, o:
   const names = outputNames(a, b, o.aliasA, o.aliasB);
   const n = j.length;
   const cols: ColumnData[] = [];
-  for (const c of columnsOf(a)) {
-    if (BOOKKEEPING.has(c.name)) continue;
-    const t = takeColumn(c, j.rowA);
-    t.name = names.a.get(c.name)!;
-    cols.push(t);
-  }
-  for (const c of columnsOf(b)) {
-    if (BOOKKEEPING.has(c.name)) continue;
-    const t = takeColumn(c, j.rowB);
-    t.name = names.b.get(c.name)!;
-    cols.push(t);
+  for (const [table, rows, map] of [
+    [a, j.rowA, names.a],
+    [b, j.rowB, names.b],
+  ] as const) {
+    for (const f of table.schema.fields) {
+      if (BOOKKEEPING.has(f.name)) continue;
+      const t = takeColumn(columnDataOf(table, f.name), rows);
+      t.name = map.get(f.name)!;
+      cols.push(t);
+    }
   }
   const cand = r.candidates;
   const sep = new Float64Array(n);
@@ -94,8 +114,8 @@ export function matchTable(a: Table, b: Table, r: MatchResult, j: JoinedRows, o:
   const srcB = sourceRows(b);
   const validA = validMask(a);
   const validB = validMask(b);
-  const reasonA = invalidReasons(a);
-  const reasonB = invalidReasons(b);
+  const reasonA = reasonsOfInvalid(a, validA);
+  const reasonB = reasonsOfInvalid(b, validB);
   const valid = new Uint8Array(n);
   const reason = new Array<string>(n);
   const ownRow = new Int32Array(n);
