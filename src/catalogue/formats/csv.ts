@@ -41,16 +41,30 @@ export interface CsvOptions {
   format?: string;
 }
 
-interface Rec {
+/** Records as flat arrays, no object per row: record r holds cells[start[r] .. start[r] + count[r]). */
+interface Records {
   cells: string[];
-  quoted: boolean[];
-  line: number;
-  unterminated: boolean;
+  quoted: number[];
+  start: number[];
+  count: number[];
+  line: number[];
+  /** 1 when the record ends inside an unclosed quote. */
+  unterminated: number[];
+}
+
+function cellsOf(R: Records, r: number): string[] {
+  return R.cells.slice(R.start[r]!, R.start[r]! + R.count[r]!);
+}
+function cellAt(R: Records, r: number, j: number): string | undefined {
+  return j < R.count[r]! ? R.cells[R.start[r]! + j] : undefined;
+}
+function quotedAt(R: Records, r: number, j: number): boolean {
+  return j < R.count[r]! && R.quoted[R.start[r]! + j] === 1;
 }
 
 /** Splits text into records, skipping comments and blank lines; returns whether the units marker was seen. */
-function splitRecords(text: string, delim: string): { recs: Rec[]; marker: boolean } {
-  const recs: Rec[] = [];
+function splitRecords(text: string, delim: string): { recs: Records; marker: boolean } {
+  const recs: Records = { cells: [], quoted: [], start: [], count: [], line: [], unterminated: [] };
   let marker = false;
   let i = 0;
   let line = 1;
@@ -64,13 +78,15 @@ function splitRecords(text: string, delim: string): { recs: Rec[]; marker: boole
     if (j >= n || c0 === 10 || c0 === 13 || c0 === 35 /* # */) {
       let e = j;
       while (e < n && text.charCodeAt(e) !== 10 && text.charCodeAt(e) !== 13) e++;
-      if (c0 === 35 && recs.length === 0 && text.slice(i, e).trim() === UNITS_MARKER) marker = true;
+      if (c0 === 35 && recs.start.length === 0 && text.slice(i, e).trim() === UNITS_MARKER) marker = true;
       if (e < n && text.charCodeAt(e) === 13 && text.charCodeAt(e + 1) === 10) e++;
       i = e + 1;
       line++;
       continue;
     }
-    const rec: Rec = { cells: [], quoted: [], line, unterminated: false };
+    const first = recs.cells.length;
+    recs.line.push(line);
+    let unterminated = 0;
     if (d === 32) i = j; // space-separated: leading blanks are not a field
     // Cells of one record.
     for (;;) {
@@ -102,19 +118,19 @@ function splitRecords(text: string, delim: string): { recs: Rec[]; marker: boole
           const ch = text.charCodeAt(t);
           if (ch === 10 || (ch === 13 && text.charCodeAt(t + 1) !== 10)) line++;
         }
-        if (!closed) rec.unterminated = true;
+        if (!closed) unterminated = 1;
         // Anything between the closing quote and the delimiter is appended (lenient).
         let e = p;
         while (e < n && text.charCodeAt(e) !== d && text.charCodeAt(e) !== 10 && text.charCodeAt(e) !== 13) e++;
         const tail = text.slice(p, e).trim();
-        rec.cells.push(s + tail);
-        rec.quoted.push(true);
+        recs.cells.push(s + tail);
+        recs.quoted.push(1);
         i = e;
       } else {
         let e = i;
         while (e < n && text.charCodeAt(e) !== d && text.charCodeAt(e) !== 10 && text.charCodeAt(e) !== 13) e++;
-        rec.cells.push(text.slice(i, e).trim());
-        rec.quoted.push(false);
+        recs.cells.push(text.slice(i, e).trim());
+        recs.quoted.push(0);
         i = e;
       }
       if (i < n && text.charCodeAt(i) === d) {
@@ -132,7 +148,9 @@ function splitRecords(text: string, delim: string): { recs: Rec[]; marker: boole
     if (i < n && text.charCodeAt(i) === 13 && text.charCodeAt(i + 1) === 10) i++;
     i++;
     line++;
-    recs.push(rec);
+    recs.start.push(first);
+    recs.count.push(recs.cells.length - first);
+    recs.unterminated.push(unterminated);
   }
   return { recs, marker };
 }
@@ -178,26 +196,25 @@ function unitCell(cell: string): "none" | "unit" | "no" {
   return "unit";
 }
 
-function looksNumeric(recs: Rec[], from: number, col: number): boolean {
+function looksNumeric(recs: Records, from: number, col: number): boolean {
   let num = 0;
   let other = 0;
-  for (let r = from; r < recs.length && num + other < 200; r++) {
-    const rec = recs[r]!;
-    const cell = rec.cells[col];
-    if (cell === undefined || (!rec.quoted[col] && NULL_TOKENS.has(cell)) || cell === "") continue;
+  for (let r = from; r < recs.start.length && num + other < 200; r++) {
+    const cell = cellAt(recs, r, col);
+    if (cell === undefined || (!quotedAt(recs, r, col) && NULL_TOKENS.has(cell)) || cell === "") continue;
     if (isNumber(cell.trim())) num++;
     else other++;
   }
   return num > 0 && num >= 3 * other;
 }
 
-function isUnitsRow(recs: Rec[], width: number): boolean {
-  const row = recs[1];
-  if (!row || row.cells.length > width) return false;
+function isUnitsRow(recs: Records, width: number): boolean {
+  if (recs.start.length < 2 || recs.count[1]! > width) return false;
+  const row = cellsOf(recs, 1);
   let units = 0;
   let evidence = false;
-  for (let j = 0; j < row.cells.length; j++) {
-    const kind = unitCell(row.cells[j]!);
+  for (let j = 0; j < row.length; j++) {
+    const kind = unitCell(row[j]!);
     if (kind === "no") return false;
     if (kind === "unit") {
       units++;
@@ -227,7 +244,7 @@ const INT64_MIN = -(2n ** 63n);
 const INT64_MAX = 2n ** 63n - 1n;
 
 /** One column from its cells: infers the type, fills nulls, flags bad cells in `reasons`. */
-function buildColumn(name: string, cells: (string | undefined)[], quoted: boolean[], reasons: string[], meta: ColumnMeta): ColumnData {
+function buildColumn(name: string, cells: (string | undefined)[], quoted: Uint8Array, reasons: string[], meta: ColumnMeta): ColumnData {
   const n = cells.length;
   const isNull = new Uint8Array(n);
   // Quoted empty cells: null unless the column turns out to be text.
@@ -401,40 +418,43 @@ export function parseCsvColumns(text: string, options: CsvOptions): ParsedColumn
   const body = text.charCodeAt(0) === 0xfeff ? text.slice(1) : text;
   const ecsv = isEcsv(body) ? parseEcsvHeader(leadingComments(body), options.file) : undefined;
   const { recs, marker } = splitRecords(body, ecsv ? ecsv.delimiter : delim);
-  const header = recs[0];
-  if (!header) throw new PeculiarError("format", "no header row (the file has only comments or blank lines)", { file: options.file });
-  const names = headerNames(header.cells);
+  if (recs.start.length === 0) throw new PeculiarError("format", "no header row (the file has only comments or blank lines)", { file: options.file });
+  const headerCells = cellsOf(recs, 0);
+  const names = headerNames(headerCells);
   const width = names.length;
   if (ecsv) {
     const listed = ecsv.columns.map((c) => c.name);
-    if (listed.join("\u0000") !== header.cells.map((c) => c.trim()).join("\u0000")) {
-      throw new PeculiarError("format", `ECSV header lists columns ${listed.join(", ")} but the header row has ${header.cells.join(", ")}`, { file: options.file, row: header.line });
+    if (listed.join("\u0000") !== headerCells.map((c) => c.trim()).join("\u0000")) {
+      throw new PeculiarError("format", `ECSV header lists columns ${listed.join(", ")} but the header row has ${headerCells.join(", ")}`, { file: options.file, row: recs.line[0]! });
     }
   }
   const hasUnits = !ecsv && (marker || isUnitsRow(recs, width));
-  const units = hasUnits ? recs[1]!.cells : [];
+  const units = hasUnits ? cellsOf(recs, 1) : [];
   const first = hasUnits ? 2 : 1;
-  const rows = recs.length - first;
+  const rows = recs.start.length - first;
   const reasons = new Array<string>(rows).fill("");
   const sourceRows = new Int32Array(rows);
   for (let r = 0; r < rows; r++) {
-    const rec = recs[first + r]!;
-    sourceRows[r] = rec.line;
-    if (rec.unterminated) addReason(reasons, r, `line ${rec.line}: quote not closed before the end of the file`);
-    if (rec.cells.length !== width) {
-      let text = `line ${rec.line}: ${rec.cells.length} ${rec.cells.length === 1 ? "field" : "fields"}, expected ${width}`;
-      if (rec.cells.length > width) text += ` (extra: ${rec.cells.slice(width).map((c) => JSON.stringify(c)).join(", ")})`;
+    const line = recs.line[first + r]!;
+    const count = recs.count[first + r]!;
+    sourceRows[r] = line;
+    if (recs.unterminated[first + r]) addReason(reasons, r, `line ${line}: quote not closed before the end of the file`);
+    if (count !== width) {
+      let text = `line ${line}: ${count} ${count === 1 ? "field" : "fields"}, expected ${width}`;
+      if (count > width) text += ` (extra: ${cellsOf(recs, first + r).slice(width).map((c) => JSON.stringify(c)).join(", ")})`;
       addReason(reasons, r, text);
     }
   }
   const columns: ColumnData[] = [];
   for (let j = 0; j < width; j++) {
     const cells = new Array<string | undefined>(rows);
-    const quoted = new Array<boolean>(rows);
+    const quoted = new Uint8Array(rows);
     for (let r = 0; r < rows; r++) {
-      const rec = recs[first + r]!;
-      cells[r] = rec.cells[j];
-      quoted[r] = rec.quoted[j] ?? false;
+      const at = first + r;
+      if (j < recs.count[at]!) {
+        cells[r] = recs.cells[recs.start[at]! + j];
+        quoted[r] = recs.quoted[recs.start[at]! + j]!;
+      }
     }
     const declared = ecsv?.columns[j];
     if (declared) {
