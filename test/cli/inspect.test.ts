@@ -38,10 +38,10 @@ describe("peculiar inspect", () => {
     const r = runCli(["inspect", join(dir, "a.csv")], { cwd: dir });
     expect(r.code).toBe(0);
     expect(r.stdout).toMatch(/a\.csv \(csv\): 6 rows, 1 valid, 5 invalid/);
-    expect(r.stdout).toMatch(/^ {2}name +type +unit +ucd +nulls +role$/m);
+    expect(r.stdout).toMatch(/^ {2}name +type +unit +ucd +nulls +range +role$/m);
     expect(r.stdout).toMatch(/^ {2}ra +utf8 +h:m:s +0 +ra$/m);
     expect(r.stdout).toMatch(/^ {2}dec +utf8 +d:m:s +1 +dec$/m);
-    expect(r.stdout).toMatch(/^ {2}cz +int32 +km\/s +0 +cz$/m);
+    expect(r.stdout).toMatch(/^ {2}cz +int32 +km\/s +0 +1284 \.\. 3000 +cz$/m);
     expect(r.stdout).toMatch(/roles: id <- id, ra <- ra \(h\), dec <- dec \(deg\), cz <- cz \(km\/s\)/);
   });
 
@@ -71,7 +71,8 @@ describe("peculiar inspect", () => {
     expect(j).toMatchObject({ file: "a.csv", format: "csv", rows: 6, valid: 1, invalid: 5, positions: "radec" });
     expect(j.roles).toEqual({ id: "id", ra: "ra", dec: "dec", cz: "cz" });
     expect(j.invalidRows.map((x: { line: number }) => x.line)).toEqual([4, 5, 6, 7, 8]);
-    expect(j.columns.find((c: { name: string }) => c.name === "dec")).toMatchObject({ type: "utf8", unit: "d:m:s", nulls: 1, role: "dec" });
+    expect(j.columns.find((c: { name: string }) => c.name === "dec")).toMatchObject({ type: "utf8", unit: "d:m:s", nulls: 1, role: "dec", min: null });
+    expect(j.columns.find((c: { name: string }) => c.name === "cz")).toMatchObject({ type: "int32", min: 1284, max: 3000 });
   });
 
   it("takes --col overrides and reports an override naming a missing column with the columns it has", () => {

@@ -104,7 +104,7 @@ const command: Command = {
   help,
   async run(argv, io) {
     const { values, positionals } = parseFlags(argv, { ...COMMON_FLAGS, ...CATALOGUE_FLAGS, "add-frames": { type: "string" } }, "convert");
-    if (positionals.length !== 2) throw usageError(`convert: expected IN and OUT, got ${positionals.length} file(s); see 'peculiar convert --help'`);
+    if (positionals.length !== 2) throw usageError(`expected IN and OUT, got ${positionals.length} file(s); see 'peculiar convert --help'`);
     const [input, output] = positionals as [string, string];
     const flags = parseCatalogueFlags(values);
     const frames = parseFrames(values["add-frames"]);

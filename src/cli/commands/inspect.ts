@@ -16,8 +16,8 @@ const SHOWN = 20;
 
 const help = `usage: peculiar inspect FILE [--col ROLE=NAME ...] [--format F] [--json]
 
-Shows what peculiar makes of a catalogue: every column (type, unit, UCD, null count and the role it
-was given), the detected roles and units, how many rows are valid, and each invalid row as
+Shows what peculiar makes of a catalogue: every column (type, unit, UCD, null count, range of the
+values and the role it was given), the detected roles and units, how many rows are valid, and each invalid row as
 FILE:LINE: reason (the first ${SHOWN}, then how many more). Nothing is written.
 
 options:
@@ -33,6 +33,26 @@ interface ColumnInfo {
   ucd: string;
   nulls: number;
   role: string;
+  /** Smallest and largest non-null value of a numeric column (null for text, bool or no values). */
+  min: number | null;
+  max: number | null;
+}
+
+const NUMERIC = new Set(["float64", "float32", "int8", "int16", "int32", "int64", "uint8", "uint16", "uint32", "uint64"]);
+
+function range(table: Table, name: string, type: string): [number | null, number | null] {
+  if (!NUMERIC.has(type)) return [null, null];
+  let lo = Infinity;
+  let hi = -Infinity;
+  for (const x of float64Column(table, name)) {
+    if (x < lo) lo = x;
+    if (x > hi) hi = x;
+  }
+  return lo <= hi ? [lo, hi] : [null, null];
+}
+
+function shortNumber(x: number): string {
+  return Number.isInteger(x) ? String(x) : String(Number(x.toPrecision(8)));
 }
 
 interface InvalidRow {
@@ -50,9 +70,13 @@ function columnInfo(cat: Catalogue): ColumnInfo[] {
     const m = columnMeta(cat.table, f.name);
     let nulls = 0;
     for (const x of nullMask(cat.table, f.name)) nulls += x;
+    const type = kindOf(f.type) ?? String(f.type);
+    const [min, max] = range(cat.table, f.name, type);
     return {
       name: f.name,
-      type: kindOf(f.type) ?? String(f.type),
+      type,
+      min,
+      max,
       unit: m.unit ?? "",
       ucd: m.ucd ?? "",
       nulls,
@@ -95,7 +119,7 @@ const command: Command = {
   help,
   async run(argv, io) {
     const { values, positionals } = parseFlags(argv, { ...COMMON_FLAGS, ...CATALOGUE_FLAGS, json: { type: "boolean" } }, "inspect");
-    if (positionals.length !== 1) throw usageError(`inspect: expected one FILE, got ${positionals.length}; see 'peculiar inspect --help'`);
+    if (positionals.length !== 1) throw usageError(`expected one FILE, got ${positionals.length}; see 'peculiar inspect --help'`);
     const file = positionals[0]!;
     const flags = parseCatalogueFlags(values);
     if (flags.outFormat !== undefined) throw usageError("inspect writes nothing; --out-format does not apply");
@@ -135,7 +159,8 @@ const command: Command = {
     lines.push(`${file} (${source.format ?? "?"}${where}): ${total} rows, ${total - bad.length} valid, ${bad.length} invalid`);
     lines.push("");
     lines.push("columns:");
-    lines.push(...pad([["name", "type", "unit", "ucd", "nulls", "role"], ...cols.map((c) => [c.name, c.type, c.unit, c.ucd, String(c.nulls), c.role])]));
+    const span = (c: ColumnInfo) => (c.min === null || c.max === null ? "" : `${shortNumber(c.min)} .. ${shortNumber(c.max)}`);
+    lines.push(...pad([["name", "type", "unit", "ucd", "nulls", "range", "role"], ...cols.map((c) => [c.name, c.type, c.unit, c.ucd, String(c.nulls), span(c), c.role])]));
     lines.push("");
     lines.push(`roles: ${describeRoles(cat.table, cat.roles, cat.units)}`);
     const positions = { radec: "from RA/Dec", galactic: "from Galactic l, b", "cds-parts": "from sexagesimal part columns", none: "none" }[cat.positions];
