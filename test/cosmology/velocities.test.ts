@@ -171,6 +171,21 @@ describe("the velocities step", () => {
     expect(float64Column(withZ.table, "v_pec_err")[0]).toBeGreaterThan(float64Column(noZErr.table, "v_pec_err")[0]!);
   });
 
+  it("reads eta on the CMB-frame redshift whatever the output frame", () => {
+    // eta is defined with the CMB-frame redshift (Springob et al. 2014), so the distance must not
+    // change with --frame; only z_<frame> and v_pec do.
+    const cat = catalogue([{ ra: 187.70593075, dec: 12.39112331, cz: 5000, mu: NaN }], [
+      { name: "logdr", kind: "float64", values: Float64Array.from([0.02]) },
+      { name: "e_logdr", kind: "float64", values: Float64Array.from([0.1]) },
+    ]);
+    const withEta = { ...cat, roles: { ...cat.roles, eta: "logdr", eta_err: "e_logdr" } };
+    const common = { cosmology: LCDM, estimator: "exact" as const, distance: "eta" as const };
+    const cmb = computeVelocities(withEta, { ...common, frame: "cmb" });
+    const lg = computeVelocities(withEta, { ...common, frame: "lg" });
+    expect(float64Column(lg.table, "dist_c_mpc")[0]).toBeCloseTo(float64Column(cmb.table, "dist_c_mpc")[0]!, 10);
+    expect(float64Column(lg.table, "v_pec")[0]).not.toBeCloseTo(float64Column(cmb.table, "v_pec")[0]!, 0);
+  });
+
   it("names the missing role in its error", () => {
     const cat = catalogue([{ ra: 10, dec: 10, cz: 5000, mu: 34.5 }]);
     expect(() => computeVelocities(cat, { frame: "cmb", cosmology: LCDM, estimator: "exact", distance: "eta" })).toThrow(/--col eta=NAME/);
