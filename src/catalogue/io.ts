@@ -23,7 +23,7 @@ export { parseVOTable, votableFromTable, VOTABLE_INFOS, VOTABLE_PARAMS } from ".
 export type FormatName = "csv" | "tsv" | "votable" | "fits" | "arrow";
 export const FORMAT_NAMES: readonly FormatName[] = ["csv", "tsv", "votable", "fits", "arrow"];
 
-/** Extensions (lower case) and their formats. `.txt` and `.tab` are read as tab-separated. */
+/** Extensions (lower case) and their formats. `.tab` is tab-separated; `.txt` is tab, comma or blank separated (sniffDelimiter). */
 const EXTENSIONS: Record<string, FormatName> = {
   ".csv": "csv",
   ".tsv": "tsv",
@@ -121,12 +121,27 @@ export function parseTable(bytes: Uint8Array, format: FormatName, options: { fil
   return finishTable(parsed, info);
 }
 
+/**
+ * The separator of a `.txt` table: tab if its first line that is not a comment or blank has one,
+ * else comma if it has one, else blanks (a run of spaces is one separator).
+ */
+export function sniffDelimiter(bytes: Uint8Array): string {
+  const head = new TextDecoder("utf-8").decode(bytes.subarray(0, 65536));
+  for (const line of head.split(/\r\n|\n|\r/)) {
+    const t = line.trim();
+    if (t === "" || t.startsWith("#")) continue;
+    return line.includes("\t") ? "\t" : line.includes(",") ? "," : " ";
+  }
+  return "\t";
+}
+
 export async function readTable(path: string, options: ReadOptions = {}): Promise<Table> {
   const format = options.format ?? formatFromPath(path);
   const bytes = await readBytes(path);
   const o: { file: string; hdu?: number | string; delimiter?: string } = { file: path };
   if (options.hdu !== undefined) o.hdu = options.hdu;
   if (options.delimiter !== undefined) o.delimiter = options.delimiter;
+  else if (options.format === undefined && extname(path).toLowerCase() === ".txt") o.delimiter = sniffDelimiter(bytes);
   return parseTable(bytes, format, o);
 }
 

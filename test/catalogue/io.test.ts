@@ -94,6 +94,21 @@ describe("readTable and writeTable", () => {
     expect(Array.from(float64Column(sample().slice(2), "cz"))).toEqual([3e4]);
   });
 
+  it("reads a .txt table separated by tabs, commas or runs of blanks", async () => {
+    const cases: [string, string][] = [
+      ["tabs.txt", "# made up\nid\tcz\ng1\t10\ng2\t20\n"],
+      ["commas.txt", "id,cz\ng1,10\ng2,20\n"],
+      ["blanks.txt", "  id    cz\n  g1    10  \n  g2    20\n"],
+    ];
+    for (const [name, text] of cases) {
+      writeFileSync(join(dir, name), text);
+      const t = await readTable(join(dir, name));
+      expect(cells(t, "id"), name).toEqual(["g1", "g2"]);
+      expect(cells(t, "cz"), name).toEqual([10, 20]);
+      expect(cells(t, "valid"), name).toEqual([true, true]);
+    }
+  });
+
   it("honours an explicit format over the extension", async () => {
     const path = join(dir, "odd.dat");
     await writeTable(sample(), path, { format: "csv" });
