@@ -3,7 +3,7 @@ import { tableFromColumns, float64Column, stringColumn, type ColumnData } from "
 import { META, readJsonMeta, type RoleMap } from "../../src/catalogue/meta.js";
 import { validMask } from "../../src/catalogue/validity.js";
 import { computeVelocities, type PositionedTable } from "../../src/cosmology/velocities.js";
-import { convertRedshifts } from "../../src/cosmology/restframes.js";
+import { convertRedshifts, frameToHelio, galacticUnitVectors, solarMotion } from "../../src/cosmology/restframes.js";
 import { C_KMS } from "../../src/cosmology/constants.js";
 import { angleDiffDeg } from "../../src/sky/index.js";
 
@@ -70,6 +70,23 @@ describe("the velocities step", () => {
     expect(Math.abs(float64Column(table, "cz_lg")[0]! - 1179.958)).toBeLessThan(2e-3);
     const want = convertRedshifts([9000 / C_KMS], [20], [-60], { frame: "helio" }, { frame: "lg", apex: "km1996" }, "additive")[0]!;
     expect(float64Column(table, "z_lg")[1]).toBeCloseTo(want, 14);
+  });
+
+  it("a CMB-frame mock made heliocentric with frameToHelio comes back to the same z_cmb and v_pec", () => {
+    // Round trip: cz_CMB -> cz_helio (inverse of the frame step) -> velocities from helio.
+    const ra = [0.5, 95, 187.7, 266.4, 359.9];
+    const dec = [-80, 10, 12.4, -28.9, 60];
+    const czCmb = [800, 3000, 7000, 12000, 25000];
+    const nGal = galacticUnitVectors(ra, dec);
+    const zh = frameToHelio(czCmb.map((x) => x / C_KMS), nGal, solarMotion("cmb"));
+    const cat = catalogue(ra.map((r, i) => ({ ra: r, dec: dec[i]!, cz: zh[i]! * C_KMS, mu: 34, muErr: 0.3 })));
+    const { table } = computeVelocities(cat, { frame: "cmb", cosmology: LCDM, estimator: "exact" });
+    const back = float64Column(table, "cz_cmb");
+    czCmb.forEach((c, i) => expect(Math.abs(back[i]! - c)).toBeLessThan(1e-9));
+    const direct = computeVelocities(catalogue(ra.map((r, i) => ({ ra: r, dec: dec[i]!, cz: czCmb[i]!, mu: 34, muErr: 0.3 }))), { frame: "cmb", redshiftFrame: "cmb", cosmology: LCDM, estimator: "exact" });
+    const v1 = float64Column(table, "v_pec");
+    const v2 = float64Column(direct.table, "v_pec");
+    czCmb.forEach((_, i) => expect(Math.abs(v1[i]! - v2[i]!)).toBeLessThan(1e-8));
   });
 
   it("puts Galactic and supergalactic coordinates and the SG Cartesian of the comoving distance", () => {
