@@ -307,6 +307,9 @@ export function queryZoneIndex(index: ZoneIndex, q: SortedQueries, radiusRad: nu
   const Rw = R * (1 + CHORD_SLACK) + EPS_RAD;
   const chord = 2 * Math.sin(Math.min(Rw, Math.PI) / 2);
   const chord2 = chord * chord * (1 + CHORD_SLACK) + 1e-30;
+  // Counting only: below this chord the pair is inside R whatever the rounding, so atan2 is skipped.
+  const chordIn = 2 * Math.sin((R * (1 - 1e-6)) / 2);
+  const chord2In = chordIn * chordIn;
   const HALF_PI = Math.PI / 2;
   // RA half-width of the cap, for a query anywhere in zone z: asin(sin R / cos |dec|max); -1 = whole zone.
   const alphaOfZone = new Float64Array(nZones);
@@ -381,7 +384,12 @@ export function queryZoneIndex(index: ZoneIndex, q: SortedQueries, radiusRad: nu
           const dx = bxk - ax;
           const dy = byk - ay;
           const dz = bzk - az;
-          if (dx * dx + dy * dy + dz * dz > chord2) continue;
+          const d2 = dx * dx + dy * dy + dz * dz;
+          if (d2 > chord2) continue;
+          if (counts !== null && d2 < chord2In) {
+            counts[row]!++;
+            continue;
+          }
           const sep = angleBetween(ax, ay, az, bxk, byk, bzk);
           if (sep <= R) {
             if (counts) counts[row]!++;

@@ -50,7 +50,11 @@ describe("peculiar match", () => {
     // the row without a position is kept, unmatched and invalid
     expect(dids[at("s4")]).toBeNull();
     expect(stringColumn(t, "invalid_reason")[at("s4")]).toMatch(/^survey: /);
-    expect(r.stderr).toMatch(/expected chance pairs/);
+    // s1's second candidate d5 scores (0.72/2)^2 = 0.13 against 0.03: within the 0.25 gap, so ambiguous
+    expect(r.stderr).toMatch(/1 ambiguous/);
+    const amb = t.getChild("ambiguous")!;
+    expect(amb.get(at("s1"))).toBe(true);
+    expect(amb.get(at("s3"))).toBe(false);
   });
 
   it("--max-dv changes the nearest match and dv is v_B - v_A", async () => {

@@ -41,7 +41,8 @@ options:
   --ambiguity D          score gap below which a competing candidate makes a match ambiguous
                          (default ${AMBIGUITY_DELTA}); score = (sep/r)^2 [+ (dv/V)^2], r the pair's radius
   --report FILE.json     write counts, the separation histogram, the expected chance pairs and a
-                         suggested radius (Rayleigh core plus flat background fit) to FILE.json
+                         suggested radius (Rayleigh core plus flat background fit) to FILE.json;
+                         the chance estimate and the suggestion also go to stderr
   --partitions N         process the sky as N declination bands one after another (default 1)
 ${CATALOGUE_FLAGS_HELP}
   -q, --quiet            no summary on stderr
@@ -174,16 +175,16 @@ const command: Command = {
       const r = sigmaK * Math.sqrt(ea * ea + eb * eb);
       return r === r ? Math.min(r, radiusArcsec ?? Infinity) : radiusArcsec ?? NaN;
     };
-    const chance = chancePairs(result, radiusOfRow);
     io.note(
       `match: ${counts.rowsA} rows in ${aliasA}, ${counts.rowsB} in ${aliasB}; ${counts.matchedPairs} pairs (${select}), ` +
         `${counts.matchedA} of ${aliasA} and ${counts.matchedB} of ${aliasB} matched; unmatched ${counts.unmatchedA} / ${counts.unmatchedB}; ` +
-        `${counts.ambiguous} ambiguous; expected chance pairs ${chance.expectedChancePairs.toFixed(1)}`,
+        `${counts.ambiguous} ambiguous`,
     );
     if (counts.rejectedByDv) io.note(`match: ${counts.rejectedByDv} pairs rejected by --max-dv ${maxDvKmS} km/s; ${counts.uncheckedDv} kept without a velocity check`);
     if (counts.rejectedBySigma || counts.rejectedNoError) io.note(`match: ${counts.rejectedBySigma} pairs rejected by --sigma ${sigmaK}; ${counts.rejectedNoError} without an error to test`);
     if (counts.usableA < counts.rowsA || counts.usableB < counts.rowsB) io.note(`match: rows without a usable position (never matched): ${counts.rowsA - counts.usableA} in ${aliasA}, ${counts.rowsB - counts.usableB} in ${aliasB}`);
     if (values.report) {
+      const chance = chancePairs(result, radiusOfRow);
       const histMax = radiusArcsec ?? result.searchRadiusArcsec;
       const suggestion = suggestRadius(result.pointsA, result.pointsB, result.searchRadiusArcsec, result.usableA);
       const report = {
@@ -196,6 +197,7 @@ const command: Command = {
         ambiguity: { delta: ambiguityDelta, definition: "a chosen pair is ambiguous when another accepted pair sharing its A or its B row has score <= its score + delta; score = (sep/r)^2 (+ (dv/V)^2 with --max-dv), r = the pair's acceptance radius" },
       };
       await writeFileAtomic(values.report, JSON.stringify(report, null, 2) + "\n");
+      io.note(`match: expected chance pairs ${chance.expectedChancePairs.toFixed(1)} (${(100 * chance.expectedChanceFraction).toFixed(2)} % of the pairs)`);
       if (suggestion.suggestedArcsec !== null) io.note(`match: suggested radius ${suggestion.suggestedArcsec.toFixed(3)} arcsec (sigma ${suggestion.sigmaArcsec!.toFixed(3)} arcsec; ${suggestion.note}); report in ${values.report}`);
       else io.note(`match: no suggested radius (${suggestion.note}); report in ${values.report}`);
     }
