@@ -171,6 +171,10 @@ export function longStringCards(key: string, value: string, comment = ""): strin
     i = j;
   }
   if (out.length === 0) out.push(pad(`${first}'`, CARD));
+  // The comment goes on the last card when it fits there.
+  const last = out[out.length - 1]!.trimEnd();
+  const c = asciiOnly(comment);
+  if (c && last.length + 3 + c.length <= CARD) out[out.length - 1] = pad(`${last} / ${c}`, CARD);
   return out;
 }
 

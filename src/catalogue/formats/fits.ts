@@ -106,7 +106,8 @@ const TWO63 = 9223372036854775808n;
 
 export function parseFitsColumns(bytes: Uint8Array, options: FitsReadOptions): { parsed: ParsedColumns; info: SourceInfo } {
   const file = options.file;
-  const want = options.hdu;
+  // A number given as text ("2", e.g. from a command line) is an HDU number.
+  const want = typeof options.hdu === "string" && /^\s*\d+\s*$/.test(options.hdu) ? Number(options.hdu) : options.hdu;
   const match = (h: Hdu) =>
     want === undefined ? h.kind === "BINTABLE" : typeof want === "number" ? h.index === want : (h.extname ?? "").toUpperCase() === want.trim().toUpperCase();
   const { hdus, found } = walk(bytes, file, match);
@@ -150,11 +151,11 @@ export function parseFitsColumns(bytes: Uint8Array, options: FitsReadOptions): {
     const tformCard = card(h, `TFORM${n}`)!;
     const form = forms[n - 1]!;
     const ttype = card(h, `TTYPE${n}`);
-    const base = typeof ttype?.value === "string" && ttype.value.trim() !== "" ? ttype.value.trim() : `col${n}`;
+    const base = typeof ttype?.value === "string" && ttype.value.trim() !== "" ? unescapeAscii(ttype.value.trim()) : `col${n}`;
     const meta: ColumnMeta = {};
-    const unit = str(h, `TUNIT${n}`)?.trim();
+    const unit = unescapeAscii(str(h, `TUNIT${n}`)?.trim() ?? "");
     if (unit) meta.unit = unit;
-    if (ttype?.comment) meta.description = ttype.comment;
+    if (ttype?.comment) meta.description = unescapeAscii(ttype.comment);
     const start = offset;
     offset += form.width;
     if (form.repeat === 0) continue;
@@ -333,6 +334,11 @@ function readNumeric(
   return done("float64", v);
 }
 
+/** Header text is ASCII; the writer escapes other characters as \uXXXX (see fits-header.ts). */
+function unescapeAscii(s: string): string {
+  return s.replace(/\\u([0-9a-fA-F]{4})/g, (_, h: string) => String.fromCharCode(parseInt(h, 16)));
+}
+
 function isScaled(zeroRaw: string | undefined, scal: Card["value"] | undefined): boolean {
   return (zeroRaw !== undefined && Number(zeroRaw) !== 0) || (scal !== undefined && scal !== 1);
 }
@@ -466,9 +472,9 @@ export function fitsFromTable(table: Table, options: { file?: string } = {}): Ui
   ];
   plans.forEach((p, k) => {
     const j = k + 1;
-    cards.push(valueCard(`TTYPE${j}`, p.col.name, p.col.meta?.description ?? ""));
+    cards.push(...longStringCards(`TTYPE${j}`, p.col.name, p.col.meta?.description ?? ""));
     cards.push(valueCard(`TFORM${j}`, p.tform));
-    if (p.col.meta?.unit) cards.push(valueCard(`TUNIT${j}`, p.col.meta.unit));
+    if (p.col.meta?.unit) cards.push(...longStringCards(`TUNIT${j}`, p.col.meta.unit));
     if (p.tnull !== undefined) cards.push(valueCard(`TNULL${j}`, p.tnull));
     if (p.tzero !== undefined) {
       cards.push(valueCard(`TSCAL${j}`, 1));

@@ -222,6 +222,23 @@ describe("fitsFromTable", () => {
     expect(columnDataOf(back, "u").kind).toBe("int16");
   });
 
+  it("round-trips long and non-ASCII column names and units (CONTINUE cards, \\u escapes)", () => {
+    const long = "a_very_long_column_name_that_does_not_fit_on_one_header_card_at_all_x".repeat(2);
+    const t = tableFromColumns([
+      { name: long, kind: "float64", values: new Float64Array([1]), meta: { unit: "µm", description: "Größe" } },
+      { name: "δ", kind: "int32", values: new Int32Array([2]) },
+    ]);
+    const back = parseFits(fitsFromTable(t), { file: "n.fits" });
+    expect(back.schema.fields.map((f) => f.name).slice(0, 2)).toEqual([long, "δ"]);
+    expect(columnMeta(back, long)).toEqual({ unit: "µm", description: "Größe" });
+    expect(cells(back, "δ")).toEqual([2]);
+  });
+
+  it("takes an HDU number given as text", () => {
+    const t = tableFromColumns([{ name: "a", kind: "float64", values: new Float64Array([1]) }]);
+    expect(parseFits(fitsFromTable(t), { file: "h.fits", hdu: "1" }).numRows).toBe(1);
+  });
+
   it("writes and reads an empty table and a table of one row", () => {
     for (const n of [0, 1]) {
       const t = tableFromColumns([{ name: "a", kind: "float64", values: new Float64Array(n).fill(2.5) }, { name: "s", kind: "utf8", values: new Array<string>(n).fill("z") }], new Map(), n);
