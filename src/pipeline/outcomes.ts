@@ -23,7 +23,7 @@ export function comparisonsOf(s: PipelineState): Comparison[] {
     const f = s.flow;
     out.push(compare("h0", "H0", "km/s/Mpc", f.h0.value, f.h0.error, t.h0));
     const comps = ["vx", "vy", "vz"] as const;
-    comps.forEach((k, i) => out.push(compare(`bulk_flow.${k}`, `bulk flow ${k} (Galactic)`, "km/s", f.bulk[k], Math.sqrt(f.bulk.cov[4 * i]!), t.bulkFlow[k])));
+    comps.forEach((k, i) => out.push(compare(`bulk_flow.${k}`, `bulk flow ${k}, Galactic`, "km/s", f.bulk[k], Math.sqrt(f.bulk.cov[4 * i]!), t.bulkFlow[k])));
     out.push(compare("bulk_flow.amplitude", "bulk flow amplitude", "km/s", f.bulk.amplitude, f.bulk.amplitudeErr, t.bulkFlow.amplitude));
   }
   if (s.cluster) {

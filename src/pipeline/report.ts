@@ -49,9 +49,25 @@ function cell(v: unknown): string {
   return String(v).replace(/\|/g, "\\|");
 }
 
+/** A step's numbers as a nested bullet list: objects indent, lists of objects are headed by their alias or index. */
 function numbersOf(rec: StepRecord): string[] {
   const out: string[] = [];
-  for (const [k, v] of Object.entries(rec.numbers ?? {})) out.push(`${k}: ${cell(v)}`);
+  const walk = (key: string, v: unknown, depth: number) => {
+    const pad = "  ".repeat(depth);
+    if (Array.isArray(v) && v.some((x) => x !== null && typeof x === "object")) {
+      out.push(`${pad}- ${key}:`);
+      v.forEach((x, i) => {
+        const name = x && typeof x === "object" && "alias" in x ? String((x as { alias: unknown }).alias) : String(i + 1);
+        walk(name, x, depth + 1);
+      });
+    } else if (Array.isArray(v)) {
+      out.push(`${pad}- ${key}: ${v.map((x) => cell(x)).join(", ")}`);
+    } else if (v !== null && typeof v === "object") {
+      out.push(`${pad}- ${key}:`);
+      for (const [k, x] of Object.entries(v)) if (k !== "alias") walk(k, x, depth + 1);
+    } else out.push(`${pad}- ${key}: ${cell(v)}`);
+  };
+  for (const [k, v] of Object.entries(rec.numbers ?? {})) walk(k, v, 0);
   return out;
 }
 
@@ -71,7 +87,7 @@ export function reportMarkdown(s: RunSummary): string {
     L.push("| quantity | recovered | truth | difference |", "| --- | --- | --- | --- |");
     for (const c of s.comparisons) {
       const flag = c.nSigma <= s.consistentWithin ? "" : ` (more than ${s.consistentWithin} sigma)`;
-      L.push(`| ${c.label} (${c.unit}) | ${formatWithError(c.recovered, c.error)} | ${fmtSig(c.truth, 5)} | ${Number.isFinite(c.nSigma) ? c.nSigma.toFixed(2) : "inf"} sigma${flag} |`);
+      L.push(`| ${c.label} (${c.unit}) | ${formatWithError(c.recovered, c.error)} | ${Number.isFinite(c.truth) ? String(Number(c.truth.toPrecision(6))) : "n/a"} | ${Number.isFinite(c.nSigma) ? c.nSigma.toFixed(2) : "inf"} sigma${flag} |`);
     }
     L.push("");
   }
@@ -84,7 +100,7 @@ export function reportMarkdown(s: RunSummary): string {
     if (r.status !== "ok") continue;
     L.push(`### ${r.step}`, "");
     for (const n of r.notes ?? []) L.push(`- note: ${n}`);
-    for (const n of numbersOf(r)) L.push(`- ${n}`);
+    L.push(...numbersOf(r));
     L.push("");
   }
   if (s.plots.length > 0) {
