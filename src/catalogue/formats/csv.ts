@@ -287,8 +287,8 @@ function buildColumn(name: string, cells: (string | undefined)[], quoted: Uint8A
     if (isNull.some((x) => x === 1)) c.nulls = isNull;
     return c;
   };
-  if (nonNull === 0) return withMeta({ name, kind: "float64", values: new Float64Array(n).fill(NaN) });
-  if (bools === nonNull) {
+  if (nonNull === 0 && !quotedEmpty.includes(1)) return withMeta({ name, kind: "float64", values: new Float64Array(n).fill(NaN) });
+  if (nonNull > 0 && bools === nonNull) {
     const v = new Uint8Array(n);
     for (let i = 0; i < n; i++) if (!isNull[i] && cells[i]!.trim().toLowerCase() === "true") v[i] = 1;
     return withMeta({ name, kind: "bool", values: v });

@@ -179,6 +179,14 @@ describe("csvFromTable", () => {
     expect(cells(parseCsv(csvFromTable(t), { file }), "a")).toEqual([1, null, 3]);
   });
 
+  it("reads back a column of empty strings as text (an all-valid invalid_reason stays text)", () => {
+    const first = parseCsv("a\n1\n2\n", { file });
+    const back = parseCsv(csvFromTable(first), { file });
+    expect(columnDataOf(back, "invalid_reason").kind).toBe("utf8");
+    expect(cells(back, "invalid_reason")).toEqual(["", ""]);
+    expect(back.schema.fields.map((f) => f.name)).toEqual(["a", "valid", "invalid_reason", "source_row"]);
+  });
+
   it("keeps its own bookkeeping columns when read back", () => {
     const first = parseCsv("a,b\n1,2\n3\n", { file });
     const back = parseCsv(csvFromTable(first), { file: "again.csv" });
