@@ -12,6 +12,8 @@ import { PeculiarError } from "../../src/errors.js";
 let dir = "";
 beforeAll(() => {
   dir = mkdtempSync(join(tmpdir(), "peculiar-io-"));
+  // invented rows: one good, one with a bad number, one short
+  writeFileSync(join(dir, "mixed-bad.csv"), "id,cz\nobj-1,1200\nobj-2,abc\nobj-3,1300\nobj-4,1400\nobj-5\n");
 });
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
@@ -62,6 +64,17 @@ describe("readTable and writeTable", () => {
       expect(cells(back, "valid")).toEqual([true, true, true]);
       const src = JSON.parse(back.schema.metadata.get(META.source)!);
       expect(src.file).toBe(path);
+    }
+  });
+
+  it("keeps our own bookkeeping columns, once, through every format", async () => {
+    const first = await readTable(join(dir, "mixed-bad.csv"));
+    for (const ext of ["csv", "tsv", "vot", "fits", "arrow"]) {
+      const path = join(dir, `again.${ext}`);
+      await writeTable(first, path);
+      const back = await readTable(path);
+      expect(back.schema.fields.map((f) => f.name), ext).toEqual(first.schema.fields.map((f) => f.name));
+      for (const name of ["valid", "invalid_reason", "source_row", "id", "cz"]) expect(cells(back, name), `${ext} ${name}`).toEqual(cells(first, name));
     }
   });
 
