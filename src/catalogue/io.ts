@@ -5,6 +5,7 @@
  */
 import { readFile, stat } from "node:fs/promises";
 import { extname } from "node:path";
+import { gunzipSync, gzipSync } from "node:zlib";
 import type { Table } from "apache-arrow";
 import { PeculiarError } from "../errors.js";
 import { assertNotSameFile, writeFileAtomic } from "./atomic.js";
@@ -41,11 +42,22 @@ const EXTENSIONS: Record<string, FormatName> = {
   ".arrows": "arrow",
 };
 
-export function formatFromPath(path: string): FormatName {
+/** The extension that names the format: `.csv` for `a.csv` and for `a.csv.gz`. */
+function formatExtension(path: string): string {
   const ext = extname(path).toLowerCase();
+  return ext === ".gz" ? extname(path.slice(0, -3)).toLowerCase() : ext;
+}
+
+/** True when the path ends in `.gz`: writeTable gzips, readTable also finds gzip by its magic bytes. */
+export function isGzipPath(path: string): boolean {
+  return extname(path).toLowerCase() === ".gz";
+}
+
+export function formatFromPath(path: string): FormatName {
+  const ext = formatExtension(path);
   const f = EXTENSIONS[ext];
   if (!f) {
-    throw new PeculiarError("format", `unknown file format ${ext ? `"${ext}"` : "(no extension)"}; use --format or one of the extensions ${Object.keys(EXTENSIONS).join(" ")}`, { file: path });
+    throw new PeculiarError("format", `unknown file format ${ext ? `"${ext}"` : "(no extension)"}; use --format or one of the extensions ${Object.keys(EXTENSIONS).join(" ")} (each also with .gz)`, { file: path });
   }
   return f;
 }
@@ -86,10 +98,23 @@ async function readBytes(path: string): Promise<Uint8Array> {
   }
   if (size === 0) throw new PeculiarError("format", "empty file", { file: path });
   try {
-    return new Uint8Array(await readFile(path));
+    const raw = new Uint8Array(await readFile(path));
+    return raw[0] === 0x1f && raw[1] === 0x8b ? gunzip(raw, path) : raw;
   } catch (e) {
+    if (e instanceof PeculiarError) throw e;
     throw new PeculiarError("io", `cannot read: ${(e as Error).message}`, { file: path }, { cause: e });
   }
+}
+
+function gunzip(raw: Uint8Array, path: string): Uint8Array {
+  let out: Uint8Array;
+  try {
+    out = new Uint8Array(gunzipSync(raw));
+  } catch (e) {
+    throw new PeculiarError("format", `truncated or damaged gzip data: ${(e as Error).message}`, { file: path }, { cause: e });
+  }
+  if (out.length === 0) throw new PeculiarError("format", "empty file (after gzip)", { file: path });
+  return out;
 }
 
 /** Parses bytes already in memory as `format`; `file` names the source in messages and metadata. */
@@ -141,7 +166,7 @@ export async function readTable(path: string, options: ReadOptions = {}): Promis
   const o: { file: string; hdu?: number | string; delimiter?: string } = { file: path };
   if (options.hdu !== undefined) o.hdu = options.hdu;
   if (options.delimiter !== undefined) o.delimiter = options.delimiter;
-  else if (options.format === undefined && extname(path).toLowerCase() === ".txt") o.delimiter = sniffDelimiter(bytes);
+  else if (options.format === undefined && formatExtension(path) === ".txt") o.delimiter = sniffDelimiter(bytes);
   return parseTable(bytes, format, o);
 }
 
@@ -164,7 +189,7 @@ export function encodeTable(table: Table, format: FormatName, options: { stream?
 export async function writeTable(table: Table, path: string, options: WriteOptions = {}): Promise<void> {
   if (options.input !== undefined) assertNotSameFile(options.input, path);
   const format = options.format ?? formatFromPath(path);
-  const stream = options.stream ?? extname(path).toLowerCase() === ".arrows";
+  const stream = options.stream ?? formatExtension(path) === ".arrows";
   let data: Uint8Array | string;
   try {
     data = encodeTable(table, format, { stream });
@@ -172,5 +197,5 @@ export async function writeTable(table: Table, path: string, options: WriteOptio
     if (e instanceof PeculiarError && e.place.file === undefined) throw new PeculiarError(e.code, e.message, { file: path }, { cause: e });
     throw e;
   }
-  await writeFileAtomic(path, data);
+  await writeFileAtomic(path, isGzipPath(path) ? gzipSync(typeof data === "string" ? new TextEncoder().encode(data) : data) : data);
 }

@@ -122,6 +122,24 @@ describe("readTable and writeTable", () => {
     }
   });
 
+  it("reads and writes gzip-compressed files of every format (.csv.gz, .fits.gz, ...)", async () => {
+    for (const name of ["z.csv.gz", "z.vot.gz", "z.fits.gz", "z.arrow.gz", "z.txt.gz"]) {
+      const path = join(dir, name);
+      await writeTable(sample(), path);
+      const raw = readFileSync(path);
+      expect([raw[0], raw[1]], name).toEqual([0x1f, 0x8b]); // RFC 1952 gzip magic
+      const back = await readTable(path);
+      expect(cells(back, "cz"), name).toEqual([1200.5, null, 3e4]);
+    }
+    expect(formatFromPath("a.fits.gz")).toBe("fits");
+  });
+
+  it("fails on cut gzip data naming the file", async () => {
+    const path = join(dir, "cut.csv.gz");
+    writeFileSync(path, readFileSync(join(dir, "z.csv.gz")).subarray(0, 20));
+    await expect(readTable(path)).rejects.toThrow(`${path}: truncated or damaged gzip data`);
+  });
+
   it("honours an explicit format over the extension", async () => {
     const path = join(dir, "odd.dat");
     await writeTable(sample(), path, { format: "csv" });
