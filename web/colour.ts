@@ -92,3 +92,14 @@ export function binByColour(v: ArrayLike<number>, scale: VelocityScale, draw?: U
   colours.push(UNKNOWN_COLOUR);
   return { order, start, colours };
 }
+
+const binCache = new WeakMap<object, { scale: VelocityScale; bins: BinnedColours }>();
+
+/** binByColour of all rows, cached per values array and scale (re-centring makes new arrays). */
+export function binAll(v: Float64Array, scale: VelocityScale): BinnedColours {
+  const c = binCache.get(v);
+  if (c && c.scale === scale) return c.bins;
+  const bins = binByColour(v, scale);
+  binCache.set(v, { scale, bins });
+  return bins;
+}

@@ -4,7 +4,7 @@
  * the row under the pointer.
  */
 import type { BinnedColours, VelocityScale } from "./colour.js";
-import { binByColour, GROUP_RING, N_BINS, OUTLIER_MARK, SELECTED_RING } from "./colour.js";
+import { binAll, binByColour, GROUP_RING, N_BINS, OUTLIER_MARK, SELECTED_RING } from "./colour.js";
 import type { ViewState } from "./state.js";
 
 /** Draws the rows of `bins` at (px, py) as squares of half-size r; returns how many had a position. */
@@ -111,11 +111,11 @@ export function drawPointsWithSelection(
   state: ViewState,
   px: Float64Array,
   py: Float64Array,
-  values: ArrayLike<number>,
+  values: Float64Array,
   scale: VelocityScale,
   r: number,
 ): { bins: BinnedColours; drawn: number } {
-  const bins = binByColour(values, scale);
+  const bins = binAll(values, scale);
   const drawn = drawBinnedPoints(ctx, px, py, bins, r, state.nSelected > 0 ? DIM_ALPHA : 1);
   if (state.nSelected > 0) drawBinnedPoints(ctx, px, py, binByColour(values, scale, state.selected), r + 0.5, 1);
   return { bins, drawn };

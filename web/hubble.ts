@@ -10,20 +10,17 @@ import type { ViewState } from "./state.js";
 import { FAINT_INK, INK, ORIGIN_MARK, type VelocityScale } from "./colour.js";
 import { drawMarks, drawPointsWithSelection } from "./draw.js";
 import type { OriginView } from "./origin.js";
+import { originLimits } from "./limits.js";
 
 /** Above this many drawn points error bars are left out (they would only blacken the panel). */
 export const MAX_POINTS_WITH_ERROR_BARS = 300;
 const M = { left: 62, right: 14, top: 28, bottom: 38, gap: 10 };
 
-function finiteQuantiles(a: Float64Array, qs: number[]): number[] {
-  const v: number[] = [];
-  for (let i = 0; i < a.length; i++) if (Number.isFinite(a[i]!)) v.push(a[i]!);
-  v.sort((x, y) => x - y);
-  return qs.map((q) => (v.length ? d3.quantileSorted(v, q)! : NaN));
-}
-
 export class HubblePanel extends CanvasPanel {
   readonly scale: VelocityScale;
+  /** Screen positions in the residual panel. */
+  private rx = new Float64Array(0);
+  private ry = new Float64Array(0);
   /** The view from here, for the dashed comparison line. */
   home: OriginView;
 
@@ -46,17 +43,15 @@ export class HubblePanel extends CanvasPanel {
     const r0 = M.top + mainH + M.gap;
     const resH = plotH - mainH - M.gap;
     const H = Number.isFinite(o.h0) ? o.h0 : d.h0;
-    const [sMax] = finiteQuantiles(o.s, [0.998]);
-    const [vLo, vHi] = finiteQuantiles(o.v, [0.001, 0.999]);
-    const [uAbs] = finiteQuantiles(o.u.map(Math.abs), [0.99]);
-    const xMax = Number.isFinite(sMax!) && sMax! > 0 ? sMax! * 1.05 : 1;
+    const { sMax, vLo, vHi, uAbs } = originLimits(o);
+    const xMax = Number.isFinite(sMax) && sMax > 0 ? sMax * 1.05 : 1;
     const x = d3.scaleLinear().domain([0, xMax]).range([M.left, w - M.right]).nice();
     const y = d3
       .scaleLinear()
-      .domain([Math.min(0, Number.isFinite(vLo!) ? vLo! : 0), Math.max(Number.isFinite(vHi!) ? vHi! * 1.05 : 1, H * x.domain()[1]! * 0.2)])
+      .domain([Math.min(0, Number.isFinite(vLo) ? vLo : 0), Math.max(Number.isFinite(vHi) ? vHi * 1.05 : 1, H * x.domain()[1]! * 0.2)])
       .range([y0 + mainH, y0])
       .nice();
-    const uLim = Number.isFinite(uAbs!) && uAbs! > 0 ? uAbs! * 1.15 : 500;
+    const uLim = Number.isFinite(uAbs) && uAbs > 0 ? uAbs * 1.15 : 500;
     const yr = d3.scaleLinear().domain([-uLim, uLim]).range([r0 + resH, r0]).nice();
 
     const px = this.px;
@@ -65,8 +60,12 @@ export class HubblePanel extends CanvasPanel {
     let unknown = 0;
     let drawn = 0;
     // Main panel points (px/py hold the main-panel positions for picking); residual points separately.
-    const rx = new Float64Array(n).fill(NaN);
-    const ry = new Float64Array(n).fill(NaN);
+    if (this.rx.length !== n) {
+      this.rx = new Float64Array(n);
+      this.ry = new Float64Array(n);
+    }
+    const rx = this.rx.fill(NaN);
+    const ry = this.ry.fill(NaN);
     for (let i = 0; i < n; i++) {
       const s = o.s[i]!;
       const v = o.v[i]!;

@@ -4,13 +4,14 @@
  * library's own code. `window.peculiarView` exposes the state and a few actions for tests and the
  * benchmark; the page's status lives in data attributes on <body>.
  */
-import { viewDataFromIPC, groupsOf, type ViewData } from "./data.js";
+import { viewDataFromIPC, groupsOf } from "./data.js";
 import { ViewState, type ProjectionName, type SkyFrameName } from "./state.js";
 import { galaxyView, groupView, homeView, originInputs, type OriginInputs, type OriginView } from "./origin.js";
 import { symmetricLimitKmS, velocityScale } from "./colour.js";
 import { SkyMap } from "./sky-map.js";
 import { HubblePanel } from "./hubble.js";
-import { SlicePanel, sliceExtentMpc } from "./slices.js";
+import { SlicePanel } from "./slices.js";
+import { originLimits } from "./limits.js";
 import { RowTable } from "./tables.js";
 import { Tooltip } from "./tooltip.js";
 import { drawMatchDiagnostics, matchDiagnosticsOf, type MatchDiagnostics } from "./match-panel.js";
@@ -72,9 +73,8 @@ function flowSummaryOf(json: unknown): string | null {
   return s;
 }
 
-function defaultSlabMpc(d: ViewData): number {
-  const R = sliceExtentMpc(d.col.sgx, d.col.sgy, d.col.sgz);
-  return Math.max(2, Math.round(R / 5));
+function defaultSlabMpc(home: OriginView): number {
+  return Math.max(2, Math.round(originLimits(home).extentMpc / 5));
 }
 
 export interface RecentreTiming {
@@ -92,7 +92,7 @@ async function start(): Promise<void> {
   const inputs: OriginInputs = originInputs(data);
   const home: OriginView = homeView(inputs);
   const scale = velocityScale(symmetricLimitKmS(data.col.v_pec));
-  const state = new ViewState(data, home, defaultSlabMpc(data));
+  const state = new ViewState(data, home, defaultSlabMpc(home));
   const groups = groupsOf(data, 3);
 
   document.title = `peculiar · ${meta.file}`;
@@ -210,7 +210,7 @@ async function start(): Promise<void> {
   projSel.addEventListener("change", () => state.setFrame(frameSel.value as SkyFrameName, projSel.value as ProjectionName));
   const slab = $<HTMLInputElement>("slab");
   const slabOut = $("slab-value");
-  slab.max = String(Math.max(10, Math.round(sliceExtentMpc(data.col.sgx, data.col.sgy, data.col.sgz) * 2)));
+  slab.max = String(Math.max(10, Math.round(originLimits(home).extentMpc * 2)));
   slab.value = String(state.slabMpc);
   slabOut.textContent = `${state.slabMpc} Mpc`;
   slab.addEventListener("input", () => {
@@ -265,7 +265,8 @@ async function start(): Promise<void> {
     for (const s of slices) s.render();
   });
   state.on("origin", () => {
-    for (const p of panels) p.render();
+    for (const p of panels) if (p !== sky) p.render();
+    sky.updateOrigin();
     showOrigin();
   });
   let resizeTimer = 0;

@@ -12,7 +12,7 @@ import { lonLatOf } from "../src/sky/vectors.js";
 import { CanvasPanel, type PanelActions } from "./panel.js";
 import type { ViewState } from "./state.js";
 import { FAINT_INK, INK, ORIGIN_MARK, type VelocityScale } from "./colour.js";
-import { drawHover, drawMarks, drawPointsWithSelection } from "./draw.js";
+import { drawMarks, drawPointsWithSelection } from "./draw.js";
 import { colourBar, markKeys } from "./legend.js";
 
 const GALACTIC_PLANE_COLOUR = "#7fd1ff";
@@ -106,21 +106,24 @@ export class SkyMap extends CanvasPanel {
     const { bins, drawn } = drawPointsWithSelection(ctx, st, px, py, d.col.v_pec, this.scale, this.pointRadius);
     this.bins = bins;
     drawMarks(ctx, st, px, py, this.pointRadius);
-    this.drawOrigin(ctx);
     this.drawOverlay(frame, drawn, unplaced);
     this.root.dataset.unplaced = String(unplaced);
+    this.updateOrigin();
     return drawn;
   }
 
-  private drawOrigin(ctx: CanvasRenderingContext2D): void {
+  /** The current origin's direction, as an SVG ring (re-centring moves only this, not the points). */
+  updateOrigin(): void {
+    this.svg.selectAll("g.origin-mark").remove();
     const o = this.state.origin;
     if (o.kind === "home" || !Number.isFinite(o.ox + o.oy + o.oz)) return;
-    // Origin position is supergalactic Cartesian; its direction in the current frame.
     const [sgl, sgb] = lonLatOf(o.ox, o.oy, o.oz);
     const [a, b] = this.state.frame === "supergalactic" ? [sgl, sgb] : convertPosition(sgl, sgb, "supergalactic", "galactic");
     const p = this.project(a, b);
     if (!p) return;
-    drawHover(ctx, p[0], p[1], ORIGIN_MARK, 8);
+    const g = this.svg.insert("g", "rect.brush").attr("class", "origin-mark").attr("transform", `translate(${p[0]},${p[1]})`);
+    g.append("circle").attr("r", 8).attr("fill", "none").attr("stroke", ORIGIN_MARK).attr("stroke-width", 2);
+    g.append("text").attr("x", 11).attr("y", -8).attr("fill", ORIGIN_MARK).attr("font-size", 11).text(o.label);
   }
 
   private drawOverlay(frame: "galactic" | "supergalactic", drawn: number, unplaced: number): void {

@@ -7,31 +7,18 @@
 import * as d3 from "d3";
 import { CanvasPanel, type PanelActions } from "./panel.js";
 import type { ViewState } from "./state.js";
-import { BACKGROUND, binByColour, FAINT_INK, INK, N_BINS, ORIGIN_MARK, type VelocityScale } from "./colour.js";
+import { BACKGROUND, binAll, FAINT_INK, INK, N_BINS, ORIGIN_MARK, type VelocityScale } from "./colour.js";
 import { drawMarks, drawPointsWithSelection } from "./draw.js";
+import { originLimits } from "./limits.js";
 
 export type Plane = "xy" | "xz" | "yz";
 const AXES: Record<Plane, [0 | 1 | 2, 0 | 1 | 2, 0 | 1 | 2]> = { xy: [0, 1, 2], xz: [0, 2, 1], yz: [1, 2, 0] };
 const NAMES = ["SGX", "SGY", "SGZ"];
 const M = { left: 44, right: 10, top: 22, bottom: 34 };
 
-/** Half-width of the slices' square window, Mpc: the 99th percentile of |coordinate| about the origin. */
-export function sliceExtentMpc(x: Float64Array, y: Float64Array, z: Float64Array): number {
-  const v: number[] = [];
-  for (let i = 0; i < x.length; i++) {
-    const m = Math.max(Math.abs(x[i]!), Math.abs(y[i]!), Math.abs(z[i]!));
-    if (Number.isFinite(m)) v.push(m);
-  }
-  if (v.length === 0) return 100;
-  v.sort((a, b) => a - b);
-  return Math.max(1, d3.quantileSorted(v, 0.99)! * 1.05);
-}
-
 export class SlicePanel extends CanvasPanel {
   readonly plane: Plane;
   readonly scale: VelocityScale;
-  /** Cached extent for the origin it was computed for. */
-  private extent: { origin: unknown; mpc: number } | null = null;
 
   constructor(parent: HTMLElement, state: ViewState, actions: PanelActions, scale: VelocityScale, plane: Plane, tools: HTMLElement[]) {
     const [a, b, c] = AXES[plane];
@@ -50,8 +37,7 @@ export class SlicePanel extends CanvasPanel {
     const A = cols[ia]!;
     const B = cols[ib]!;
     const C = cols[ic]!;
-    if (!this.extent || this.extent.origin !== o) this.extent = { origin: o, mpc: sliceExtentMpc(o.x, o.y, o.z) };
-    const R = this.extent.mpc;
+    const R = originLimits(o).extentMpc;
     const w = this.width;
     const h = this.height;
     const side = Math.max(10, Math.min(w - M.left - M.right, h - M.top - M.bottom));
@@ -63,7 +49,6 @@ export class SlicePanel extends CanvasPanel {
     const H = Number.isFinite(o.h0) ? o.h0 : d.h0;
     const px = this.px;
     const py = this.py;
-    const inSlab = new Uint8Array(d.n);
     let unknown = 0;
     for (let i = 0; i < d.n; i++) {
       const a = A[i]!;
@@ -76,7 +61,6 @@ export class SlicePanel extends CanvasPanel {
       if (Math.abs(c) > half || Math.abs(a) > R || Math.abs(b) > R) continue;
       px[i] = sx(a);
       py[i] = sy(b);
-      inSlab[i] = 1;
     }
     ctx.save();
     ctx.beginPath();
@@ -85,7 +69,7 @@ export class SlicePanel extends CanvasPanel {
     ctx.fillStyle = "#171b22";
     ctx.fillRect(sx(-R), sy(R), side, side);
     // Velocity lines, one stroke per colour bin.
-    const bins = binByColour(o.u, this.scale, inSlab);
+    const bins = binAll(o.u, this.scale);
     const k = side / (2 * R) / H; // px per km/s: u / H Mpc times px per Mpc
     ctx.lineWidth = 1;
     ctx.globalAlpha = st.nSelected > 0 ? 0.35 : 0.9;
@@ -97,6 +81,7 @@ export class SlicePanel extends CanvasPanel {
       ctx.beginPath();
       for (let q = s0; q < s1; q++) {
         const i = bins.order[q]!;
+        if (px[i] !== px[i]) continue; // not in the slab
         const s = o.s[i]!;
         const u = o.u[i]!;
         if (!(s > 0) || !Number.isFinite(u)) continue;
@@ -108,7 +93,7 @@ export class SlicePanel extends CanvasPanel {
     }
     ctx.globalAlpha = 1;
     const { drawn } = drawPointsWithSelection(ctx, st, px, py, o.u, this.scale, this.pointRadius);
-    this.bins = binByColour(o.u, this.scale, inSlab);
+    this.bins = bins;
     drawMarks(ctx, st, px, py, this.pointRadius);
     // The origin, and us when re-centred.
     ctx.strokeStyle = ORIGIN_MARK;

@@ -1,0 +1,108 @@
+/**
+ * The web view in headless Chromium: time to first draw and time to re-centre at 1e4 and 1e5 galaxies.
+ * `npm run bench view`. Seeded catalogues (the test catalogue of test/web), one server and one browser;
+ * each figure is the median of RUNS runs after a warm-up.
+ *
+ *  - first draw: from navigation start to the page's ready mark (fetch, Arrow decode, home fit, every
+ *    panel drawn), and the page's own part of it (from its script start);
+ *  - re-centre: kernel (the library's recentre in the browser) and kernel + redrawing every panel, both
+ *    synchronous; and to the next animation frame (the browser has painted);
+ *  - baseline, side by side: going back home (the same redraw without the kernel), so the ratio shows
+ *    what re-centring costs beyond drawing.
+ */
+import { startViewServer } from "../src/server/index.js";
+import { launchBrowser } from "../test/web/browser.js";
+import { makeViewCatalogue } from "../test/web/catalogue.js";
+import { randomLcg } from "d3-random";
+
+const SIZES = [10_000, 100_000];
+const RUNS = 5;
+const RECENTRES = 9;
+
+function median(a: number[]): number {
+  const s = [...a].sort((x, y) => x - y);
+  const m = s.length >> 1;
+  return s.length % 2 ? s[m]! : (s[m - 1]! + s[m]!) / 2;
+}
+
+interface Row {
+  n: number;
+  firstDrawNav: number;
+  firstDrawPage: number;
+  kernel: number;
+  recentre: number;
+  recentreFrame: number;
+  home: number;
+}
+
+const rows: Row[] = [];
+const browser = await launchBrowser({ width: 1600, height: 1400 });
+try {
+  for (const n of SIZES) {
+    const table = makeViewCatalogue({ seed: 424242, n });
+    const server = await startViewServer({ file: `bench-${n}.arrow`, table, port: 0 });
+    const nav: number[] = [];
+    const own: number[] = [];
+    const kernel: number[] = [];
+    const total: number[] = [];
+    const frame: number[] = [];
+    const home: number[] = [];
+    const rnd = randomLcg(n);
+    try {
+      for (let run = 0; run <= RUNS; run++) {
+        const page = await browser.newPage();
+        await page.goto(server.url);
+        await page.waitForSelector("body[data-ready='1']", { timeout: 120_000 });
+        const t = (await page.evaluate(`({ nav: performance.now(), own: window.peculiarView.timing.firstDrawMs })`)) as { nav: number; own: number };
+        if (run > 0) {
+          // run 0 warms the browser's caches and the JIT
+          nav.push(t.nav);
+          own.push(t.own);
+        }
+        for (let k = 0; k < (run === 0 ? 2 : RECENTRES); k++) {
+          const row = Math.floor(rnd() * n);
+          const r = (await page.evaluate(`(async () => {
+            const v = window.peculiarView;
+            const t0 = performance.now();
+            const t = v.recentreOn(${row});
+            await new Promise((ok) => requestAnimationFrame(() => ok()));
+            const toFrame = performance.now() - t0;
+            const h0 = performance.now();
+            v.goHome();
+            const homeMs = performance.now() - h0;
+            await new Promise((ok) => requestAnimationFrame(() => ok()));
+            return { kernel: t.kernelMs, total: t.totalMs, frame: toFrame, home: homeMs };
+          })()`)) as { kernel: number; total: number; frame: number; home: number };
+          if (run === 0) continue;
+          kernel.push(r.kernel);
+          total.push(r.total);
+          frame.push(r.frame);
+          home.push(r.home);
+        }
+        await page.close();
+      }
+    } finally {
+      await server.close();
+    }
+    rows.push({
+      n,
+      firstDrawNav: median(nav),
+      firstDrawPage: median(own),
+      kernel: median(kernel),
+      recentre: median(total),
+      recentreFrame: median(frame),
+      home: median(home),
+    });
+  }
+} finally {
+  await browser.close();
+}
+
+const f = (x: number) => x.toFixed(1).padStart(8);
+console.log(`Chromium ${"headless"}; Node ${process.version}; medians of ${RUNS} page loads and ${RUNS * RECENTRES} re-centrings`);
+console.log("galaxies | first draw (nav) ms | first draw (page) ms | recentre kernel ms | recentre + redraw ms | to next frame ms | home redraw (baseline) ms | recentre / home");
+for (const r of rows) {
+  console.log(`${String(r.n).padStart(8)} | ${f(r.firstDrawNav)} | ${f(r.firstDrawPage)} | ${f(r.kernel)} | ${f(r.recentre)} | ${f(r.recentreFrame)} | ${f(r.home)} | ${(r.recentre / r.home).toFixed(2)}`);
+}
+const big = rows.find((r) => r.n === 100_000);
+if (big) console.log(`target: re-centre 1e5 under 100 ms: ${big.recentre < 100 ? "met" : "NOT met"} (${big.recentre.toFixed(1)} ms; ${big.recentreFrame.toFixed(1)} ms to the next frame)`);
