@@ -1,3 +1,4 @@
+// Expected values follow from the invented inputs and the rules in DEVELOPERS.md "Catalogue formats".
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { mkdtempSync, readdirSync, rmSync, writeFileSync, symlinkSync, existsSync, readFileSync } from "node:fs";
 import { tmpdir } from "node:os";

@@ -4,7 +4,7 @@
  * Decisions (also in DEVELOPERS.md, "Catalogue formats"):
  * - TFORM L, X, B, I, J, K, E, D, A. A repeat count r > 1 on a numeric, logical or bit field gives
  *   r columns `name_0` .. `name_{r-1}` (bits: one bool column per bit, bit 0 = most significant
- *   bit of the first byte, FITS 4.0 §7.3.3.1); `rA` is one string of up to r bytes (UTF-8 read,
+ *   bit of the first byte, FITS 4.0 §7.3); `rA` is one string of up to r bytes (UTF-8 read,
  *   cut at the first NUL, trailing spaces dropped; empty -> null). C, M, P, Q fields are left out
  *   and listed in peculiar.source `skipped`.
  * - TZEROn/TSCALn: TSCAL 1 with TZERO -128 (B), 32768 (I), 2147483648 (J) or
@@ -39,7 +39,7 @@ interface Hdu {
   extname?: string;
 }
 
-/** The size of an HDU's data in bytes (FITS 4.0 eq. 2 and §7.3.1 with the heap). */
+/** The size of an HDU's data in bytes (FITS 4.0: |BITPIX|/8 * GCOUNT * (PCOUNT + NAXIS1 * ... * NAXISn)). */
 function dataSize(h: Header, primary: boolean): number {
   const naxis = num(h, "NAXIS", 0)!;
   if (naxis === 0) return 0;

@@ -295,7 +295,7 @@ function putText(s: Sink, i: number, datatype: string, text: string, nullValue: 
       return true;
     }
     default: {
-      // integers, decimal or hexadecimal (VOTable 1.4 §6)
+      // integers, decimal or hexadecimal (VOTable 1.4 TABLEDATA)
       if (!INT_TEXT.test(t) && !HEX_TEXT.test(t)) {
         s.setNull(i);
         return false;
@@ -470,7 +470,7 @@ function readElement(view: DataView, bytes: Uint8Array, at: number, e: number, c
   switch (dt) {
     case "bit":
       // A single bit: any set bit is true. The standard puts it in the most significant bit;
-      // astropy 5.2.1 writes 0x08. Arrays: most significant bit first (VOTable 1.4 §5.4).
+      // astropy 5.2.1 writes 0x08. Arrays: most significant bit first (VOTable 1.4).
       if (count === 1) return bytes[at] !== 0 ? 1 : 0;
       return bytes[at + (e >> 3)]! & (0x80 >> (e & 7)) ? 1 : 0;
     case "boolean": {

@@ -1,3 +1,5 @@
+// Expected values follow from the invented inputs and the rules in DEVELOPERS.md "Catalogue formats"
+// (our own decisions); facts of a format cite their standard beside them.
 import { describe, expect, it } from "vitest";
 import { readFileSync } from "node:fs";
 import { join } from "node:path";

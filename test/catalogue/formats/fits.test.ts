@@ -1,3 +1,5 @@
+// Expected values follow from the invented inputs and the rules in DEVELOPERS.md "Catalogue formats"
+// (our own decisions); facts of a format cite their standard beside them.
 import { describe, expect, it } from "vitest";
 import { readFileSync } from "node:fs";
 import { join } from "node:path";
@@ -55,8 +57,8 @@ describe("FITS reader against astropy 5.2.1 fixtures (test/reference/make_format
   });
 });
 
-describe("FITS reader on hand-built files (FITS Standard 4.0 §7.3)", () => {
-  it("reads unsigned and signed-byte integers stored with TZERO (FITS 4.0 Table 19)", () => {
+describe("FITS reader on hand-built files (FITS Standard 4.0 binary tables)", () => {
+  it("reads unsigned and signed-byte integers stored with TZERO (FITS Standard 4.0 §7.3, TZEROn convention for unsigned integers; section from memory)", () => {
     // one row per value; columns: 1B TZERO -128, 1I TZERO 32768, 1J TZERO 2147483648, 1K TZERO 2^63
     const rows = [
       { b: 0, i: -32768, j: -2147483648, k: -(2n ** 63n) }, // physical minimums
@@ -85,7 +87,7 @@ describe("FITS reader on hand-built files (FITS Standard 4.0 §7.3)", () => {
   });
 
   it("applies a general TSCAL/TZERO as physical = TZERO + TSCAL * stored, TNULL on the stored value", () => {
-    // FITS 4.0 §7.3.2 eq. 7
+    // FITS Standard 4.0 §7.3: physical = TZEROn + TSCALn * stored, TNULLn on the stored value (from memory)
     const data = new Uint8Array(6);
     const dv = new DataView(data.buffer);
     [4, -7, 99].forEach((x, n) => dv.setInt16(n * 2, x, false));
@@ -97,7 +99,7 @@ describe("FITS reader on hand-built files (FITS Standard 4.0 §7.3)", () => {
   });
 
   it("reads 3X bits most significant first, L with a zero byte as null, A cut at NUL and trailing blanks", () => {
-    // FITS 4.0 §7.3.3.1: bit arrays start at the most significant bit; L: 'T', 'F', 0 = undefined
+    // FITS Standard 4.0 §7.3 (from memory): bit arrays start at the most significant bit; L: 'T', 'F', 0 = undefined
     const data = new Uint8Array([0b10100000, 0x54, ...new TextEncoder().encode("ab  "), 0b01000000, 0x00, 0x78, 0, 0x79, 0x79, 0b00100000, 0x46, 32, 32, 32, 32]);
     const cols = [kv("TTYPE1", "'x'"), kv("TFORM1", "'3X'"), kv("TTYPE2", "'ok'"), kv("TFORM2", "'L'"), kv("TTYPE3", "'s'"), kv("TFORM3", "'4A'")];
     const t = parseFits(concat(primaryHeader(), bintable(6, 3, cols, data)), { file: "x.fits" });
@@ -248,7 +250,7 @@ describe("fitsFromTable", () => {
     }
   });
 
-  it("writes every HDU in whole 2880-byte blocks (FITS 4.0 §3.1)", () => {
+  it("writes every HDU in whole 2880-byte blocks (FITS Standard 4.0, 2880-byte logical records; from memory)", () => {
     expect(fitsFromTable(tableFromColumns(everyType())).length % 2880).toBe(0);
   });
 });

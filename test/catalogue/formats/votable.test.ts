@@ -1,3 +1,5 @@
+// Expected values follow from the invented inputs and the rules in DEVELOPERS.md "Catalogue formats"
+// (our own decisions); facts of a format cite their standard beside them.
 import { describe, expect, it } from "vitest";
 import { readFileSync } from "node:fs";
 import { join } from "node:path";
@@ -25,7 +27,7 @@ describe("VOTable reader against astropy 5.2.1 fixtures (test/reference/make_for
       for (const [name, { values, unit }] of Object.entries(expected[file]!)) {
         const kind = columnDataOf(t, name).kind;
         let want = kind === "int64" ? values.map((v) => (v === null ? null : BigInt(v as string))) : values;
-        // astropy 5.2.1 reads a masked char cell back as "" (no mask on strings); we read "" as null (VOTable 1.4 §6: empty TD is null)
+        // astropy 5.2.1 reads a masked char cell back as "" (no mask on strings); we read "" as null (VOTable 1.4 Recommendation, TABLEDATA: empty TD is null)
         if (kind === "utf8") want = want.map((v) => (v === "" ? null : v));
         expect(cells(t, name), `${file} ${name}`).toEqual(want);
         expect(columnMeta(t, name).unit ?? null, `${file} ${name} unit`).toBe(unit);
@@ -38,14 +40,14 @@ describe("VOTable reader against astropy 5.2.1 fixtures (test/reference/make_for
   }
 });
 
-/** BINARY2 bytes for hand-built rows: flag bytes then big-endian cells (VOTable 1.4 §5.5). */
+/** BINARY2 bytes for hand-built rows: flag bytes then big-endian cells (VOTable 1.4 Recommendation, BINARY2; from memory). */
 function b64(bytes: number[]): string {
   return btoa(String.fromCharCode(...bytes));
 }
 
-describe("VOTable reader on hand-built files (VOTable 1.4)", () => {
+describe("VOTable reader on hand-built files (VOTable 1.4 Recommendation)", () => {
   it("reads BINARY2 null bits, most significant bit first, across two flag bytes", () => {
-    // 9 short fields -> 2 flag bytes; row 1: field 1 and field 9 null; row 2: field 8 null (VOTable 1.4 §5.5)
+    // 9 short fields -> 2 flag bytes; row 1: field 1 and field 9 null; row 2: field 8 null (VOTable 1.4 Recommendation, BINARY2 null flags; from memory)
     const fields = Array.from({ length: 9 }, (_, k) => `<FIELD name="f${k + 1}" datatype="short"/>`).join("");
     const row = (flags: [number, number], base: number) => [flags[0], flags[1], ...Array.from({ length: 9 }, (_, k) => [0, base + k]).flat()];
     const bytes = [...row([0b10000000, 0b10000000], 10), ...row([0b00000001, 0], 20)];
