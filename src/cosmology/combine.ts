@@ -2,7 +2,9 @@
  * The combine step on a table that holds distance moduli from several catalogues (after a
  * cross-match: columns such as `a_mu`, `b_mu` with `a_mu_err`, `b_mu_err`): the zero-point offset
  * of each catalogue against a reference from the galaxies they share (zeropoint.ts), applied on
- * request, then the inverse-variance combination per galaxy.
+ * request, then the inverse-variance combination per galaxy. The network solution (zeroPointNetwork:
+ * every overlap at once, so a catalogue linked to the reference only through another one is tied
+ * too) is always reported and applied instead with `network`.
  *
  * Columns added: mu, mu_err (mag), n_dist (moduli combined), mu_chi2 (chi^2 of those moduli about
  * the combined one, n_dist - 1 degrees of freedom). The `mu` and `mu_err` roles of the output point
@@ -16,7 +18,7 @@ import { float64Column, hasColumn, type ColumnData } from "../catalogue/columns.
 import { META, getRoles, recordStep, setJsonMeta } from "../catalogue/meta.js";
 import { withColumns } from "../catalogue/columns.js";
 import { PeculiarError } from "../errors.js";
-import { combineModuli, zeroPointOffset } from "./zeropoint.js";
+import { combineModuli, zeroPointNetwork, zeroPointOffset } from "./zeropoint.js";
 import { addColumnsKeepingInputs } from "./velocities.js";
 
 export interface CombineOptions {
@@ -28,6 +30,8 @@ export interface CombineOptions {
   reference?: string;
   /** Subtract the measured offsets before combining. */
   apply: boolean;
+  /** Apply the network solution (all overlaps at once) instead of each catalogue against the reference. */
+  network?: boolean;
   /** Clipping threshold of the robust check (default 3). */
   kappa?: number;
   file?: string;
@@ -49,6 +53,9 @@ export interface CatalogueOffset {
   clippedOffsetErrMag: number;
   nRejected: number;
   kappa: number;
+  /** The network solution's offset and error (zeroPointNetwork; NaN when not linked to the reference). */
+  networkOffsetMag: number;
+  networkOffsetErrMag: number;
   /** The offset subtracted from this column before combining (0 when not applied). */
   appliedMag: number;
 }
@@ -57,6 +64,8 @@ export interface CombineReport {
   rows: number;
   reference: string;
   applied: boolean;
+  /** Which offsets were applied: each catalogue against the reference, or the network solution. */
+  solution: "pairwise" | "network";
   offsets: CatalogueOffset[];
   /** Rows by number of moduli combined: {"0": .., "1": .., "2": ..}. */
   nDist: Record<string, number>;
@@ -109,19 +118,25 @@ export function combineDistances(table: Table, o: CombineOptions): { table: Tabl
   const mus = o.muColumns.map((c) => float64Column(table, c));
   const errs = errNames.map((c) => float64Column(table, c));
   const notes: string[] = [];
+  const net = zeroPointNetwork(mus, errs, ref);
+  const network = o.network === true;
   const offsets: CatalogueOffset[] = o.muColumns.map((c, k) => {
     if (k === ref) {
       // The reference against itself: zero by definition; nShared counts its usable moduli.
       let m = 0;
       for (let i = 0; i < mus[k]!.length; i++) if (Number.isFinite(mus[k]![i]!) && errs[k]![i]! > 0) m++;
       const kappa = o.kappa ?? 3;
-      return { column: c, errColumn: errNames[k]!, isReference: true, offsetMag: 0, offsetErrMag: 0, nShared: m, chi2Dof: NaN, scatterMag: NaN, medianMag: 0, clippedOffsetMag: 0, clippedOffsetErrMag: 0, nRejected: 0, kappa, appliedMag: 0 };
+      return { column: c, errColumn: errNames[k]!, isReference: true, offsetMag: 0, offsetErrMag: 0, nShared: m, chi2Dof: NaN, scatterMag: NaN, medianMag: 0, clippedOffsetMag: 0, clippedOffsetErrMag: 0, nRejected: 0, kappa, networkOffsetMag: 0, networkOffsetErrMag: 0, appliedMag: 0 };
     }
     const r = zeroPointOffset(mus[ref]!, errs[ref]!, mus[k]!, errs[k]!, o.kappa !== undefined ? { kappa: o.kappa } : {});
     let appliedMag = 0;
-    if (o.apply) {
+    const netOff = net.offsetsMag[k]!;
+    if (o.apply && network) {
+      if (Number.isFinite(netOff)) appliedMag = netOff;
+      else notes.push(`${c} is not linked to the reference ${o.muColumns[ref]} through shared galaxies: its offset is unknown and not applied`);
+    } else if (o.apply) {
       if (r.nShared > 0) appliedMag = r.offsetMag;
-      else notes.push(`${c} shares no galaxy with the reference ${o.muColumns[ref]}: its offset is unknown and not applied`);
+      else notes.push(`${c} shares no galaxy with the reference ${o.muColumns[ref]}: its offset is unknown and not applied${Number.isFinite(netOff) ? " (it is linked through another catalogue: --network ties it)" : ""}`);
     }
     if (r.nShared > 1 && Math.abs(r.offsetMag - r.clippedOffsetMag) > 2 * r.offsetErrMag) {
       notes.push(`${c}: the clipped offset (${r.clippedOffsetMag.toFixed(3)} mag, ${r.nRejected} rejected) differs from the plain one (${r.offsetMag.toFixed(3)}) by more than 2 sigma; check for wrong cross-identifications`);
@@ -140,6 +155,8 @@ export function combineDistances(table: Table, o: CombineOptions): { table: Tabl
       clippedOffsetErrMag: r.clippedOffsetErrMag,
       nRejected: r.nRejected,
       kappa: r.kappa,
+      networkOffsetMag: netOff,
+      networkOffsetErrMag: net.offsetsErrMag[k]!,
       appliedMag,
     };
   });
@@ -176,10 +193,11 @@ export function combineDistances(table: Table, o: CombineOptions): { table: Tabl
   meta = recordStep(meta, "combine", {
     reference: refName,
     applied: o.apply,
+    solution: network ? "network" : "pairwise",
     muColumns: o.muColumns,
     errColumns: errNames,
-    offsets: offsets.map((x) => ({ column: x.column, offsetMag: x.offsetMag, offsetErrMag: x.offsetErrMag, nShared: x.nShared, clippedOffsetMag: x.clippedOffsetMag, appliedMag: x.appliedMag })),
+    offsets: offsets.map((x) => ({ column: x.column, offsetMag: x.offsetMag, offsetErrMag: x.offsetErrMag, nShared: x.nShared, clippedOffsetMag: x.clippedOffsetMag, networkOffsetMag: x.networkOffsetMag, appliedMag: x.appliedMag })),
   });
   const out = withColumns(added.table, [], meta);
-  return { table: out, report: { rows: n, reference: refName, applied: o.apply, offsets, nDist, notes, renamed: added.renamed } };
+  return { table: out, report: { rows: n, reference: refName, applied: o.apply, solution: network ? "network" : "pairwise", offsets, nDist, notes, renamed: added.renamed } };
 }

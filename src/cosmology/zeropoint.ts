@@ -202,3 +202,159 @@ export function combineModuli(mus: ArrayLike<number>[], errs: (ArrayLike<number>
   }
   return out;
 }
+
+export interface NetworkZeroPoints {
+  /** Offset of each catalogue against the reference (reference 0); NaN when not linked to it. */
+  offsetsMag: Float64Array;
+  offsetsErrMag: Float64Array;
+  /** Covariance of the offsets, k x k row-major (reference row and column 0; NaN when not linked). */
+  covariance: Float64Array;
+  /** 1 where the catalogue is linked to the reference through shared galaxies (directly or not). */
+  linked: Uint8Array;
+  /** Galaxies with two or more usable moduli (the ones that constrain the offsets). */
+  nGalaxies: number;
+  /** chi^2 of all moduli about their galaxies' means after the offsets, and its degrees of freedom. */
+  chi2: number;
+  dof: number;
+}
+
+/**
+ * All offsets at once from every galaxy measured more than once (a network solution): the model
+ * mu_kg = m_g + delta_k + noise, delta_ref = 0, with each galaxy's m_g profiled out, is linear in
+ * delta; weighted least squares gives, over galaxies g and their catalogues j, l (W_g = sum w):
+ *   A_jl = sum_g (w_j [j = l] - w_j w_l / W_g),  b_j = sum_g (w_j mu_j - w_j sum_l w_l mu_l / W_g),
+ *   delta = A^-1 b, Cov = A^-1 (common practice for zero-point ties; with two catalogues it is
+ *   exactly the weighted mean of the differences of zeroPointOffset). A catalogue that shares
+ *   galaxies only with another non-reference catalogue is still tied to the reference through it.
+ */
+export function zeroPointNetwork(mus: ArrayLike<number>[], errs: ArrayLike<number>[], reference: number): NetworkZeroPoints {
+  const k = mus.length;
+  const n = mus[0]?.length ?? 0;
+  const A = new Float64Array(k * k);
+  const b = new Float64Array(k);
+  const w = new Float64Array(k);
+  const m = new Float64Array(k);
+  // Links between catalogues, for connectivity (union-find on k items).
+  const parent = Int32Array.from({ length: k }, (_, i) => i);
+  const find = (x: number): number => {
+    while (parent[x] !== x) {
+      parent[x] = parent[parent[x]!]!;
+      x = parent[x]!;
+    }
+    return x;
+  };
+  let nGalaxies = 0;
+  let nMeas = 0;
+  for (let g = 0; g < n; g++) {
+    let W = 0;
+    let Wm = 0;
+    let cnt = 0;
+    let first = -1;
+    for (let j = 0; j < k; j++) {
+      const mu = mus[j]![g]!;
+      const e = errs[j]![g]!;
+      if (usable(mu, e)) {
+        w[j] = 1 / (e * e);
+        m[j] = mu;
+        W += w[j]!;
+        Wm += w[j]! * mu;
+        cnt++;
+        if (first < 0) first = j;
+        else parent[find(j)] = find(first);
+      } else w[j] = 0;
+    }
+    if (cnt < 2) continue;
+    nGalaxies++;
+    nMeas += cnt;
+    for (let j = 0; j < k; j++) {
+      if (w[j] === 0) continue;
+      b[j]! += w[j]! * m[j]! - (w[j]! * Wm) / W;
+      for (let l = 0; l < k; l++) if (w[l] !== 0) A[j * k + l]! += (j === l ? w[j]! : 0) - (w[j]! * w[l]!) / W;
+    }
+  }
+  const linked = new Uint8Array(k);
+  for (let j = 0; j < k; j++) linked[j] = find(j) === find(reference) ? 1 : 0;
+  // Unknowns: linked catalogues other than the reference.
+  const idx: number[] = [];
+  for (let j = 0; j < k; j++) if (linked[j] && j !== reference) idx.push(j);
+  const p = idx.length;
+  const M = new Float64Array(p * p);
+  const rhs = new Float64Array(p);
+  for (let a = 0; a < p; a++) {
+    rhs[a] = b[idx[a]!]!;
+    for (let c = 0; c < p; c++) M[a * p + c] = A[idx[a]! * k + idx[c]!]!;
+  }
+  const inv = invertSymmetric(M, p);
+  const offsetsMag = new Float64Array(k).fill(NaN);
+  const offsetsErrMag = new Float64Array(k).fill(NaN);
+  const covariance = new Float64Array(k * k).fill(NaN);
+  offsetsMag[reference] = 0;
+  offsetsErrMag[reference] = 0;
+  for (let j = 0; j < k; j++) if (linked[j]) {
+    covariance[reference * k + j] = 0;
+    covariance[j * k + reference] = 0;
+  }
+  for (let a = 0; a < p; a++) {
+    let s = 0;
+    for (let c = 0; c < p; c++) s += inv[a * p + c]! * rhs[c]!;
+    offsetsMag[idx[a]!] = s;
+    offsetsErrMag[idx[a]!] = Math.sqrt(inv[a * p + a]!);
+    for (let c = 0; c < p; c++) covariance[idx[a]! * k + idx[c]!] = inv[a * p + c]!;
+  }
+  // chi^2 of the moduli about their galaxies' weighted means once the offsets are removed.
+  let chi2 = 0;
+  for (let g = 0; g < n; g++) {
+    let W = 0;
+    let Wm = 0;
+    let cnt = 0;
+    for (let j = 0; j < k; j++) {
+      const mu = mus[j]![g]!;
+      const e = errs[j]![g]!;
+      const o = offsetsMag[j]!;
+      if (usable(mu, e) && Number.isFinite(o)) {
+        w[j] = 1 / (e * e);
+        m[j] = mu - o;
+        W += w[j]!;
+        Wm += w[j]! * m[j]!;
+        cnt++;
+      } else w[j] = 0;
+    }
+    if (cnt < 2) continue;
+    const mean = Wm / W;
+    for (let j = 0; j < k; j++) if (w[j] !== 0) chi2 += w[j]! * (m[j]! - mean) ** 2;
+  }
+  return { offsetsMag, offsetsErrMag, covariance, linked, nGalaxies, chi2, dof: nMeas - nGalaxies - p };
+}
+
+/** Inverse of a small symmetric positive-definite matrix by Gauss-Jordan with partial pivoting (NaN if singular). */
+function invertSymmetric(M: Float64Array, p: number): Float64Array {
+  const a = Float64Array.from(M);
+  const inv = new Float64Array(p * p);
+  for (let i = 0; i < p; i++) inv[i * p + i] = 1;
+  for (let col = 0; col < p; col++) {
+    let piv = col;
+    for (let r = col + 1; r < p; r++) if (Math.abs(a[r * p + col]!) > Math.abs(a[piv * p + col]!)) piv = r;
+    const d = a[piv * p + col]!;
+    if (!(Math.abs(d) > 0)) return new Float64Array(p * p).fill(NaN);
+    if (piv !== col) {
+      for (let c = 0; c < p; c++) {
+        [a[col * p + c], a[piv * p + c]] = [a[piv * p + c]!, a[col * p + c]!];
+        [inv[col * p + c], inv[piv * p + c]] = [inv[piv * p + c]!, inv[col * p + c]!];
+      }
+    }
+    for (let c = 0; c < p; c++) {
+      a[col * p + c]! /= d;
+      inv[col * p + c]! /= d;
+    }
+    for (let r = 0; r < p; r++) {
+      if (r === col) continue;
+      const f = a[r * p + col]!;
+      if (f === 0) continue;
+      for (let c = 0; c < p; c++) {
+        a[r * p + c]! -= f * a[col * p + c]!;
+        inv[r * p + c]! -= f * inv[col * p + c]!;
+      }
+    }
+  }
+  return inv;
+}

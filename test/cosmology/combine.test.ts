@@ -111,6 +111,33 @@ describe("the combine step", () => {
     expect(() => combineDistances(t, { muColumns: [], apply: false })).toThrow(/at least one/);
   });
 
+  it("with network, ties a catalogue that overlaps only another one and applies its offset", () => {
+    // Invented rows: a and b share g1-g3, b and c share g4-g6, a and c share none. Offsets by construction:
+    // b - a = +0.2 exactly, c - b = -0.3 exactly, so c - a = -0.1 (no noise: the solution is exact).
+    const a = [33, 34, 35, NaN, NaN, NaN];
+    const b = [33.2, 34.2, 35.2, 32.2, 33.7, 36.2];
+    const c = [NaN, NaN, NaN, 31.9, 33.4, 35.9];
+    const e = (x: number[]) => Float64Array.from(x.map((v) => (Number.isFinite(v) ? 0.2 : NaN)));
+    const cols: ColumnData[] = [
+      { name: "a_mu", kind: "float64", values: Float64Array.from(a) },
+      { name: "a_mu_err", kind: "float64", values: e(a) },
+      { name: "b_mu", kind: "float64", values: Float64Array.from(b) },
+      { name: "b_mu_err", kind: "float64", values: e(b) },
+      { name: "c_mu", kind: "float64", values: Float64Array.from(c) },
+      { name: "c_mu_err", kind: "float64", values: e(c) },
+    ];
+    const t = tableFromColumns(cols);
+    const pair = combineDistances(t, { muColumns: ["a_mu", "b_mu", "c_mu"], apply: true });
+    expect(pair.report.offsets[2]!.appliedMag).toBe(0);
+    expect(pair.report.notes.join(" ")).toMatch(/--network ties it/);
+    const net = combineDistances(t, { muColumns: ["a_mu", "b_mu", "c_mu"], apply: true, network: true });
+    expect(net.report.solution).toBe("network");
+    expect(net.report.offsets[1]!.appliedMag).toBeCloseTo(0.2, 12);
+    expect(net.report.offsets[2]!.appliedMag).toBeCloseTo(-0.1, 12);
+    // Every galaxy ends on a's zero point: g4 has b = 32.2 and c = 31.9, both 32.0 after the offsets.
+    expect(float64Column(net.table, "mu")[3]).toBeCloseTo(32.0, 12);
+  });
+
   it("reports, and does not apply, the offset of a catalogue that shares no galaxy with the reference", () => {
     const cols: ColumnData[] = [
       { name: "a_mu", kind: "float64", values: Float64Array.from([33, NaN]) },

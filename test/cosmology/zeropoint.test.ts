@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
 import { randomLcg, randomNormal, randomUniform } from "d3-random";
-import { combineModuli, zeroPointOffset } from "../../src/cosmology/zeropoint.js";
+import { combineModuli, zeroPointNetwork, zeroPointOffset } from "../../src/cosmology/zeropoint.js";
 
 /**
  * Two synthetic catalogues of one invented sky: N galaxies with true moduli uniform in [32, 37];
@@ -152,5 +152,66 @@ describe("combining moduli", () => {
   it("empty input gives empty output", () => {
     expect(combineModuli([], []).muMag.length).toBe(0);
     expect(combineModuli([[]], [[]]).muMag.length).toBe(0);
+  });
+});
+
+/**
+ * Three invented catalogues over one sky (seeded): truth uniform in [32, 37]; each catalogue k
+ * measures galaxy g with probability frac[k] inside its own slice of the galaxy list, with error
+ * sigma[k] and zero point offset[k]. The slices decide who overlaps whom.
+ */
+function three(seed: number, n: number, offset: number[], sigma: number[], slices: [number, number][]) {
+  const src = randomLcg(seed);
+  const u = randomUniform.source(src)(0, 1);
+  const g = randomNormal.source(src)(0, 1);
+  const mus = offset.map(() => new Float64Array(n).fill(NaN));
+  const errs = offset.map(() => new Float64Array(n).fill(NaN));
+  for (let i = 0; i < n; i++) {
+    const t = 32 + 5 * u();
+    for (let k = 0; k < offset.length; k++) {
+      const [lo, hi] = slices[k]!;
+      if (i >= lo * n && i < hi * n && u() < 0.7) {
+        mus[k]![i] = t + offset[k]! + sigma[k]! * g();
+        errs[k]![i] = sigma[k]!;
+      }
+    }
+  }
+  return { mus, errs };
+}
+
+describe("network zero points", () => {
+  it("equals the pairwise weighted mean for two catalogues (twin check)", () => {
+    const { muA, muB, eA, eB } = synthetic(20260101, 2000, 0.15);
+    const pair = zeroPointOffset(muA, eA, muB, eB);
+    const net = zeroPointNetwork([muA, muB], [eA, eB], 0);
+    expect(net.offsetsMag[0]).toBe(0);
+    expect(Math.abs(net.offsetsMag[1]! - pair.offsetMag)).toBeLessThan(1e-12);
+    expect(Math.abs(net.offsetsErrMag[1]! - pair.offsetErrMag)).toBeLessThan(1e-12);
+    expect(net.nGalaxies).toBe(pair.nShared);
+    // chi2 about the means equals the pairwise chi2 (one degree of freedom a galaxy, minus one offset).
+    expect(Math.abs(net.chi2 / net.dof - pair.chi2Dof)).toBeLessThan(1e-9);
+  });
+
+  it("ties a catalogue that shares galaxies only with a third one to the reference", () => {
+    // Seed 314, 6000 galaxies: a covers the first 40 %, b the middle 20-80 %, c the last 35 %; a and c never
+    // overlap. Truth: offsets b - a = +0.20, c - a = -0.10 mag (generator input).
+    const { mus, errs } = three(314, 6000, [0, 0.2, -0.1], [0.35, 0.3, 0.4], [[0, 0.4], [0.2, 0.8], [0.65, 1]]);
+    expect(zeroPointOffset(mus[0]!, errs[0]!, mus[2]!, errs[2]!).nShared).toBe(0);
+    const net = zeroPointNetwork(mus, errs, 0);
+    expect(Array.from(net.linked)).toEqual([1, 1, 1]);
+    expect(Math.abs(net.offsetsMag[1]! - 0.2)).toBeLessThan(3 * net.offsetsErrMag[1]!);
+    expect(Math.abs(net.offsetsMag[2]! - -0.1)).toBeLessThan(3 * net.offsetsErrMag[2]!);
+    // c's error includes b's: it is larger than b's.
+    expect(net.offsetsErrMag[2]!).toBeGreaterThan(net.offsetsErrMag[1]!);
+    expect(Math.abs(net.chi2 / net.dof - 1)).toBeLessThan(0.1);
+  });
+
+  it("leaves a catalogue with no link to the reference at NaN", () => {
+    const { mus, errs } = three(2, 1000, [0, 0.1, 0.3], [0.3, 0.3, 0.3], [[0, 0.5], [0, 0.5], [0.6, 1]]);
+    const net = zeroPointNetwork(mus, errs, 1);
+    expect(Array.from(net.linked)).toEqual([1, 1, 0]);
+    expect(net.offsetsMag[1]).toBe(0);
+    expect(Number.isNaN(net.offsetsMag[2]!)).toBe(true);
+    expect(Math.abs(net.offsetsMag[0]! - -0.1)).toBeLessThan(3 * net.offsetsErrMag[0]!);
   });
 });

@@ -28,6 +28,9 @@ options:
                         or ALIAS_e_NAME / ALIAS_NAME_err for ALIAS_NAME)
   --reference R         the reference: one of the --mu columns or its alias prefix (default the first)
   --apply               subtract the offsets before combining (default: report only)
+  --network             apply the network solution instead: all offsets fitted at once from every
+                        galaxy measured more than once (m_g + offset_k per modulus), so a catalogue
+                        that overlaps only another non-reference catalogue is tied too (always reported)
   --kappa K             clipping threshold of the robust check, in sigma (default 3)
   --report FILE         write the offsets JSON to FILE instead of stdout
   --format F            input format (csv, tsv, votable, fits, arrow)
@@ -53,6 +56,7 @@ const command: Command = {
         err: { type: "string" },
         reference: { type: "string" },
         apply: { type: "boolean" },
+        network: { type: "boolean" },
         kappa: { type: "string" },
         report: { type: "string" },
         format: { type: "string" },
@@ -69,20 +73,20 @@ const command: Command = {
     if (!mu || mu.some((c) => c === "")) throw usageError("combine needs --mu with the modulus columns, comma-separated", { value: values.mu, expected: "e.g. --mu a_mu,b_mu" });
     if (values.report !== undefined) assertNotSameFile(input, values.report);
     const table = await readTable(input, values.format !== undefined ? { format: parseFormatName(values.format) } : {});
-    const options: CombineOptions = { muColumns: mu, apply: values.apply === true, file: input };
+    const options: CombineOptions = { muColumns: mu, apply: values.apply === true, network: values.network === true, file: input };
     const err = list(values.err);
     if (err) options.errColumns = err.map((e) => (e === "" ? undefined : e));
     if (values.reference !== undefined) options.reference = values.reference;
     if (values.kappa !== undefined) options.kappa = numberFlag(values.kappa, "kappa", 3, (x) => x > 0, "a positive number");
     const { table: out, report } = combineDistances(table, options);
     await writeTable(out, output, values["out-format"] !== undefined ? { format: parseFormatName(values["out-format"]) } : {});
-    const json = JSON.stringify({ input, output, reference: report.reference, applied: report.applied, rows: report.rows, nDist: report.nDist, offsets: report.offsets, notes: report.notes }, null, 2) + "\n";
+    const json = JSON.stringify({ input, output, reference: report.reference, applied: report.applied, solution: report.solution, rows: report.rows, nDist: report.nDist, offsets: report.offsets, notes: report.notes }, null, 2) + "\n";
     if (values.report !== undefined) await writeFileAtomic(values.report, json);
     else io.stdout.write(json);
-    io.note(`combine: ${report.rows} rows; reference ${report.reference}; offsets ${report.applied ? "applied" : "reported only (use --apply)"}`);
+    io.note(`combine: ${report.rows} rows; reference ${report.reference}; offsets ${report.applied ? `applied (${report.solution})` : "reported only (use --apply)"}`);
     for (const o of report.offsets) {
       if (o.column === report.reference) continue;
-      io.note(`  ${o.column} - ${report.reference}: ${o.offsetMag.toFixed(4)} +- ${o.offsetErrMag.toFixed(4)} mag from ${o.nShared} shared (clipped ${o.clippedOffsetMag.toFixed(4)}, ${o.nRejected} rejected; chi2/dof ${o.chi2Dof.toFixed(2)})`);
+      io.note(`  ${o.column} - ${report.reference}: ${o.offsetMag.toFixed(4)} +- ${o.offsetErrMag.toFixed(4)} mag from ${o.nShared} shared (clipped ${o.clippedOffsetMag.toFixed(4)}, ${o.nRejected} rejected; chi2/dof ${o.chi2Dof.toFixed(2)}; network ${o.networkOffsetMag.toFixed(4)} +- ${o.networkOffsetErrMag.toFixed(4)})`);
     }
     const byN = Object.entries(report.nDist).sort((a, b) => Number(a[0]) - Number(b[0])).map(([k, v]) => `${v} with ${k}`).join(", ");
     io.note(`  galaxies by number of moduli: ${byN}`);
