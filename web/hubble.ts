@@ -163,6 +163,15 @@ export class HubblePanel extends CanvasPanel {
     };
     if (!home) line(this.home.h0, INK, "5,4");
     line(o.h0, ORIGIN_MARK, null);
+    if (drawn === 0) {
+      g.append("text")
+        .attr("x", (M.left + w - M.right) / 2)
+        .attr("y", y0 + mainH / 2)
+        .attr("text-anchor", "middle")
+        .attr("fill", INK)
+        .attr("class", "empty-note")
+        .text("no galaxy has both a distance and a peculiar velocity: nothing to draw (unknown)");
+    }
     const fmt = (v: number, e: number) => (Number.isFinite(v) ? `${v.toFixed(2)} ± ${e.toFixed(2)}` : "unknown");
     const legend = g.append("g").attr("transform", `translate(${M.left + 10},${y0 + 16})`);
     legend.append("text").attr("fill", ORIGIN_MARK).text(`${home ? "from here" : "from " + o.label}: H = ${fmt(o.h0, o.h0Err)} km/s/Mpc (${o.nUsed} galaxies)`);
