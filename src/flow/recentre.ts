@@ -49,12 +49,14 @@ export interface RecentreOptions {
   /** Points closer to the origin than this are left out, Mpc. Default 0. */
   minDistMpc?: number;
   /**
-   * Minor form only. "log" (default): maximum likelihood with Gaussian errors in ln D along each
+   * Minor form only. "auto" (default) takes "log" when distance errors dominate (median vrErr of the used
+   * rows > sigmaStar) and "linear" otherwise. "log": maximum likelihood with Gaussian errors in ln D along each
    * galaxy's line of sight (see logDistanceFit); "linear": least squares of v_AB = H s + d . e at the
    * observed positions, which is biased by the log-normal distance errors (about +1% from us and -1.4%
-   * from other galaxies for 18% errors, measured on mocks).
+   * from other galaxies for 18% errors, measured on mocks) but unbiased when velocity noise dominates,
+   * where "log" is biased instead (sigma*^2 / (H <D^2>): +0.15% on a 120 Mpc mock without distance errors).
    */
-  estimator?: "log" | "linear";
+  estimator?: "auto" | "log" | "linear";
 }
 
 export interface Recentred {
@@ -201,7 +203,8 @@ export function recentre(points: RecentrePoints, origin: RecentreOrigin, opts: R
   let chi2 = linearFit.chi2;
   let dof = linearFit.dof;
   let nUsed = linearFit.nUsed;
-  if (form === "minor" && (opts.estimator ?? "log") === "log" && linearFit.ok) {
+  const estimator = form === "minor" ? chooseEstimator(opts.estimator ?? "auto", vrErr, used, sigmaStar) : "linear";
+  if (estimator === "log" && linearFit.ok) {
     const g = logDistanceFit(points, o, used, vAB, { h0: opts.h0, hStart: h, dStart: d, fitH0, fitDipole, sigmaStar });
     if (g.ok) {
       h = g.h;
@@ -251,7 +254,7 @@ export function recentre(points: RecentrePoints, origin: RecentreOrigin, opts: R
     origin: { x: ox, y: oy, z: oz, vx: o.vx, vy: o.vy, vz: o.vz },
     chi2: fit.chi2,
     dof: fit.dof,
-    estimator: form === "minor" && (opts.estimator ?? "log") === "log" ? "log" : "linear",
+    estimator,
     velocityModel: "radial-only",
   };
 }
@@ -321,47 +324,21 @@ function logDistanceFit(
   const SG = new Float64Array(n);
   const use = new Uint8Array(n);
   const rA2 = o.x * o.x + o.y * o.y + o.z * o.z;
+  const T = new Float64Array(8);
   for (let it = 0; it < MAX_ITER; it++) {
     for (let i = 0; i < n; i++) {
       use[i] = 0;
       if (!used[i] || !Number.isFinite(vAB[i]!)) continue;
       const dObs = norm3(x[i]!, y[i]!, z[i]!);
-      const ax = x[i]! / dObs;
-      const ay = y[i]! / dObs;
-      const az = z[i]! / dObs;
-      // w - d, with w = V_B a - v_A
-      const wx = vr[i]! * ax - o.vx - d[0];
-      const wy = vr[i]! * ay - o.vy - d[1];
-      const wz = vr[i]! * az - o.vz - d[2];
-      const q = wx * ax + wy * ay + wz * az;
-      const dc = ax * o.x + ay * o.y + az * o.z;
-      const px = dc * ax - o.x;
-      const py = dc * ay - o.y;
-      const pz = dc * az - o.z;
-      const b2 = Math.max(0, rA2 - dc * dc);
-      const c0 = h * b2 - (wx * px + wy * py + wz * pz);
-      const disc = q * q - 4 * h * c0;
-      if (!(disc > 0) || q === 0) continue;
-      const root = Math.sqrt(disc);
-      const t = (q + (q > 0 ? root : -root)) / (2 * h);
-      const dp = dc + t;
-      if (!(dp > 0)) continue;
-      const sx = dp * ax - o.x;
-      const sy = dp * ay - o.y;
-      const sz = dp * az - o.z;
-      const sp = Math.sqrt(sx * sx + sy * sy + sz * sz);
-      if (!(sp > 0)) continue;
-      const fD = q > 0 ? root : -root; // F'(D_pred) = 2 H t - q
-      const kappa = (fD * dp) / sp;
-      const rho = Math.log(dObs / dp);
+      if (!lineTerms(x[i]! / dObs, y[i]! / dObs, z[i]! / dObs, dObs, vr[i]!, o, d, h, rA2, T)) continue;
       const e = vrErr ? vrErr[i]! : 0;
       const f = Number.isFinite(e) ? e / (opts.h0 * dObs) : 0;
-      X[i] = sp;
-      Y[i] = -kappa * rho;
-      EX[i] = sx / sp;
-      EY[i] = sy / sp;
-      EZ[i] = sz / sp;
-      SG[i] = Math.abs(kappa) * f;
+      Y[i] = T[0]!;
+      X[i] = T[1]!;
+      EX[i] = T[2]!;
+      EY[i] = T[3]!;
+      EZ[i] = T[4]!;
+      SG[i] = Math.abs(T[5]!) * f;
       use[i] = 1;
     }
     const step = fitHubbleFlow(
@@ -381,4 +358,65 @@ function logDistanceFit(
     if (small) return { ok: true, h, d, cov: step.cov, chi2: step.chi2, dof: step.dof, nUsed: step.nUsed };
   }
   return fail;
+}
+
+/**
+ * The terms of one row for the log fit at line-of-sight velocity V: writes
+ * [y = -kappa rho, s_pred, e_pred (3), kappa, D_pred, cos lambda_pred] into out; false when there is no usable root.
+ */
+function lineTerms(
+  ax: number,
+  ay: number,
+  az: number,
+  dObs: number,
+  V: number,
+  o: { x: number; y: number; z: number; vx: number; vy: number; vz: number },
+  d: [number, number, number],
+  h: number,
+  rA2: number,
+  out: Float64Array,
+): boolean {
+  // w - d, with w = V_B a - v_A
+  const wx = V * ax - o.vx - d[0];
+  const wy = V * ay - o.vy - d[1];
+  const wz = V * az - o.vz - d[2];
+  const q = wx * ax + wy * ay + wz * az;
+  const dc = ax * o.x + ay * o.y + az * o.z;
+  const px = dc * ax - o.x;
+  const py = dc * ay - o.y;
+  const pz = dc * az - o.z;
+  const b2 = Math.max(0, rA2 - dc * dc);
+  const c0 = h * b2 - (wx * px + wy * py + wz * pz);
+  const disc = q * q - 4 * h * c0;
+  if (!(disc > 0) || q === 0) return false;
+  const root = Math.sqrt(disc);
+  const fD = q > 0 ? root : -root; // F'(D_pred) = 2 H t - q
+  const t = (q + fD) / (2 * h);
+  const dp = dc + t;
+  if (!(dp > 0)) return false;
+  const sx = dp * ax - o.x;
+  const sy = dp * ay - o.y;
+  const sz = dp * az - o.z;
+  const sp = Math.sqrt(sx * sx + sy * sy + sz * sz);
+  if (!(sp > 0)) return false;
+  const kappa = (fD * dp) / sp;
+  out[0] = -kappa * Math.log(dObs / dp);
+  out[1] = sp;
+  out[2] = sx / sp;
+  out[3] = sy / sp;
+  out[4] = sz / sp;
+  out[5] = kappa;
+  out[6] = dp;
+  out[7] = (dp - dc) / sp;
+  return true;
+}
+
+function chooseEstimator(e: "auto" | "log" | "linear", vrErr: Float64Array | undefined, used: Uint8Array, sigmaStar: number): "log" | "linear" {
+  if (e !== "auto") return e;
+  if (!vrErr) return "linear";
+  const v: number[] = [];
+  for (let i = 0; i < used.length; i++) if (used[i] && Number.isFinite(vrErr[i]!)) v.push(vrErr[i]!);
+  if (v.length === 0) return "linear";
+  v.sort((a, b) => a - b);
+  return v[v.length >> 1]! > sigmaStar ? "log" : "linear";
 }

@@ -1,0 +1,44 @@
+import { describe, it, expect } from "vitest";
+import { recentre } from "../../src/flow/recentre.js";
+import { flowPoints } from "../../src/flow/bulkflow.js";
+import { makeMockUniverse } from "../../src/flow/mock.js";
+import { flowRowsOf } from "./mock-rows.js";
+
+describe("recentre on mocks", () => {
+  // 30 mocks of 1500 galaxies (exact cosmology, 18% distance errors as in the measurement,
+  // sigma* = 250, bulk flow (100, -300, 200)), three off-centre origins each; the generator's H0 = 70 is the truth.
+  // Measured: H0 + dipole: 57% of pulls within 1 sigma, 83% within 2 sigma, mean pull -0.28, rms pull 1.40
+  // (the reported errors from another galaxy are ~40% too small: radial-only velocities and the origin's
+  // own distance error are not in them). H0 alone: 4% within 1 sigma, 10% within 2 sigma (aliasing).
+  it("recovers H0 from other galaxies when fitted with a dipole, and not without it", () => {
+    const pullsDip: number[] = [];
+    const pullsAlone: number[] = [];
+    for (let seed = 1; seed <= 30; seed++) {
+      const m = makeMockUniverse({ seed: 700 + seed, n: 1500, rMaxMpc: 120, distErrFrac: 0.18, bulkFlowGal: [100, -300, 200] });
+      const pts = flowPoints(flowRowsOf(m), { h0: 70, omegaM: 0.3 });
+      for (const idx of [3, 11, 29]) {
+        const a = recentre(pts, { index: idx }, { h0: 70 });
+        expect(a.estimator).toBe("log");
+        pullsDip.push((a.h0There - 70) / a.h0ThereErr);
+        const b = recentre(pts, { index: idx }, { h0: 70, fitDipole: false });
+        pullsAlone.push((b.h0There - 70) / b.h0ThereErr);
+      }
+    }
+    const within = (p: number[], k: number) => p.filter((x) => Math.abs(x) <= k).length / p.length;
+    const mean = pullsDip.reduce((s, x) => s + x, 0) / pullsDip.length;
+    expect(within(pullsDip, 1)).toBeGreaterThan(0.45);
+    expect(within(pullsDip, 2)).toBeGreaterThan(0.75);
+    expect(Math.abs(mean)).toBeLessThan(0.6);
+    expect(within(pullsAlone, 2)).toBeLessThan(0.3);
+  });
+
+  it("uses the linear fit, unbiased, when velocity noise dominates (no distance errors)", () => {
+    const m = makeMockUniverse({ seed: 77, n: 20000, rMaxMpc: 120, distErrFrac: 0 });
+    const pts = flowPoints(flowRowsOf(m), { h0: 70, omegaM: 0.3 });
+    for (const idx of [-1, 3, 11]) {
+      const r = recentre(pts, idx < 0 ? { x: 0, y: 0, z: 0, vr: 0 } : { index: idx }, { h0: 70 });
+      expect(r.estimator).toBe("linear");
+      expect(Math.abs(r.h0There - 70)).toBeLessThan(3 * r.h0ThereErr);
+    }
+  });
+});
