@@ -25,7 +25,7 @@ import { C_KMS } from "./constants.js";
 import { DEG, ICRS_TO_GALACTIC, rotate, unitVector, lonLatOf } from "../sky/index.js";
 import { PeculiarError } from "../errors.js";
 
-export type Vec3 = readonly [number, number, number];
+export type VelocityVector = readonly [number, number, number];
 
 /** The velocity frames. "helio" has no apex (the Sun is at rest in it). */
 export const VELOCITY_FRAMES = ["helio", "lsr", "gsr", "lg", "cmb"] as const;
@@ -40,7 +40,7 @@ export interface SolarMotion {
   name: string;
   frame: VelocityFrame;
   /** The Sun's velocity with respect to the frame, km/s, Galactic Cartesian. */
-  vectorKmS: Vec3;
+  vectorKmS: VelocityVector;
   /** |vectorKmS| and its direction, for display. */
   speedKmS: number;
   lDeg: number;
@@ -48,16 +48,16 @@ export interface SolarMotion {
   citation: string;
 }
 
-function fromApex(speedKmS: number, lDeg: number, bDeg: number): Vec3 {
+function fromApex(speedKmS: number, lDeg: number, bDeg: number): VelocityVector {
   const [x, y, z] = unitVector(lDeg, bDeg);
   return [speedKmS * x, speedKmS * y, speedKmS * z];
 }
 
-function add(a: Vec3, b: Vec3): Vec3 {
+function add(a: VelocityVector, b: VelocityVector): VelocityVector {
   return [a[0] + b[0], a[1] + b[1], a[2] + b[2]];
 }
 
-function motion(name: string, frame: VelocityFrame, vectorKmS: Vec3, citation: string): SolarMotion {
+function motion(name: string, frame: VelocityFrame, vectorKmS: VelocityVector, citation: string): SolarMotion {
   const [lDeg, bDeg] = lonLatOf(vectorKmS[0], vectorKmS[1], vectorKmS[2]);
   return { name, frame, vectorKmS, speedKmS: Math.hypot(...vectorKmS), lDeg, bDeg, citation };
 }
@@ -67,41 +67,41 @@ function motion(name: string, frame: VelocityFrame, vectorKmS: Vec3, citation: s
  * (U, V, W) = (11.1, 12.24, 7.25) km/s (U toward the Galactic centre, V toward l = 90 deg, W toward
  * the NGP), i.e. 18.04 km/s toward (l, b) = (47.80, +23.69) deg.
  */
-export const SUN_LSR_SBD2010: Vec3 = [11.1, 12.24, 7.25];
+export const SUN_LSR_SBD2010: VelocityVector = [11.1, 12.24, 7.25];
 
 /**
  * Circular rotation of the LSR, Theta_0 = 220 km/s toward l = 90 deg (IAU 1985 standard, Kerr &
  * Lynden-Bell 1986, MNRAS 221, 1023; journal reference from memory). GSR = LSR + this vector.
  */
-export const LSR_ROTATION_IAU1985: Vec3 = [0, 220, 0];
+export const LSR_ROTATION_IAU1985: VelocityVector = [0, 220, 0];
 
 /**
  * The Sun's total velocity in the Galactocentric frame, (12.9, 245.6, 7.78) km/s: astropy >= 4.0
  * `Galactocentric` defaults as printed by astropy 8.0.1 (original papers, from memory: Drimmel &
  * Poggio 2018, RNAAS 2, 210; Reid & Brunthaler 2004, ApJ 616, 872; GRAVITY Collaboration 2018).
  */
-export const SUN_GSR_ASTROPY4: Vec3 = [12.9, 245.6, 7.78];
+export const SUN_GSR_ASTROPY4: VelocityVector = [12.9, 245.6, 7.78];
 
 /**
  * CMB solar dipole, Planck 2018 I (Planck Collaboration 2020, A&A 641, A1, Table 2):
  * 369.82 +- 0.11 km/s toward (l, b) = (264.021 +- 0.011, 48.253 +- 0.005) deg.
  */
-export const SUN_CMB_PLANCK2018: Vec3 = fromApex(369.82, 264.021, 48.253);
+export const SUN_CMB_PLANCK2018: VelocityVector = fromApex(369.82, 264.021, 48.253);
 
 /**
  * CMB dipole from COBE FIRAS, Fixsen et al. 1996, ApJ 473, 576: Delta T = 3.372 mK on T0 = 2.728 K,
  * v = c Delta T / T0 = 370.6 km/s toward (l, b) = (264.14 +- 0.30, 48.26 +- 0.30) deg.
  */
-export const SUN_CMB_FIXSEN1996: Vec3 = fromApex((C_KMS * 3.372e-3) / 2.728, 264.14, 48.26);
+export const SUN_CMB_FIXSEN1996: VelocityVector = fromApex((C_KMS * 3.372e-3) / 2.728, 264.14, 48.26);
 
 /** Solar motion with respect to the Local Group, Yahil, Tammann & Sandage 1977, ApJ 217, 903: 308 km/s toward (105, -7) deg. */
-export const SUN_LG_YTS1977: Vec3 = fromApex(308, 105, -7);
+export const SUN_LG_YTS1977: VelocityVector = fromApex(308, 105, -7);
 
 /** Solar motion with respect to the Local Group, Karachentsev & Makarov 1996, AJ 111, 794: 316 km/s toward (93, -4) deg (values from memory). */
-export const SUN_LG_KM1996: Vec3 = fromApex(316, 93, -4);
+export const SUN_LG_KM1996: VelocityVector = fromApex(316, 93, -4);
 
 /** Solar motion with respect to the Local Group, Courteau & van den Bergh 1999, AJ 118, 337: 306 +- 18 km/s toward (99, -4) deg. */
-export const SUN_LG_CVDB1999: Vec3 = fromApex(306, 99, -4);
+export const SUN_LG_CVDB1999: VelocityVector = fromApex(306, 99, -4);
 
 /** Every known apex, by name. The first apex of each frame is its default. */
 export const APEXES: readonly SolarMotion[] = [
@@ -138,7 +138,7 @@ export function solarMotion(frame: VelocityFrame, apexName?: string): SolarMotio
 }
 
 /** V . n / c for each galaxy: n interleaved unit vectors [x0, y0, z0, ...] in Galactic Cartesian. */
-function betaAlong(v: Vec3, nGal: Float64Array, i: number): number {
+function betaAlong(v: VelocityVector, nGal: Float64Array, i: number): number {
   return (v[0] * nGal[3 * i]! + v[1] * nGal[3 * i + 1]! + v[2] * nGal[3 * i + 2]!) / C_KMS;
 }
 
