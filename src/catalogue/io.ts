@@ -10,16 +10,22 @@ import type { Table } from "apache-arrow";
 import { PeculiarError } from "../errors.js";
 import { assertNotSameFile, writeFileAtomic } from "./atomic.js";
 import { arrowFromTable, parseArrowColumns } from "./formats/arrow.js";
-import { csvFromTable, parseCsvColumns } from "./formats/csv.js";
-import { fitsFromTable, parseFitsColumns } from "./formats/fits.js";
+import { parseCsvColumns } from "./formats/csv.js";
+import { csvFromTable } from "./formats/csv-write.js";
+import { parseFitsColumns } from "./formats/fits.js";
+import { fitsFromTable } from "./formats/fits-write.js";
 import { finishTable, type ParsedColumns, type SourceInfo } from "./formats/table.js";
-import { parseVOTableColumns, votableFromTable } from "./formats/votable.js";
+import { parseVOTableColumns } from "./formats/votable.js";
+import { votableFromTable } from "./formats/votable-write.js";
 
 export { assertNotSameFile, writeFileAtomic } from "./atomic.js";
-export { parseCsv, csvFromTable, NULL_TOKENS } from "./formats/csv.js";
+export { parseCsv, NULL_TOKENS } from "./formats/csv.js";
+export { csvFromTable } from "./formats/csv-write.js";
 export { parseArrow, arrowFromTable } from "./formats/arrow.js";
-export { parseFits, fitsFromTable } from "./formats/fits.js";
-export { parseVOTable, votableFromTable, VOTABLE_INFOS, VOTABLE_PARAMS } from "./formats/votable.js";
+export { parseFits } from "./formats/fits.js";
+export { fitsFromTable } from "./formats/fits-write.js";
+export { parseVOTable, VOTABLE_INFOS, VOTABLE_PARAMS } from "./formats/votable.js";
+export { votableFromTable } from "./formats/votable-write.js";
 
 export type FormatName = "csv" | "tsv" | "votable" | "fits" | "arrow";
 export const FORMAT_NAMES: readonly FormatName[] = ["csv", "tsv", "votable", "fits", "arrow"];

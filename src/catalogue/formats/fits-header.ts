@@ -194,3 +194,17 @@ export function headerBytes(cards: string[]): Uint8Array {
   }
   return out;
 }
+
+// ---- values that do not fit a header as text ----
+
+export function base64ToBytes(s: string): Uint8Array {
+  const bin = atob(s.replace(/\s+/g, ""));
+  const out = new Uint8Array(bin.length);
+  for (let i = 0; i < bin.length; i++) out[i] = bin.charCodeAt(i);
+  return out;
+}
+export function bytesToBase64(b: Uint8Array): string {
+  let s = "";
+  for (let i = 0; i < b.length; i++) s += String.fromCharCode(b[i]!);
+  return btoa(s);
+}

@@ -4,7 +4,8 @@ import { describe, expect, it } from "vitest";
 import { readFileSync } from "node:fs";
 import { join } from "node:path";
 import type { Table } from "apache-arrow";
-import { parseCsv, csvFromTable, UNITS_MARKER } from "../../../src/catalogue/formats/csv.js";
+import { parseCsv, UNITS_MARKER } from "../../../src/catalogue/formats/csv.js";
+import { csvFromTable } from "../../../src/catalogue/formats/csv-write.js";
 import { columnMeta, stringColumn, tableFromColumns, columnDataOf } from "../../../src/catalogue/columns.js";
 import { META } from "../../../src/catalogue/meta.js";
 

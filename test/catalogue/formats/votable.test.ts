@@ -4,7 +4,8 @@ import { describe, expect, it } from "vitest";
 import { readFileSync } from "node:fs";
 import { join } from "node:path";
 import type { Table } from "apache-arrow";
-import { parseVOTable, votableFromTable, VOTABLE_INFOS, VOTABLE_PARAMS } from "../../../src/catalogue/formats/votable.js";
+import { parseVOTable, VOTABLE_INFOS, VOTABLE_PARAMS } from "../../../src/catalogue/formats/votable.js";
+import { votableFromTable } from "../../../src/catalogue/formats/votable-write.js";
 import { columnDataOf, columnMeta, tableFromColumns, type ColumnData } from "../../../src/catalogue/columns.js";
 import { META } from "../../../src/catalogue/meta.js";
 
