@@ -9,6 +9,7 @@
  */
 import { dirname, isAbsolute, resolve } from "node:path";
 import { PeculiarError } from "../errors.js";
+import { parseAngleArcsec } from "../crossmatch/radius.js";
 
 export const PLAN_FORMAT = "peculiar-plan/1";
 export const STEP_NAMES = ["match", "combine", "velocities", "flag", "groups", "flow", "recentre"] as const;
@@ -26,7 +27,7 @@ export interface InputSpec {
 }
 
 export interface MatchSettings {
-  /** With a unit: "3arcsec", "0.05arcmin", "1e-3deg". */
+  /** With a unit: "3arcsec", "0.05arcmin", "1e-3deg", "300mas". */
   radius: string;
   select: "nearest" | "one-to-one";
   /** km/s; pairs whose velocities differ by more are rejected (needs a velocity on both sides). */
@@ -168,7 +169,12 @@ function stepSettings(c: Checker, name: StepName, v: Json, path: string): StepSe
       const s: MatchSettings = { ...DEFAULT_STEPS.match };
       if (o.radius !== undefined) {
         s.radius = c.str(o.radius, `${path}.radius`);
-        if (!/^\s*[0-9.eE+-]+\s*(arcsec|arcmin|deg)\s*$/.test(s.radius)) c.fail(`${path}.radius`, "needs a unit", s.radius, "e.g. 3arcsec, 0.05arcmin, 1e-3deg");
+        try {
+          if (!(parseAngleArcsec(s.radius, "radius") > 0)) c.fail(`${path}.radius`, "must be more than 0", s.radius);
+        } catch (e) {
+          if (e instanceof PeculiarError && e.code === "usage") c.fail(`${path}.radius`, e.message.replace(/^radius: /, "").replace(/ \(got.*$/, ""), s.radius, "e.g. 3arcsec, 0.05arcmin, 1e-3deg, 300mas");
+          throw e;
+        }
       }
       if (o.select !== undefined) s.select = c.oneOf(o.select, `${path}.select`, ["nearest", "one-to-one"] as const);
       if (o.maxDvKmS !== undefined) s.maxDvKmS = c.num(o.maxDvKmS, `${path}.maxDvKmS`, pos, "km/s > 0");

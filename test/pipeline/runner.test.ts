@@ -28,7 +28,8 @@ describe("parsePlan", () => {
 
   it.each([
     [{ steps: { flow: { sigmaStar: 3 } } }, /steps\.flow\.sigmaStar: unknown key/],
-    [{ steps: { match: { radius: "3" } } }, /steps\.match\.radius: needs a unit/],
+    [{ steps: { match: { radius: "3" } } }, /steps\.match\.radius: the angle needs a unit/],
+    [{ steps: { match: { radius: "2parsec" } } }, /steps\.match\.radius: unknown angle unit/],
     [{ steps: { velocities: { frame: "galactic" } } }, /steps\.velocities\.frame: bad value.*expected helio, lsr, gsr, lg, cmb/],
     [{ steps: { combine: { reference: "nope" } } }, /steps\.combine\.reference: is not the alias/],
     [{ inputs: { redshifts: { file: "z.csv" }, distances: [] } }, /inputs\.distances: must be a non-empty list/],
