@@ -44,7 +44,8 @@ export function dedupe(raDeg: ArrayLike<number>, decDeg: ArrayLike<number>, velo
   const pts = skyPoints(raDeg, decDeg);
   const n = pts.length;
   const pairs = pairsWithin(pts, pts, o.radiusArcsec * ARCSEC, { partitions: o.partitions });
-  const parent = Int32Array.from({ length: n }, (_, i) => i);
+  const parent = new Int32Array(n);
+  for (let i = 0; i < n; i++) parent[i] = i;
   let links = 0;
   let rejectedByDv = 0;
   let uncheckedDv = 0;

@@ -115,46 +115,53 @@ export interface JoinedRows {
  */
 export function joinRows(r: MatchResult, join: JoinMode): JoinedRows {
   const c = r.candidates;
-  const rowA: number[] = [];
-  const rowB: number[] = [];
-  const match: number[] = [];
-  let t = 0;
   const m = r.chosen.length;
+  const usedB = new Uint8Array(r.nB);
+  const matchedA = new Uint8Array(r.nA);
+  for (let u = 0; u < m; u++) {
+    usedB[c.b[r.chosen[u]!]!] = 1;
+    matchedA[c.a[r.chosen[u]!]!] = 1;
+  }
+  let n = m;
+  if (join !== "inner") for (let i = 0; i < r.nA; i++) if (!matchedA[i]) n++;
+  if (join === "outer") for (let j = 0; j < r.nB; j++) if (!usedB[j]) n++;
+  const rowA = new Int32Array(n);
+  const rowB = new Int32Array(n);
+  const match = new Int32Array(n);
+  let o = 0;
+  let t = 0;
   if (join === "inner") {
     for (; t < m; t++) {
       const k = r.chosen[t]!;
-      rowA.push(c.a[k]!);
-      rowB.push(c.b[k]!);
-      match.push(t);
+      rowA[o] = c.a[k]!;
+      rowB[o] = c.b[k]!;
+      match[o++] = t;
     }
   } else {
     for (let i = 0; i < r.nA; i++) {
-      let any = false;
-      while (t < m && c.a[r.chosen[t]!] === i) {
-        rowA.push(i);
-        rowB.push(c.b[r.chosen[t]!]!);
-        match.push(t);
-        t++;
-        any = true;
+      if (!matchedA[i]) {
+        rowA[o] = i;
+        rowB[o] = -1;
+        match[o++] = -1;
+        continue;
       }
-      if (!any) {
-        rowA.push(i);
-        rowB.push(-1);
-        match.push(-1);
+      while (t < m && c.a[r.chosen[t]!] === i) {
+        rowA[o] = i;
+        rowB[o] = c.b[r.chosen[t]!]!;
+        match[o++] = t;
+        t++;
       }
     }
     if (join === "outer") {
-      const used = new Uint8Array(r.nB);
-      for (let u = 0; u < m; u++) used[c.b[r.chosen[u]!]!] = 1;
       for (let j = 0; j < r.nB; j++) {
-        if (used[j]) continue;
-        rowA.push(-1);
-        rowB.push(j);
-        match.push(-1);
+        if (usedB[j]) continue;
+        rowA[o] = -1;
+        rowB[o] = j;
+        match[o++] = -1;
       }
     }
   }
-  return { rowA: Int32Array.from(rowA), rowB: Int32Array.from(rowB), match: Int32Array.from(match), length: rowA.length };
+  return { rowA, rowB, match, length: n };
 }
 
 /** Summary counts of a match. */

@@ -128,7 +128,7 @@ export function scoreCandidates(p: PairList, o: ScoreOptions): Candidates {
     rejectedNoError,
     uncheckedDv,
   };
-  const order = Int32Array.from({ length: kept }, (_, t) => t);
+  const order = iota(kept);
   let lo = 0;
   while (lo < kept) {
     let hi = lo + 1;
@@ -161,14 +161,17 @@ export function candidateCounts(c: Candidates, nA: number): Int32Array {
 
 /** The chosen candidates (indices into c), in increasing order (so grouped by A row). */
 export function selectMatches(c: Candidates, mode: SelectMode, nA: number, nB: number): Int32Array {
-  if (mode === "all") return Int32Array.from({ length: c.length }, (_, k) => k);
+  if (mode === "all") return iota(c.length);
   if (mode === "nearest") {
-    const out: number[] = [];
-    for (let k = 0; k < c.length; k++) if (k === 0 || c.a[k] !== c.a[k - 1]) out.push(k);
-    return Int32Array.from(out);
+    let m = 0;
+    for (let k = 0; k < c.length; k++) if (k === 0 || c.a[k] !== c.a[k - 1]) m++;
+    const out = new Int32Array(m);
+    m = 0;
+    for (let k = 0; k < c.length; k++) if (k === 0 || c.a[k] !== c.a[k - 1]) out[m++] = k;
+    return out;
   }
   // one-to-one: global greedy
-  const order = Int32Array.from({ length: c.length }, (_, k) => k);
+  const order = iota(c.length);
   order.sort((x, y) => c.score[x]! - c.score[y]! || c.sepRad[x]! - c.sepRad[y]! || c.a[x]! - c.a[y]! || c.b[x]! - c.b[y]!);
   const usedB = new Uint8Array(nB);
   const usedA = new Uint8Array(nA);
@@ -219,5 +222,12 @@ export function ambiguity(c: Candidates, chosen: Int32Array, nA: number, nB: num
     const rivalB = argB[j] === k ? best2B[j]! : best1B[j]!;
     out[t] = rivalA <= s + delta || rivalB <= s + delta ? 1 : 0;
   }
+  return out;
+}
+
+/** 0, 1, ..., n - 1 */
+function iota(n: number): Int32Array {
+  const out = new Int32Array(n);
+  for (let k = 0; k < n; k++) out[k] = k;
   return out;
 }

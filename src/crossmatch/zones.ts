@@ -23,7 +23,7 @@ const EPS_RAD = 1e-12;
 /** Loosening of the chord test (relative); the exact atan2 test decides. */
 const CHORD_SLACK = 1e-9;
 /** Indexed rows per cell that the grid aims at (tuned in bench/crossmatch.bench.ts). */
-export const DEFAULT_ROWS_PER_CELL = 2;
+export const DEFAULT_ROWS_PER_CELL = 6;
 
 export interface ZoneGrid {
   /** Zone height in radians. */
@@ -61,7 +61,7 @@ export function makeZoneGrid(cellRad: number): ZoneGrid {
 
 /**
  * The zone height for indexing nIndexed rows spread over areaSr steradians and querying at radius R:
- * about rowsPerCell rows per cell, never fewer than ~R (a query then meets at most 2-3 zones), and
+ * about rowsPerCell rows per cell (default 6), never fewer than ~R (a query then meets at most 2-3 zones), and
  * never more than ~4 cells per row over the whole sky (memory stays linear).
  */
 export function chooseCellRad(radiusRad: number, nIndexed: number, areaSr: number, rowsPerCell = DEFAULT_ROWS_PER_CELL): number {

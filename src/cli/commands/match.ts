@@ -119,9 +119,19 @@ const command: Command = {
       aliasB = `${aliasB}_b`;
     }
     const flags = parseCatalogueFlags(values);
+    // progress: one self-erasing status line, only when stderr is a terminal
+    const phase = (what: string) => {
+      if (io.progress) io.stderr.write(`\r\x1b[Kmatch: ${what}`);
+    };
+    const phaseDone = () => {
+      if (io.progress) io.stderr.write("\r\x1b[K");
+    };
+    const noteIo: Io = { ...io, note: (line) => (phaseDone(), io.note(line)) };
 
-    const catA = await loadForCommand(pathA, flags, io, { index: 1, require: ["ra", "dec"] });
-    const catB = await loadForCommand(pathB, flags, io, { index: 2, require: ["ra", "dec"] });
+    phase(`reading ${pathA}`);
+    const catA = await loadForCommand(pathA, flags, noteIo, { index: 1, require: ["ra", "dec"] });
+    phase(`reading ${pathB}`);
+    const catB = await loadForCommand(pathB, flags, noteIo, { index: 2, require: ["ra", "dec"] });
     const xa = sideExtras(catA.table, catA.roles, pathA);
     const xb = sideExtras(catB.table, catB.roles, pathB);
     for (const n of xa.notes) io.note(`${pathA}: ${n}`);
@@ -146,7 +156,8 @@ const command: Command = {
     if (radiusArcsec !== undefined) opts.radiusArcsec = radiusArcsec;
     if (sigmaK !== undefined) opts.sigmaK = sigmaK;
     if (maxDvKmS !== undefined) opts.maxDvKmS = maxDvKmS;
-    if (io.progress && partitions > 1) opts.onProgress = (d, t) => io.stderr.write(`\rmatching: band ${d}/${t}${d === t ? "\n" : ""}`);
+    if (io.progress && partitions > 1) opts.onProgress = (d, t) => phase(`matching band ${d}/${t}`);
+    phase("matching");
     const sideA = { raDeg: catA.raDeg, decDeg: catA.decDeg, posErrArcsec: xa.posErrArcsec, velocityKmS: xa.velocityKmS };
     const sideB = { raDeg: catB.raDeg, decDeg: catB.decDeg, posErrArcsec: xb.posErrArcsec, velocityKmS: xb.velocityKmS };
     let result;
@@ -165,7 +176,9 @@ const command: Command = {
       rolesA: catA.roles,
       rolesB: catB.roles,
     });
+    phase(`writing ${out}`);
     await writeTable(table, out, flags.outFormat ? { format: flags.outFormat } : {});
+    phaseDone();
 
     const counts = matchCounts(result);
     const radiusOfRow = (i: number): number => {
@@ -184,6 +197,7 @@ const command: Command = {
     if (counts.rejectedBySigma || counts.rejectedNoError) io.note(`match: ${counts.rejectedBySigma} pairs rejected by --sigma ${sigmaK}; ${counts.rejectedNoError} without an error to test`);
     if (counts.usableA < counts.rowsA || counts.usableB < counts.rowsB) io.note(`match: rows without a usable position (never matched): ${counts.rowsA - counts.usableA} in ${aliasA}, ${counts.rowsB - counts.usableB} in ${aliasB}`);
     if (values.report) {
+      phase("diagnostics");
       const chance = chancePairs(result, radiusOfRow);
       const histMax = radiusArcsec ?? result.searchRadiusArcsec;
       const suggestion = suggestRadius(result.pointsA, result.pointsB, result.searchRadiusArcsec, result.usableA);
@@ -197,6 +211,7 @@ const command: Command = {
         ambiguity: { delta: ambiguityDelta, definition: "a chosen pair is ambiguous when another accepted pair sharing its A or its B row has score <= its score + delta; score = (sep/r)^2 (+ (dv/V)^2 with --max-dv), r = the pair's acceptance radius" },
       };
       await writeFileAtomic(values.report, JSON.stringify(report, null, 2) + "\n");
+      phaseDone();
       io.note(`match: expected chance pairs ${chance.expectedChancePairs.toFixed(1)} (${(100 * chance.expectedChanceFraction).toFixed(2)} % of the pairs)`);
       if (suggestion.suggestedArcsec !== null) io.note(`match: suggested radius ${suggestion.suggestedArcsec.toFixed(3)} arcsec (sigma ${suggestion.sigmaArcsec!.toFixed(3)} arcsec; ${suggestion.note}); report in ${values.report}`);
       else io.note(`match: no suggested radius (${suggestion.note}); report in ${values.report}`);
