@@ -102,6 +102,32 @@ describe("peculiar inspect", () => {
     expect(none.code).toBe(2);
   });
 
+  it.each(["tsv", "vot", "fits", "arrow"])("inspects a .%s file written by convert with the same counts and lines", (ext) => {
+    const out = `a.${ext}`;
+    expect(runCli(["convert", "a.csv", out], { cwd: dir }).code).toBe(0);
+    const r = runCli(["inspect", out, "--json"], { cwd: dir });
+    expect(r.code, r.stderr).toBe(0);
+    const j = JSON.parse(r.stdout);
+    expect(j).toMatchObject({ rows: 6, valid: 1, invalid: 5 });
+    expect(j.roles).toMatchObject({ ra: "ra", dec: "dec", cz: "cz" });
+    expect(j.invalidRows.map((x: { line: number }) => x.line)).toEqual([4, 5, 6, 7, 8]);
+    expect(j.invalidRows.map((x: { row: number }) => x.row)).toEqual([2, 3, 4, 5, 6]);
+    // CSV/TSV keep no schema metadata, so only binary formats remember the first file's name.
+    if (ext === "tsv") return;
+    expect(j.origin).toBe("a.csv");
+    const text = runCli(["inspect", out], { cwd: dir }).stdout;
+    expect(text).toContain(`  ${out} row 4 (a.csv:6): column dec: "+95 00 00" is outside [-90, 90]`);
+  });
+
+  it("finds roles from the UCDs of a VOTable written by astropy", () => {
+    // astropy 5.2.1 format fixture (test/reference/make_format_fixtures.py): ra has UCD pos.eq.ra;meta.main.
+    const r = runCli(["inspect", "test/reference/formats/mixed_tabledata.vot", "--json"]);
+    expect(r.code, r.stderr).toBe(0);
+    const j = JSON.parse(r.stdout);
+    expect(j.columns.find((c: { name: string }) => c.name === "ra")).toMatchObject({ ucd: "pos.eq.ra;meta.main", unit: "deg", role: "ra" });
+    expect(j.roles).toMatchObject({ ra: "ra", dec: "dec", cz: "cz" });
+  });
+
   it("reads the input in the format --format names", () => {
     writeFileSync(join(dir, "t.dat"), "ra\tdec\n10\t20\n");
     const r = runCli(["inspect", "t.dat", "--format", "tsv", "--json"], { cwd: dir });
