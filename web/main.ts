@@ -181,6 +181,10 @@ async function start(): Promise<void> {
   }
   $("flow-summary").textContent = notes.join(" · ");
   let matchSvg: SVGSVGElement | null = null;
+  let matchLog = true;
+  const drawMatch = () => {
+    if (match && matchSvg) drawMatchDiagnostics(matchSvg, match, Math.max(200, matchSvg.parentElement!.clientWidth), Math.max(160, matchSvg.parentElement!.clientHeight), matchLog);
+  };
   if (match) {
     const sec = document.createElement("section");
     sec.className = "panel svg-panel";
@@ -190,6 +194,12 @@ async function start(): Promise<void> {
     h.textContent = `Match diagnostics (${match.source})`;
     const tools = document.createElement("div");
     tools.className = "tools";
+    const logButton = toolButton("linear", "switch the count axis between log and linear", () => {
+      matchLog = !matchLog;
+      logButton.textContent = matchLog ? "linear" : "log";
+      drawMatch();
+    });
+    tools.appendChild(logButton);
     for (const b of exportTools("match", () => matchSvg, "match diagnostics")) tools.appendChild(b);
     head.append(h, tools);
     const body = document.createElement("div");
@@ -254,7 +264,7 @@ async function start(): Promise<void> {
 
   const renderAll = () => {
     for (const p of panels) p.render();
-    if (match && matchSvg) drawMatchDiagnostics(matchSvg, match, Math.max(200, matchSvg.parentElement!.clientWidth), Math.max(160, matchSvg.parentElement!.clientHeight));
+    drawMatch();
   };
   state.on("selection", () => {
     for (const p of panels) p.render();

@@ -5,8 +5,10 @@
  * total E within radius R spreads over a bin [r1, r2] as E (r2^2 - r1^2) / R^2 (Poisson background;
  * domain reference §11 gives P = 1 - exp(-pi r^2 Sigma), common practice).
  *
- * The report is read tolerantly (snake or camel case, histogram as edges + counts or as bins); what
- * it lacks is said on the panel, not thrown.
+ * The report is read tolerantly: the layout `peculiar match --report` writes ({settings: {radiusArcsec},
+ * counts: {rowsA, ...}, histogram: {binEdgesArcsec, counts}, chance: {expectedChancePairs},
+ * suggestedRadius: {suggestedArcsec}}), or flat snake-case keys; what it lacks is said on the panel,
+ * not thrown.
  */
 import * as d3 from "d3";
 import { FAINT_INK, INK, ORIGIN_MARK } from "./colour.js";
@@ -25,9 +27,19 @@ export interface MatchDiagnostics {
 
 type Json = Record<string, unknown>;
 
+/** The value at a dotted path ("settings.radiusArcsec"). */
+function at(o: Json, path: string): unknown {
+  let v: unknown = o;
+  for (const k of path.split(".")) {
+    if (!v || typeof v !== "object") return undefined;
+    v = (v as Json)[k];
+  }
+  return v;
+}
+
 function num(o: Json, keys: string[]): number {
   for (const k of keys) {
-    const v = o[k];
+    const v = at(o, k);
     if (typeof v === "number" && Number.isFinite(v)) return v;
     if (v && typeof v === "object" && typeof (v as Json)["value"] === "number") return (v as Json)["value"] as number;
   }
@@ -59,7 +71,7 @@ function findHistogram(o: Json): { edges: number[]; counts: number[] } | null {
     }
     const hj = h as Json;
     const counts = numArray(hj["counts"] ?? hj["count"] ?? hj["n"]);
-    let edges = numArray(hj["edges_arcsec"] ?? hj["edgesArcsec"] ?? hj["edges"] ?? hj["bin_edges_arcsec"]);
+    let edges = numArray(hj["edges_arcsec"] ?? hj["edgesArcsec"] ?? hj["binEdgesArcsec"] ?? hj["edges"] ?? hj["bin_edges_arcsec"]);
     const width = num(hj, ["bin_width_arcsec", "binWidthArcsec", "width_arcsec"]);
     if (counts && !edges && Number.isFinite(width)) edges = counts.map((_, i) => i * width).concat([counts.length * width]);
     if (counts && edges && edges.length === counts.length + 1) return { edges, counts };
@@ -78,11 +90,11 @@ export function matchDiagnosticsOf(name: string, json: unknown): MatchDiagnostic
   for (const o of candidates) {
     const hist = findHistogram(o);
     if (!hist) continue;
-    const radius = num(o, ["radius_arcsec", "radiusArcsec", "radius"]);
+    const radius = num(o, ["radius_arcsec", "radiusArcsec", "radius", "settings.radiusArcsec", "settings.searchRadiusArcsec"]);
     const R = Number.isFinite(radius) ? radius : hist.edges[hist.edges.length - 1]!;
     const hj = (o["separation_histogram"] ?? o["histogram"] ?? {}) as Json;
-    let chance = numArray(o["expected_chance_per_bin"] ?? o["chance_per_bin"] ?? (Array.isArray(hj) ? null : hj["expected_chance"] ?? hj["chance"]));
-    const total = num(o, ["expected_chance_matches", "expected_chance", "expectedChance", "expectedChanceMatches", "chance_matches"]);
+    let chance = numArray(o["expected_chance_per_bin"] ?? o["chance_per_bin"] ?? (Array.isArray(hj) ? null : (hj["expected_chance"] ?? hj["chance"])));
+    const total = num(o, ["expected_chance_matches", "expected_chance", "expectedChance", "expectedChanceMatches", "chance_matches", "chance.expectedChancePairs"]);
     if (chance && chance.length !== hist.counts.length) chance = null;
     if (!chance && Number.isFinite(total) && R > 0) {
       chance = hist.counts.map((_, i) => {
@@ -96,12 +108,12 @@ export function matchDiagnosticsOf(name: string, json: unknown): MatchDiagnostic
       const v = num(o, keys);
       if (Number.isFinite(v)) summary.push([label, String(Math.round(v * 1000) / 1000)]);
     };
-    add("rows in A", ["rows_a", "rowsA", "n_a", "nA"]);
-    add("rows in B", ["rows_b", "rowsB", "n_b", "nB"]);
-    add("matched", ["matched", "n_matched", "pairs"]);
-    add("unmatched in A", ["unmatched_a", "unmatchedA"]);
-    add("unmatched in B", ["unmatched_b", "unmatchedB"]);
-    add("ambiguous", ["ambiguous", "n_ambiguous"]);
+    add("rows in A", ["rows_a", "rowsA", "n_a", "nA", "counts.rowsA"]);
+    add("rows in B", ["rows_b", "rowsB", "n_b", "nB", "counts.rowsB"]);
+    add("pairs", ["matched", "n_matched", "pairs", "counts.matchedPairs"]);
+    add("unmatched in A", ["unmatched_a", "unmatchedA", "counts.unmatchedA"]);
+    add("unmatched in B", ["unmatched_b", "unmatchedB", "counts.unmatchedB"]);
+    add("ambiguous", ["ambiguous", "n_ambiguous", "counts.ambiguous"]);
     return {
       source: name,
       edgesArcsec: hist.edges,
@@ -109,7 +121,7 @@ export function matchDiagnosticsOf(name: string, json: unknown): MatchDiagnostic
       radiusArcsec: R,
       chancePerBin: chance,
       chanceTotal: Number.isFinite(total) ? total : chance ? chance.reduce((a, b) => a + b, 0) : NaN,
-      suggestedRadiusArcsec: num(o, ["suggested_radius_arcsec", "suggestedRadiusArcsec", "suggested_radius"]),
+      suggestedRadiusArcsec: num(o, ["suggested_radius_arcsec", "suggestedRadiusArcsec", "suggested_radius", "suggestedRadius.suggestedArcsec"]),
       summary,
     };
   }
@@ -117,7 +129,7 @@ export function matchDiagnosticsOf(name: string, json: unknown): MatchDiagnostic
 }
 
 /** Draws the diagnostics into an SVG element of the given size. */
-export function drawMatchDiagnostics(svgEl: SVGSVGElement, m: MatchDiagnostics, w: number, h: number): void {
+export function drawMatchDiagnostics(svgEl: SVGSVGElement, m: MatchDiagnostics, w: number, h: number, logY = true): void {
   const svg = d3.select(svgEl).attr("width", w).attr("height", h).attr("viewBox", `0 0 ${w} ${h}`);
   svg.selectAll("*").remove();
   svg.append("rect").attr("width", w).attr("height", h).attr("fill", "#13161b");
@@ -125,7 +137,11 @@ export function drawMatchDiagnostics(svgEl: SVGSVGElement, m: MatchDiagnostics, 
   const xMax = Math.max(m.edgesArcsec[m.edgesArcsec.length - 1]!, m.radiusArcsec * 1.05);
   const x = d3.scaleLinear().domain([0, xMax]).range([M.left, w - M.right]);
   const yMax = Math.max(1, d3.max(m.counts) ?? 1, d3.max(m.chancePerBin ?? [0]) ?? 0);
-  const y = d3.scaleLinear().domain([0, yMax * 1.08]).range([h - M.bottom, M.top]).nice();
+  // Log-like scale (symlog, linear below 1) so that the chance-match tail shows beside the core.
+  const y = logY
+    ? d3.scaleSymlog().constant(1).domain([0, yMax * 1.5]).range([h - M.bottom, M.top])
+    : d3.scaleLinear().domain([0, yMax * 1.08]).range([h - M.bottom, M.top]).nice();
+  const yTicks = logY ? [0, 1, 10, 100, 1e3, 1e4, 1e5, 1e6, 1e7].filter((t) => t <= yMax * 1.5) : y.ticks(5);
   const g = svg.append("g");
   g.selectAll("rect.bin")
     .data(m.counts)
@@ -158,11 +174,11 @@ export function drawMatchDiagnostics(svgEl: SVGSVGElement, m: MatchDiagnostics, 
     .call((s) => s.selectAll("line,path").attr("stroke", FAINT_INK));
   g.append("g")
     .attr("transform", `translate(${M.left},0)`)
-    .call(d3.axisLeft(y).ticks(5).tickFormat(d3.format("~s")))
+    .call(d3.axisLeft(y).tickValues(yTicks).tickFormat(d3.format("~s")))
     .call((s) => s.selectAll("text").attr("fill", INK))
     .call((s) => s.selectAll("line,path").attr("stroke", FAINT_INK));
   g.append("text").attr("x", (M.left + w - M.right) / 2).attr("y", h - 6).attr("text-anchor", "middle").attr("fill", INK).text("separation (arcsec)");
-  g.append("text").attr("transform", `translate(14,${(M.top + h - M.bottom) / 2}) rotate(-90)`).attr("text-anchor", "middle").attr("fill", INK).text("pairs per bin");
+  g.append("text").attr("transform", `translate(14,${(M.top + h - M.bottom) / 2}) rotate(-90)`).attr("text-anchor", "middle").attr("fill", INK).text(logY ? "pairs per bin (log scale)" : "pairs per bin");
   const key = g.append("g").attr("transform", `translate(${M.left + 8},${M.top - 12})`);
   key.append("rect").attr("width", 10).attr("height", 8).attr("fill", "#5b8fc7");
   key.append("text").attr("x", 14).attr("y", 8).attr("fill", INK).attr("font-size", 11).text(`pairs (${d3.sum(m.counts)})`);

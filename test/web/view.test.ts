@@ -54,7 +54,15 @@ function matchReport(): unknown {
     const f = Math.exp(-(r1 * r1) / (2 * sigma * sigma)) - Math.exp(-(r2 * r2) / (2 * sigma * sigma));
     return Math.round(nTrue * f + (chance * (r2 * r2 - r1 * r1)) / (R * R));
   });
-  return { rows_a: 3000, rows_b: 2800, matched: 2540, ambiguous: 12, radius_arcsec: R, expected_chance_matches: chance, separation_histogram: { edges_arcsec: edges, counts } };
+  // The layout written by 'peculiar match --report'.
+  return {
+    command: "match",
+    settings: { radiusArcsec: R, select: "nearest" },
+    counts: { rowsA: 3000, rowsB: 2800, matchedPairs: 2540, unmatchedA: 460, unmatchedB: 260, ambiguous: 12 },
+    histogram: { binEdgesArcsec: edges, counts },
+    chance: { expectedChancePairs: chance },
+    suggestedRadius: { suggestedArcsec: 1.82, sigmaArcsec: 0.6 },
+  };
 }
 
 /** A row drawn on the sky map with no other galaxy within the pick radius (so a click picks it). */
@@ -218,6 +226,15 @@ describe("the web view", () => {
     await page.locator("#panel-sky").screenshot({ path: join(SHOTS, "panel-sky-supergalactic-mollweide.png") });
     await page.selectOption("#frame", "galactic");
     await page.selectOption("#projection", "hammer");
+  });
+
+  it("shows the match diagnostics with the radius, the suggested radius and the chance-match curve", async () => {
+    expect(await page.getAttribute("body", "data-match-panel")).toBe("1");
+    const text = (await page.textContent("#panel-match"))!;
+    expect(text).toContain("radius 3.00″");
+    expect(text).toContain("suggested 1.82″");
+    expect(text).toContain("expected chance matches (40.0 within the radius)");
+    expect(await page.locator("#panel-match rect.bin").count()).toBe(30);
   });
 
   it("exports each panel as SVG and PNG", async () => {
