@@ -4,7 +4,7 @@
  */
 import { relative } from "node:path";
 import type { RunResult } from "./run.js";
-import { formatWithError } from "./report.js";
+import { formatLikeError, formatWithError } from "./report.js";
 
 export const PLAN_HELP = `plan format (JSON; paths relative to the plan's folder; unknown keys are errors):
   {
@@ -46,8 +46,16 @@ export function summaryLines(r: RunResult): string[] {
   const ok = s.steps.filter((x) => x.status === "ok").map((x) => x.step);
   lines.push(`run: ${s.status === "ok" ? "done" : "stopped"} in ${s.seconds.toFixed(1)} s; steps ok: ${ok.join(", ") || "none"}`);
   for (const c of s.comparisons) {
-    lines.push(`run: ${c.label}: ${formatWithError(c.recovered, c.error)} ${c.unit} (truth ${c.truth}; ${Number.isFinite(c.nSigma) ? c.nSigma.toFixed(1) : "inf"} sigma)`);
+    lines.push(`run: ${c.label}: ${formatWithError(c.recovered, c.error)} ${c.unit} (truth ${formatLikeError(c.truth, c.error)}; ${Number.isFinite(c.nSigma) ? c.nSigma.toFixed(1) : "inf"} sigma)`);
   }
+  const num = (step: string) => s.steps.find((x) => x.step === step && x.status === "ok")?.numbers;
+  const flag = num("flag");
+  if (flag) {
+    const b = flag.blundersInjected !== undefined ? `; injected blunders flagged: ${flag.blundersFlagged} of ${flag.blundersWithVelocity} with a velocity` : "";
+    lines.push(`run: outliers flagged: ${flag.outliers}${b}`);
+  }
+  const rc = num("recentre");
+  if (rc) lines.push(`run: seen from ${rc.origin}: H0 = ${formatWithError(rc.h0There as number, rc.h0ThereErr as number)} against ${formatWithError(rc.h0Here as number, rc.h0HereErr as number)} from here: ${rc.copernican}`);
   const where = relative(process.cwd(), r.outDir) || ".";
   lines.push(`run: summary ${where}/summary.json, report ${where}/report.md${s.final ? `, final table ${where}/${s.final}` : ""}`);
   return lines;

@@ -35,6 +35,14 @@ export function formatWithError(value: number, error: number): string {
   return `${value.toFixed(digits)} ± ${error.toFixed(digits)}`;
 }
 
+/** `x` with as many decimals as formatWithError gives a value with this error. */
+export function formatLikeError(x: number, error: number): string {
+  if (!Number.isFinite(x)) return "n/a";
+  if (!Number.isFinite(error) || error <= 0) return fmtSig(x, 4);
+  const digits = Math.max(0, Math.min(6, 1 - Math.floor(Math.log10(error))));
+  return x.toFixed(digits);
+}
+
 function fmtSig(x: number, sig: number): string {
   if (!Number.isFinite(x)) return "n/a";
   if (x === 0) return "0";
