@@ -78,6 +78,8 @@ export interface VelocityReport {
   valid: number;
   /** Input columns kept under a new name because the step writes a column of that name. */
   renamed: string[];
+  /** Things the user should know about the settings. */
+  notes: string[];
 }
 
 /** Output names that, when already present, are recomputed in place rather than kept. */
@@ -288,6 +290,10 @@ export function computeVelocities(cat: PositionedTable, o: VelocityOptions): { t
     distanceKind: dist.kind,
   };
   out = withColumns(out, [], recordStep(new Map(out.schema.metadata), "velocities", settings));
+  const notes: string[] = [];
+  if (fr !== "cmb") notes.push(`v_pec is relative to the ${fr} frame; peculiar velocities are usually quoted in the CMB frame (--frame cmb)`);
+  if (source === "eta" && fr !== "cmb") notes.push("eta was read on the CMB-frame redshift (Planck 2018 apex), as it is defined");
+  if (o.estimator === "linear") notes.push("the linear estimator cz - H0 D_C is biased by ~+100 km/s at z ~ 0.04 (Davis & Scrimgeour 2014); exact is the default");
   let valid = 0;
   const vm = validMask(out);
   for (let i = 0; i < n; i++) valid += vm[i]!;
@@ -307,6 +313,7 @@ export function computeVelocities(cat: PositionedTable, o: VelocityOptions): { t
       flagged,
       valid,
       renamed: added.renamed,
+      notes,
     },
   };
 }

@@ -124,6 +124,7 @@ const command: Command = {
     for (const [why, k] of Object.entries(report.flagged)) io.note(`  ${k} flagged: ${why}`);
     if (report.withoutError > 0) io.note(`  ${report.withoutError} rows have a velocity but no error (no distance error given)`);
     for (const r of report.renamed) io.note(`  kept input column ${r}`);
+    for (const n of report.notes) io.note(`  note: ${n}`);
     io.note(`wrote ${output}`);
     return 0;
   },
