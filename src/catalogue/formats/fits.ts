@@ -2,8 +2,9 @@
  * FITS binary tables (FITS Standard 4.0 §7.3). Reading: walks the HDUs (2880-byte blocks), takes
  * the first BINTABLE (or the one chosen by number or EXTNAME) and decodes big-endian columns.
  * Decisions (also in DEVELOPERS.md, "Catalogue formats"):
- * - TFORM L, X, B, I, J, K, E, D, A. A repeat count r > 1 on a numeric, logical or bit field gives
- *   r columns `name_0` .. `name_{r-1}` (bits: one bool column per bit, bit 0 = most significant
+ * - TFORM L, X, B, I, J, K, E, D, A. A repeat count 1 < r <= 64 on a numeric, logical or bit field
+ *   gives r columns `name_0` .. `name_{r-1}` (longer vectors: one text column, values separated by
+ *   spaces, nulls as NaN) (bits: one bool column per bit, bit 0 = most significant
  *   bit of the first byte, FITS 4.0 §7.3); `rA` is one string of up to r bytes (UTF-8 read,
  *   cut at the first NUL, trailing spaces dropped; empty -> null). C, M, P, Q fields are left out
  *   and listed in peculiar.source `skipped`.
@@ -103,6 +104,16 @@ function parseTform(tform: string, file: string, n: number): FieldForm {
 
 export const TWO63 = 9223372036854775808n;
 
+/** Repeat counts up to this become columns name_0 .. name_{r-1}; longer vectors one text column. */
+export const MAX_SPLIT = 64;
+
+/** One element of a vector as text (nulls as NaN, booleans as T/F). */
+function elementText(c: ColumnData, i: number): string {
+  if (c.nulls?.[i]) return "NaN";
+  const v = (c.values as ArrayLike<number | bigint>)[i]!;
+  return c.kind === "bool" ? (v ? "T" : "F") : String(v);
+}
+
 export function parseFitsColumns(bytes: Uint8Array, options: FitsReadOptions): { parsed: ParsedColumns; info: SourceInfo } {
   const file = options.file;
   // A number given as text ("2", e.g. from a command line) is an HDU number.
@@ -169,12 +180,25 @@ export function parseFitsColumns(bytes: Uint8Array, options: FitsReadOptions): {
     const tnullCard = card(h, `TNULL${n}`);
     const scale = { zero: card(h, `TZERO${n}`), scal: card(h, `TSCAL${n}`) };
     const count = form.repeat;
+    const element = (e: number, name: string) =>
+      form.code === "X"
+        ? readBit(u8, rows, rowBytes, start, e, name)
+        : readNumeric(view, u8, rows, rowBytes, start + e * CODE_BYTES[form.code]!, form.code, name, tnullCard?.raw, scale.zero?.raw, scale.scal?.value);
+    if (count > MAX_SPLIT) {
+      // A long vector (a spectrum, a bit mask) is one text column, values separated by spaces.
+      const texts = new Array<string>(rows).fill("");
+      for (let e = 0; e < count; e++) {
+        const c = element(e, base);
+        for (let i = 0; i < rows; i++) texts[i] += (e > 0 ? " " : "") + elementText(c, i);
+      }
+      const col: ColumnData = { name: freshName(base), kind: "utf8", values: texts };
+      if (Object.keys(meta).length > 0) col.meta = meta;
+      columns.push(col);
+      continue;
+    }
     for (let e = 0; e < count; e++) {
       const name = freshName(count > 1 ? `${base}_${e}` : base);
-      const c =
-        form.code === "X"
-          ? readBit(u8, rows, rowBytes, start, e, name)
-          : readNumeric(view, u8, rows, rowBytes, start + e * CODE_BYTES[form.code]!, form.code, name, tnullCard?.raw, scale.zero?.raw, scale.scal?.value);
+      const c = element(e, name);
       if (Object.keys(meta).length > 0) c.meta = meta;
       columns.push(c);
     }
@@ -188,7 +212,15 @@ export function parseFitsColumns(bytes: Uint8Array, options: FitsReadOptions): {
     const v = card(h, `PMVAL${m[1]}`);
     if (!v) continue;
     const text = typeof v.value === "string" ? v.value : v.raw;
-    metadata.set(c.value, str(h, `PMENC${m[1]}`)?.trim() === "base64" ? new TextDecoder().decode(base64ToBytes(text)) : text);
+    let value = text;
+    if (str(h, `PMENC${m[1]}`)?.trim() === "base64") {
+      try {
+        value = new TextDecoder().decode(base64ToBytes(text));
+      } catch {
+        throw new PeculiarError("format", `PMVAL${m[1]} is not valid base64`, { file });
+      }
+    }
+    metadata.set(c.value, value);
   }
 
   const sourceRows = new Int32Array(rows);

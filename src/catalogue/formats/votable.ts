@@ -9,8 +9,8 @@
  *   serialisation (TABLEDATA cannot tell them apart).
  * - Types: boolean/bit -> bool, unsignedByte -> uint8, short -> int16, int -> int32,
  *   long -> int64, float -> float32, double -> float64, char/unicodeChar -> utf8. A fixed
- *   arraysize n > 1 on a numeric, boolean or bit FIELD gives columns name_0 .. name_{n-1}; a
- *   variable-length numeric array is kept as its text (TABLEDATA form, values separated by
+ *   arraysize 1 < n <= 64 on a numeric, boolean or bit FIELD gives columns name_0 .. name_{n-1}; a
+ *   longer or variable-length numeric array is kept as its text (TABLEDATA form, values separated by
  *   spaces). floatComplex/doubleComplex FIELDs are left out and listed in peculiar.source.
  * - A TABLEDATA row with the wrong number of TD is kept and flagged.
  * Writing (votable-write.ts): VOTable 1.4 TABLEDATA; FIELD unit/ucd/DESCRIPTION; every schema-metadata entry as an
@@ -24,6 +24,9 @@ import { PeculiarError } from "../../errors.js";
 import { addReason, finishTable, type ParsedColumns, type SourceInfo } from "./table.js";
 
 export const VOTABLE_PARAMS = "votable.params";
+
+/** Fixed arraysizes up to this become columns name_0 .. name_{n-1}; longer arrays one text column. */
+export const MAX_SPLIT = 64;
 export const VOTABLE_INFOS = "votable.infos";
 
 interface FieldDef {
@@ -216,7 +219,7 @@ function layout(fields: FieldDef[], skipped: string[]): Layout[] {
       return { def, count, variable, mode: "skip", names: [] };
     }
     if (def.datatype === "char" || def.datatype === "unicodeChar") return { def, count, variable, mode: "string", names: [fresh(base)] };
-    if (variable) return { def, count, variable, mode: "vartext", names: [fresh(base)] };
+    if (variable || count > MAX_SPLIT) return { def, count, variable, mode: "vartext", names: [fresh(base)] };
     if (count === 1) return { def, count, variable, mode: "scalar", names: [fresh(base)] };
     return { def, count, variable, mode: "vector", names: Array.from({ length: count }, (_, e) => fresh(`${base}_${e}`)) };
   });
@@ -362,7 +365,12 @@ function fromTabledata(st: VoState, lays: Layout[], reasons: string[]): Sink[][]
 function base64Bytes(s: string, file: string): Uint8Array {
   const clean = s.replace(/\s+/g, "");
   if (!/^[A-Za-z0-9+/]*={0,2}$/.test(clean)) throw new PeculiarError("format", "STREAM is not valid base64", { file });
-  const bin = atob(clean);
+  let bin: string;
+  try {
+    bin = atob(clean);
+  } catch {
+    throw new PeculiarError("format", "STREAM is not valid base64", { file });
+  }
   const out = new Uint8Array(bin.length);
   for (let i = 0; i < bin.length; i++) out[i] = bin.charCodeAt(i);
   return out;
@@ -446,7 +454,7 @@ function fromBinary(st: VoState, lays: Layout[], two: boolean, file: string): Si
       for (let e = 0; e < count; e++) {
         const r = readElement(view, bytes, at, e, count, dt, l.def.nullValue);
         if (l.mode === "vartext") {
-          texts.push(r === null ? "" : String(r));
+          texts.push(r === null ? "NaN" : String(r));
           continue;
         }
         const s = out[e];

@@ -111,6 +111,17 @@ describe("FITS reader on hand-built files (FITS Standard 4.0 binary tables)", ()
     expect(cells(t, "s")).toEqual(["ab", "x", null]);
   });
 
+  it("reads a vector longer than 64 elements as one text column", () => {
+    const data = new Uint8Array(100 * 4);
+    const dv = new DataView(data.buffer);
+    for (let e = 0; e < 100; e++) dv.setFloat32(e * 4, e === 5 ? NaN : e / 2, false);
+    const t = parseFits(concat(primaryHeader(), bintable(400, 1, [kv("TTYPE1", "'flux'"), kv("TFORM1", "'100E'"), kv("TUNIT1", "'Jy'")], data)), { file: "v.fits" });
+    const parts = String(cells(t, "flux")[0]).split(" ");
+    expect(parts.length).toBe(100);
+    expect(parts.slice(0, 7)).toEqual(["0", "0.5", "1", "1.5", "2", "NaN", "3"]);
+    expect(columnMeta(t, "flux").unit).toBe("Jy");
+  });
+
   it("finds a hand-built table in the second extension after an image HDU", () => {
     const img = concat(header([kv("XTENSION", "'IMAGE'"), kv("BITPIX", 16), kv("NAXIS", 2), kv("NAXIS1", 3000), kv("NAXIS2", 1), kv("PCOUNT", 0), kv("GCOUNT", 1)]), padData(new Uint8Array(6000)));
     const data = new Uint8Array(8);

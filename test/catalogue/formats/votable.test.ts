@@ -111,6 +111,14 @@ describe("VOTable reader on hand-built files (VOTable 1.4 Recommendation)", () =
     expect(cells(t, "invalid_reason")[2]).toBe('row 3 (line 5): 3 TD, expected 2 (extra: "5"); column a: "x" is not a valid int');
   });
 
+  it("keeps a fixed array longer than 64 values, and a variable one, as text", () => {
+    const long = Array.from({ length: 70 }, (_, k) => String(k)).join(" ");
+    const xml = wrap('<FIELD name="spec" datatype="float" arraysize="70"/><FIELD name="v" datatype="int" arraysize="*"/>', `<TABLEDATA><TR><TD>${long}</TD><TD> 1  2 3 </TD></TR></TABLEDATA>`);
+    const t = parseVOTable(enc(xml), { file: "a.vot" });
+    expect(cells(t, "spec")).toEqual([long]);
+    expect(cells(t, "v")).toEqual(["1 2 3"]);
+  });
+
   it("reads an empty TABLEDATA as a table of no rows", () => {
     const t = parseVOTable(enc(wrap('<FIELD name="a" datatype="int"/>', "<TABLEDATA></TABLEDATA>")), { file: "e.vot" });
     expect(t.numRows).toBe(0);
