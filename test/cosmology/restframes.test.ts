@@ -13,6 +13,7 @@ import {
 } from "../../src/cosmology/restframes.js";
 import { C_KMS } from "../../src/cosmology/constants.js";
 import { angleDiffDeg, lonLatOf, unitVector } from "../../src/sky/index.js";
+import framesFixture from "../reference/cosmology/frames_astropy.json";
 
 // Velocities are compared in cz units (km/s). The reference values are printed to 1e-3 km/s.
 const TOL_KMS_PRINTED = 2e-3;
@@ -170,6 +171,27 @@ describe("a galaxy at (187.70593075, +12.39112331) with cz_helio = 1284 km/s", (
     // difference of order beta^2 c sin^2 theta (~0.1 km/s here).
     const got = cz(convertRedshifts(z, ra, dec, { frame: "helio" }, { frame: "cmb" }, "relativistic")[0]!);
     expect(Math.abs(got - 1613.473)).toBeLessThan(0.15);
+  });
+});
+
+describe("against astropy's LSR and Galactocentric frames", () => {
+  // astropy 5.2.1 fixture (test/reference/make_cosmology_fixtures.py): 24 seeded directions at
+  // 1000 Mpc without proper motion, radial velocities after transform_to(LSR()) and to
+  // Galactocentric() with the v4.0 defaults. Both are first-order vector additions (our additive form).
+  const c = C_KMS;
+  it("matches astropy's LSR radial velocities to 1e-5 km/s", () => {
+    for (const r of framesFixture.rows) {
+      const v = cz(convertRedshifts([r.cz_helio / c], [r.ra], [r.dec], { frame: "helio" }, { frame: "lsr" }, "additive")[0]!);
+      expect(Math.abs(v - r.v_lsr)).toBeLessThan(1e-5);
+    }
+  });
+  it("matches astropy's Galactocentric radial velocities to 0.05 km/s with the astropy4 apex", () => {
+    // The Galactocentric axes are tilted from the Galactic ones by the Sun's height (z_sun = 20.8 pc
+    // over R0 = 8.122 kpc, ~2.6e-3 rad), which moves V.n by up to a few 0.01 km/s: measured 0.038.
+    for (const r of framesFixture.rows) {
+      const v = cz(convertRedshifts([r.cz_helio / c], [r.ra], [r.dec], { frame: "helio" }, { frame: "gsr", apex: "astropy4" }, "additive")[0]!);
+      expect(Math.abs(v - r.v_gsr)).toBeLessThan(0.05);
+    }
   });
 });
 

@@ -4,6 +4,11 @@
 Run with Debian's python3-astropy (5.2.1):  /usr/bin/python3 test/reference/make_cosmology_fixtures.py
 Writes test/reference/cosmology/flat_lcdm_astropy.json. No radiation (Tcmb0 = 0), as in
 src/cosmology/distances.ts. Inverses with astropy.cosmology.z_at_value.
+
+Also writes test/reference/cosmology/frames_astropy.json: radial velocities of seeded random
+directions (numpy default_rng(20261201)) in astropy's LSR frame (Schoenrich et al. 2010 solar
+motion, a first-order vector addition) and Galactocentric frame (v4.0 defaults), for galaxies at
+1000 Mpc with no proper motion.
 """
 import json
 import os
@@ -11,6 +16,7 @@ import os
 import astropy
 import numpy as np
 from astropy import units as u
+from astropy.coordinates import LSR, Galactocentric, SkyCoord, galactocentric_frame_defaults
 from astropy.cosmology import FlatLambdaCDM, z_at_value
 
 MODELS = [(70.0, 0.3), (67.4, 0.315), (73.0, 0.25), (100.0, 1.0), (50.0, 0.05)]
@@ -45,6 +51,35 @@ path = os.path.join(os.path.dirname(os.path.abspath(__file__)), "cosmology", "fl
 os.makedirs(os.path.dirname(path), exist_ok=True)
 with open(path + ".tmp", "w") as f:
     json.dump(out, f, indent=1)
+    f.write("\n")
+os.replace(path + ".tmp", path)
+print("wrote", path)
+
+rng = np.random.default_rng(20261201)
+n = 24
+ra = rng.uniform(0, 360, n)
+dec = np.degrees(np.arcsin(rng.uniform(-1, 1, n)))
+cz = rng.uniform(300, 20000, n)
+c = SkyCoord(ra=ra * u.deg, dec=dec * u.deg, distance=1000 * u.Mpc, pm_ra_cosdec=np.zeros(n) * u.mas / u.yr,
+             pm_dec=np.zeros(n) * u.mas / u.yr, radial_velocity=cz * u.km / u.s, frame="icrs")
+lsr = c.transform_to(LSR()).radial_velocity.to_value(u.km / u.s)
+with galactocentric_frame_defaults.set("v4.0"):
+    g = c.transform_to(Galactocentric())
+    pos = g.cartesian.xyz.to_value(u.kpc)
+    vel = g.velocity.d_xyz.to_value(u.km / u.s)
+    gsr = (pos * vel).sum(axis=0) / np.linalg.norm(pos, axis=0)
+    vsun = [float(x) for x in g.galcen_v_sun.d_xyz.to_value(u.km / u.s)]
+frames = {
+    "source": f"astropy {astropy.__version__} LSR (v_bary default) and Galactocentric (defaults v4.0, v_sun {vsun})",
+    "script": "test/reference/make_cosmology_fixtures.py",
+    "rows": [
+        {"ra": float(ra[i]), "dec": float(dec[i]), "cz_helio": float(cz[i]), "v_lsr": float(lsr[i]), "v_gsr": float(gsr[i])}
+        for i in range(n)
+    ],
+}
+path = os.path.join(os.path.dirname(os.path.abspath(__file__)), "cosmology", "frames_astropy.json")
+with open(path + ".tmp", "w") as f:
+    json.dump(frames, f, indent=1)
     f.write("\n")
 os.replace(path + ".tmp", path)
 print("wrote", path)
