@@ -115,6 +115,10 @@ export function scoreCandidates(p: PairList, o: ScoreOptions): Candidates {
     dv[kept] = d;
     kept++;
   }
+  if (kept === n && !useSigma && V === undefined) {
+    // radius alone: every pair is kept and the score follows the separation, so p's order stands
+    return { a: p.a, b: p.b, sepRad: p.sepRad, dvKmS: dv, score, length: n, rejectedBySigma, rejectedByDv, rejectedNoError, uncheckedDv };
+  }
   // p is sorted by (a, sep, b); re-sort each A row's run by (score, sep, b).
   const out: Candidates = {
     a: new Int32Array(kept),

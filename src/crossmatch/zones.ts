@@ -282,9 +282,9 @@ export class PairBuffer {
     this.b = b;
     this.sepRad = s;
   }
-  /** The pairs as trimmed arrays. */
+  /** The pairs as views of the first `length` entries (no copy; the buffer must not be pushed to afterwards). */
   finish(): PairList {
-    return { a: this.a.slice(0, this.length), b: this.b.slice(0, this.length), sepRad: this.sepRad.slice(0, this.length), length: this.length };
+    return { a: this.a.subarray(0, this.length), b: this.b.subarray(0, this.length), sepRad: this.sepRad.subarray(0, this.length), length: this.length };
   }
 }
 
