@@ -6,3 +6,5 @@ export * from "./outliers.js";
 export * from "./fof.js";
 export * from "./groups.js";
 export * from "./infall.js";
+export * from "./table.js";
+export * from "./copernican.js";

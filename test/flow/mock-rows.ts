@@ -18,3 +18,13 @@ export function flowRowsOf(m: MockUniverse): FlowRows {
   }
   return { lDeg: lonDeg, bDeg: latDeg, distCMpc, distFracErr, czCmbKmS: m.czCmbKmS };
 }
+
+/** A CSV as 'peculiar velocities' would leave it: id, ra, dec, cz_cmb, dist_c_mpc, dist_c_err_mpc. */
+export function mockCsv(m: MockUniverse): string {
+  const r = flowRowsOf(m);
+  const lines = ["id,ra,dec,cz_cmb,dist_c_mpc,dist_c_err_mpc"];
+  for (let i = 0; i < m.n; i++) {
+    lines.push([`G${String(i + 1).padStart(5, "0")}`, m.raDeg[i]!.toFixed(8), m.decDeg[i]!.toFixed(8), m.czCmbKmS[i]!.toFixed(4), r.distCMpc[i]!.toFixed(6), (r.distCMpc[i]! * r.distFracErr[i]!).toFixed(6)].join(","));
+  }
+  return lines.join("\n") + "\n";
+}

@@ -1,0 +1,67 @@
+import { describe, it, expect, beforeAll, afterAll } from "vitest";
+import { writeFileSync, readFileSync } from "node:fs";
+import { join } from "node:path";
+import { buildOnce, runCli, tempDir } from "../cli-helpers.js";
+import { makeMockUniverse } from "../../src/flow/mock.js";
+import { mockCsv } from "../flow/mock-rows.js";
+
+let dir: string;
+let cleanup: () => void;
+let input: string;
+let members: Set<number>;
+
+beforeAll(() => {
+  buildOnce();
+  ({ dir, cleanup } = tempDir());
+  const m = makeMockUniverse({ seed: 63, n: 1000, rMaxMpc: 120, clusters: [{ raDeg: 30, decDeg: -20, distMpc: 45, nMembers: 50, sigmaKmS: 400, rCoreMpc: 0.6 }] });
+  members = new Set();
+  for (let i = 0; i < m.n; i++) if (m.clusterOf[i] === 0) members.add(i);
+  input = join(dir, "cat.csv");
+  writeFileSync(input, mockCsv(m));
+});
+afterAll(() => cleanup());
+
+function rowsOf(path: string): { header: string[]; body: string[][] } {
+  const lines = readFileSync(path, "utf8").trim().split("\n").filter((l) => !l.startsWith("#"));
+  const header = lines[0]!.split(",");
+  // skip the units row written under the header
+  return { header, body: lines.slice(1).map((l) => l.split(",")).filter((r) => /^-?\d|^G/.test(r[0] ?? "")) };
+}
+
+describe("peculiar groups", () => {
+  it("adds group_id and group_size, writes the groups table and finds the injected cluster", () => {
+    const out = join(dir, "g.csv");
+    const gout = join(dir, "groups.csv");
+    const r = runCli(["groups", input, "-o", out, "--groups-out", gout, "--json", "-q"]);
+    expect(r.code).toBe(0);
+    const j = JSON.parse(r.stdout);
+    expect(j.n_groups).toBeGreaterThanOrEqual(1);
+    const { header, body } = rowsOf(out);
+    const gi = header.indexOf("group_id");
+    expect(header).toContain("group_size");
+    expect(body.length).toBe(1000);
+    const votes = new Map<string, number>();
+    for (const i of members) votes.set(body[i]![gi]!, (votes.get(body[i]![gi]!) ?? 0) + 1);
+    const [best, count] = [...votes.entries()].sort((a, b) => b[1] - a[1])[0]!;
+    expect(best).not.toBe("-1");
+    const size = body.filter((row) => row[gi] === best).length;
+    expect(count / size).toBeGreaterThanOrEqual(0.9); // purity
+    const g = rowsOf(gout);
+    expect(g.header).toEqual(["group_id", "n_members", "ra", "dec", "l", "b", "cz_mean", "cz_mean_err", "sigma_v", "sigma_v_rest", "r_proj_mpc", "n_dist", "dist_c_mpc", "dist_c_err_mpc", "v_pec", "v_pec_err"]);
+    const row = g.body.find((x) => x[0] === best)!;
+    expect(Number(row[1])).toBe(size);
+    expect(Math.abs(Number(row[12]) - 45)).toBeLessThan(6); // 20% per member over ~50 members: ~3% error
+  });
+
+  it("takes the published parameters as options and rejects bad ones", () => {
+    const out = join(dir, "g2.csv");
+    const r = runCli(["groups", input, "-o", out, "--scaling", "constant", "--d0", "1.0", "--v0", "500", "--min-members", "2", "--json", "-q"]);
+    expect(r.code).toBe(0);
+    const j = JSON.parse(r.stdout);
+    expect(j.settings.scaling).toBe("constant");
+    expect(j.settings.d0Mpc).toBe(1);
+    expect(j.settings.minMembers).toBe(2);
+    expect(runCli(["groups", input, "-o", out, "--scaling", "wide"]).code).toBe(2);
+    expect(runCli(["groups", input, "-o", out, "--min-members", "1"]).code).toBe(2);
+  });
+});
