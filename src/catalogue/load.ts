@@ -74,7 +74,9 @@ function sourceRows(table: Table): Int32Array {
   const n = table.numRows;
   if (!table.getChild(SOURCE_ROW)) return Int32Array.from({ length: n }, (_, i) => i + 1);
   const f = float64Column(table, SOURCE_ROW);
-  return Int32Array.from(f, (x, i) => (Number.isNaN(x) ? i + 1 : x));
+  const out = new Int32Array(n);
+  for (let i = 0; i < n; i++) out[i] = Number.isNaN(f[i]!) ? i + 1 : f[i]!;
+  return out;
 }
 
 /** The angle unit for a coordinate column, from --unit, metadata or the name; undefined = default. */
@@ -137,7 +139,7 @@ function cellText(table: Table, column: string, row: number): string {
  * reader's "not a number" for this column, or the same finding in a file we wrote earlier) is not
  * reported twice.
  */
-function collect(table: Table, column: string, col: AngleColumn, word: string, rows: Int32Array, prior: string[], bad: Uint8Array, reasons: (string | undefined)[]): void {
+function collect(table: Table, column: string, col: AngleColumn, word: string, rows: Int32Array, prior: Prior, bad: Uint8Array, reasons: (string | undefined)[]): void {
   for (let i = 0; i < col.reasons.length; i++) {
     const r = col.reasons[i];
     if (r === undefined) continue;
@@ -147,9 +149,19 @@ function collect(table: Table, column: string, col: AngleColumn, word: string, r
   }
 }
 
+/** The reasons the table already has, read on first need (most tables have no bad position). */
+class Prior {
+  private reasons: string[] | undefined;
+  constructor(private readonly table: Table) {}
+  at(i: number): string {
+    this.reasons ??= invalidReasons(this.table);
+    return this.reasons[i] ?? "";
+  }
+}
+
 /** Flags row i with "<word> <row>: finding" unless its prior reason already contains `known`. */
-function addFinding(i: number, finding: string, known: string, word: string, rows: Int32Array, prior: string[], bad: Uint8Array, reasons: (string | undefined)[]): void {
-  if (prior[i]!.includes(known)) return;
+function addFinding(i: number, finding: string, known: string, word: string, rows: Int32Array, prior: Prior, bad: Uint8Array, reasons: (string | undefined)[]): void {
+  if (prior.at(i).includes(known)) return;
   bad[i] = 1;
   const text = `${word} ${rows[i]}: ${finding}`;
   reasons[i] = reasons[i] ? `${reasons[i]}; ${text}` : text;
@@ -206,7 +218,7 @@ export function prepareCatalogue(table: Table, options: PrepareOptions): Catalog
   }
   const word = rowWord(table);
   const rows = sourceRows(table);
-  const prior = invalidReasons(table);
+  const prior = new Prior(table);
   const bad = new Uint8Array(n);
   const reasons: (string | undefined)[] = new Array(n).fill(undefined);
   let raDeg: Float64Array = new Float64Array(n).fill(NaN);

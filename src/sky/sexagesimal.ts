@@ -48,87 +48,139 @@ export function parseAngleUnit(unit: string | undefined): AngleUnit | undefined 
   return null;
 }
 
-const NUMBER_FIELD = /^(\d+(?:\.\d*)?|\.\d+)/;
-const EXPONENT = /^[eE][+-]?\d+/;
-// Marker after each field, by position. ":" and whitespace separate any two fields.
-const FIRST_MARKERS = new Set(["h", "d", "°"]);
-const MINUTE_MARKERS = new Set(["m", "'", "′"]);
-const SECOND_MARKERS = new Set(["s", '"', "″"]);
-const MINUS = new Set(["-", "\u2212"]);
+// Character codes of signs, separators and markers.
+const CH = {
+  h: 104,
+  d: 100,
+  e: 101,
+  g: 103,
+  m: 109,
+  s: 115,
+  E: 69,
+  colon: 58,
+  dot: 46,
+  plus: 43,
+  minus: 45,
+  unicodeMinus: 0x2212,
+  degree: 0xb0,
+  quote: 39,
+  dquote: 34,
+  prime: 0x2032,
+  dprime: 0x2033,
+} as const;
 
 interface Fields {
   sign: 1 | -1;
-  values: number[];
+  /** Up to three unsigned fields; `count` of them are used. */
+  a: number;
+  b: number;
+  c: number;
+  count: number;
   /** "h" or "d" when the first field carries a marker, else undefined. */
   firstMarker: "h" | "d" | undefined;
-  text: string;
 }
 
-/** Splits a string into sign and up to three unsigned fields, or returns a reason. */
+const SCRATCH: Fields = { sign: 1, a: 0, b: 0, c: 0, count: 0, firstMarker: undefined };
+
+const isDigit = (c: number) => c >= 48 && c <= 57;
+const isSpace = (c: number) => c === 32 || c === 9 || c === 10 || c === 13 || c === 0xa0 || c === 0x2009 || c === 0x202f;
+
+/**
+ * Splits a string into sign and up to three unsigned fields, or returns a reason. A hand-written
+ * scanner (no regular expressions, no substrings but the number tokens): catalogues have millions of rows.
+ */
 function splitFields(raw: string): Fields | string {
-  let s = raw.trim();
-  if (s === "") return "is empty";
+  let p = 0;
+  let end = raw.length;
+  while (p < end && isSpace(raw.charCodeAt(p))) p++;
+  while (end > p && isSpace(raw.charCodeAt(end - 1))) end--;
+  if (p === end) return "is empty";
   let sign: 1 | -1 = 1;
-  const c0 = s[0]!;
-  if (MINUS.has(c0) || c0 === "+") {
-    sign = MINUS.has(c0) ? -1 : 1;
-    s = s.slice(1).trimStart();
+  const c0 = raw.charCodeAt(p);
+  if (c0 === CH.minus || c0 === CH.unicodeMinus || c0 === CH.plus) {
+    if (c0 !== CH.plus) sign = -1;
+    p++;
+    while (p < end && isSpace(raw.charCodeAt(p))) p++;
   }
-  const values: number[] = [];
-  const fractions: boolean[] = [];
-  let firstMarker: "h" | "d" | undefined;
-  let pos = 0;
-  while (pos < s.length) {
-    if (values.length === 3) return "is not an angle (more than three fields)";
-    const m = NUMBER_FIELD.exec(s.slice(pos));
-    if (!m) return "is not an angle";
-    let token = m[1]!;
-    pos += token.length;
-    const e = EXPONENT.exec(s.slice(pos));
-    if (e) {
-      token += e[0];
-      pos += e[0].length;
+  // One scratch object for every call: parseAngle reads it before the next call (no allocation per row).
+  const out = SCRATCH;
+  out.sign = sign;
+  out.a = out.b = out.c = 0;
+  out.count = 0;
+  out.firstMarker = undefined;
+  let fraction = false;
+  while (p < end) {
+    if (out.count === 3) return "is not an angle (more than three fields)";
+    if (fraction) return "is not an angle (only the last field may have a fraction)";
+    // Number: digits [. digits] | . digits, then an optional exponent.
+    const start = p;
+    let digits = 0;
+    let whole = 0;
+    while (p < end && isDigit(raw.charCodeAt(p))) {
+      whole = whole * 10 + (raw.charCodeAt(p) - 48);
+      p++;
+      digits++;
     }
-    const x = Number(token);
-    if (!Number.isFinite(x)) return "is not an angle";
-    values.push(x);
-    fractions.push(/[.eE]/.test(token));
-    const field = values.length;
-    // Optional marker, then optional separator whitespace.
-    let ws = 0;
-    while (pos + ws < s.length && /\s/.test(s[pos + ws]!)) ws++;
-    const ch = s[pos + ws];
-    let marker: string | undefined;
-    if (ch !== undefined) {
-      if (s.startsWith("deg", pos + ws)) marker = "deg";
-      else if (FIRST_MARKERS.has(ch) || MINUTE_MARKERS.has(ch) || SECOND_MARKERS.has(ch) || ch === ":") marker = ch;
+    const integer = p === end || raw.charCodeAt(p) !== CH.dot;
+    if (p < end && raw.charCodeAt(p) === CH.dot) {
+      fraction = true;
+      p++;
+      while (p < end && isDigit(raw.charCodeAt(p))) (p++, digits++);
     }
-    if (marker !== undefined) {
-      if (marker === ":") {
-        if (field === 3) return "is not an angle (too many fields)";
-      } else if (field === 1 && (marker === "h" || marker === "d" || marker === "°" || marker === "deg")) {
-        firstMarker = marker === "h" ? "h" : "d";
-      } else if (field === 2 && MINUTE_MARKERS.has(marker)) {
-        // minutes
-      } else if (field === 3 && SECOND_MARKERS.has(marker)) {
-        // seconds
-      } else if (field === 1 && MINUTE_MARKERS.has(marker)) {
-        return "is not an angle (minutes marker on the first field)";
-      } else {
-        return "is not an angle (marker out of order)";
+    if (digits === 0) return "is not an angle";
+    const ce = raw.charCodeAt(p);
+    if (p < end && (ce === CH.e || ce === CH.E)) {
+      // "e" is an exponent only when digits follow.
+      let q = p + 1;
+      const cs = raw.charCodeAt(q);
+      if (cs === CH.plus || cs === CH.minus) q++;
+      if (q < end && isDigit(raw.charCodeAt(q))) {
+        while (q < end && isDigit(raw.charCodeAt(q))) q++;
+        p = q;
+        fraction = true;
       }
-      pos += ws + marker.length;
-      while (pos < s.length && /\s/.test(s[pos]!)) pos++;
-      if (marker === ":" && pos >= s.length) return "is not an angle (ends with a separator)";
-    } else if (ws > 0) {
-      pos += ws;
-    } else if (pos < s.length) {
-      return "is not an angle";
     }
+    // Integers of up to 15 digits are exact as accumulated; anything else goes through Number().
+    const x = integer && digits <= 15 && !fraction ? whole : Number(raw.slice(start, p));
+    if (!Number.isFinite(x)) return "is not an angle";
+    const field = ++out.count;
+    if (field === 1) out.a = x;
+    else if (field === 2) out.b = x;
+    else out.c = x;
+    // Optional marker (after optional spaces), then optional spaces.
+    let q = p;
+    while (q < end && isSpace(raw.charCodeAt(q))) q++;
+    if (q >= end) break;
+    const ch = raw.charCodeAt(q);
+    let len = 1;
+    let kind: "first" | "minute" | "second" | "colon" | undefined;
+    if (ch === CH.d && raw.charCodeAt(q + 1) === CH.e && raw.charCodeAt(q + 2) === CH.g) {
+      kind = "first";
+      len = 3;
+    } else if (ch === CH.h || ch === CH.d || ch === CH.degree) kind = "first";
+    else if (ch === CH.m || ch === CH.quote || ch === CH.prime) kind = "minute";
+    else if (ch === CH.s || ch === CH.dquote || ch === CH.dprime) kind = "second";
+    else if (ch === CH.colon) kind = "colon";
+    if (kind === undefined) {
+      if (q === p) return "is not an angle"; // junk glued to the number
+      p = q;
+      continue;
+    }
+    if (kind === "colon") {
+      if (field === 3) return "is not an angle (too many fields)";
+    } else if (kind === "first" && field === 1) {
+      out.firstMarker = ch === CH.h ? "h" : "d";
+    } else if (kind === "minute" && field === 1) {
+      return "is not an angle (minutes marker on the first field)";
+    } else if (!(kind === "minute" && field === 2) && !(kind === "second" && field === 3)) {
+      return "is not an angle (marker out of order)";
+    }
+    p = q + len;
+    while (p < end && isSpace(raw.charCodeAt(p))) p++;
+    if (kind === "colon" && p >= end) return "is not an angle (ends with a separator)";
   }
-  if (values.length === 0) return "is not an angle";
-  for (let i = 0; i < values.length - 1; i++) if (fractions[i]) return "is not an angle (only the last field may have a fraction)";
-  return { sign, values, firstMarker, text: raw };
+  if (out.count === 0) return "is not an angle";
+  return out;
 }
 
 const RA_RANGE_DEG = "is outside [0, 360) deg";
@@ -177,18 +229,17 @@ export function angleFromNumber(x: number, kind: AngleKind, unit: AngleUnit = "d
 export function parseAngle(text: string, kind: AngleKind, unit?: AngleUnit): AngleResult {
   const f = splitFields(text);
   if (typeof f === "string") return { deg: NaN, reason: f };
-  const { sign, values, firstMarker } = f;
-  if (values.length === 1 && firstMarker === undefined) {
+  const { sign, a, b: m, c: s, count, firstMarker } = f;
+  if (count === 1 && firstMarker === undefined) {
     // A bare decimal number: the unit decides.
-    return angleFromNumber(sign * values[0]!, kind, unit ?? "deg");
+    return angleFromNumber(sign * a, kind, unit ?? "deg");
   }
-  const [a, m = 0, s = 0] = values;
-  if (values.length >= 2 && m >= 60) return { deg: NaN, reason: "has minutes >= 60" };
-  if (values.length === 3 && s >= 60) return { deg: NaN, reason: "has seconds >= 60" };
-  if (values.length >= 2 && unit === "rad") return { deg: NaN, reason: "is sexagesimal but the column unit is rad" };
+  if (count >= 2 && m >= 60) return { deg: NaN, reason: "has minutes >= 60" };
+  if (count === 3 && s >= 60) return { deg: NaN, reason: "has seconds >= 60" };
+  if (count >= 2 && unit === "rad") return { deg: NaN, reason: "is sexagesimal but the column unit is rad" };
   const hours = firstMarker === "h" || (firstMarker === undefined && (unit === "h" || (unit === undefined && kind === "ra")));
   if (kind === "dec" && hours) return { deg: NaN, reason: "is in hours, which a declination cannot be" };
-  const units = (a! * 3600 + m * 60 + s) / 3600;
+  const units = (a * 3600 + m * 60 + s) / 3600;
   if (kind === "ra" && sign < 0 && units > 0) return { deg: NaN, reason: hours ? RA_RANGE_H : RA_RANGE_DEG };
   if (hours) {
     if (!(units < 24)) return { deg: NaN, reason: RA_RANGE_H };
