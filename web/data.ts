@@ -7,7 +7,6 @@
  * Derived here when the file lacks them (same library code as the CLI):
  *  - sgl, sgb from l, b (or l, b from sgl, sgb) by the frame rotations of src/sky;
  *  - sgx, sgy, sgz from sgl, sgb and dist_c_mpc, or dist_c_mpc from |sgx, sgy, sgz|;
- *  - vr = H0 dist_c + v_pec, the line-of-sight velocity the re-centring works on.
  */
 import { tableFromIPC, type Table } from "apache-arrow";
 import { float64Column, hasColumn, stringColumn } from "../src/catalogue/columns.js";
@@ -27,6 +26,7 @@ export const NUMERIC_COLUMNS = [
   "dist_mpc",
   "dist_err_mpc",
   "dist_c_mpc",
+  "dist_c_err_mpc",
   "cz_cmb",
   "v_pec",
   "v_pec_err",
@@ -45,11 +45,8 @@ export interface ViewData {
   groupId: Int32Array;
   groupSize: Int32Array;
   valid: Uint8Array;
-  /** km/s/Mpc used to turn distances into Hubble velocities (from the file's settings, else the default). */
-  h0: number;
-  h0Source: string;
-  /** Line-of-sight velocity H0 dist_c + v_pec (km/s), NaN when unknown. */
-  vr: Float64Array;
+  /** H0 in the file's settings (km/s/Mpc), NaN when it says none: shown beside the H0 the view fits. */
+  h0File: number;
   /** Schema metadata the page shows (settings, source), as parsed JSON. */
   settings: Record<string, unknown>;
 }
@@ -143,8 +140,6 @@ export function viewDataFromTable(table: Table): ViewData {
     for (let i = 0; i < n; i++) col.dist_c_mpc[i] = Math.hypot(col.sgx[i]!, col.sgy[i]!, col.sgz[i]!);
   }
   const { h0, source } = findH0(table);
-  const vr = new Float64Array(n);
-  for (let i = 0; i < n; i++) vr[i] = h0 * col.dist_c_mpc[i]! + col.v_pec[i]!;
 
   const outlier = boolColumn(table, "outlier", n);
   const valid = boolColumn(table, "valid", n);
@@ -164,9 +159,7 @@ export function viewDataFromTable(table: Table): ViewData {
     groupId: groupId ?? new Int32Array(n).fill(-1),
     groupSize: groupSize ?? groupSizesOf(groupId ?? new Int32Array(n).fill(-1)),
     valid: valid ?? new Uint8Array(n).fill(1),
-    h0,
-    h0Source: source,
-    vr,
+    h0File: source === "default" ? NaN : h0,
     settings: readJsonMeta<Record<string, unknown>>(table, META.settings) ?? {},
   };
 }

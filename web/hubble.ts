@@ -42,7 +42,7 @@ export class HubblePanel extends CanvasPanel {
     const y0 = M.top;
     const r0 = M.top + mainH + M.gap;
     const resH = plotH - mainH - M.gap;
-    const H = Number.isFinite(o.h0) ? o.h0 : d.h0;
+    const H = Number.isFinite(o.h0) ? o.h0 : st.h0Ref;
     const { sMax, vLo, vHi, uAbs } = originLimits(o);
     const xMax = Number.isFinite(sMax) && sMax > 0 ? sMax * 1.05 : 1;
     const x = d3.scaleLinear().domain([0, xMax]).range([M.left, w - M.right]).nice();

@@ -92,13 +92,15 @@ async function start(): Promise<void> {
   const inputs: OriginInputs = originInputs(data);
   const home: OriginView = homeView(inputs);
   const scale = velocityScale(symmetricLimitKmS(data.col.v_pec));
-  const state = new ViewState(data, home, defaultSlabMpc(home));
+  const state = new ViewState(data, home, defaultSlabMpc(home), inputs.cosmology.h0);
   const groups = groupsOf(data, 3);
 
   document.title = `peculiar · ${meta.file}`;
   $("file").textContent = meta.file;
   $("rows").textContent = `${data.n} galaxies`;
-  $("h0-used").textContent = `H0 = ${data.h0} km/s/Mpc (${data.h0Source}) turns distances into Hubble velocities`;
+  $("h0-used").textContent =
+    `Positions: comoving distance; velocities: H0 D + v_pec with H0 = ${inputs.cosmology.h0.toFixed(2)} km/s/Mpc (${inputs.h0Source}, as 'peculiar recentre' does)` +
+    (Number.isFinite(data.h0File) ? `; the file's settings say H0 = ${data.h0File}.` : ".");
   document.body.dataset.rows = String(data.n);
 
   const tooltip = new Tooltip(state);
@@ -122,7 +124,7 @@ async function start(): Promise<void> {
   const recentreOnGroup = (id: number): RecentreTiming | null => {
     const g = groups.find((x) => x.id === id);
     if (!g) return null;
-    return setOrigin(groupView(inputs, id, g.rows));
+    return setOrigin(groupView(inputs, data.groupId, id));
   };
   const goHome = () => setOrigin(home);
 

@@ -1,11 +1,18 @@
 /**
  * The origin the slices and the Hubble diagram are drawn from: here (us), a galaxy, or a group's
- * centroid. Re-centring runs in the browser with the library's own `recentre` (the same code as
- * `peculiar recentre`), on supergalactic Cartesian positions of the comoving distance and
- * line-of-sight velocities vr = H0 dist_c + v_pec (tangential velocities unknown, taken as zero).
+ * centre. Re-centring runs in the browser with the library's own `recentre` on the inputs that
+ * `peculiar recentre` builds (Galactic Cartesian comoving positions, line-of-sight velocities
+ * vr = H0 D + v_pec, tangential velocities unknown, taken as zero); the slices show the result in
+ * supergalactic Cartesian coordinates.
  */
 import type { ViewData } from "./data.js";
 import { originOf, recentre, type RecentreOrigin } from "../src/flow/recentre.js";
+import { fitFlow, flowPoints, type FlowRows } from "../src/flow/bulkflow.js";
+import { groupTable } from "../src/flow/groups.js";
+import { C_KMS } from "../src/cosmology/constants.js";
+import { comovingDistanceMpc, DEFAULT_COSMOLOGY, type Cosmology } from "../src/cosmology/distances.js";
+import { convertPosition, convertPositions, rotate, rotation } from "../src/sky/frames.js";
+import { unitVector } from "../src/sky/vectors.js";
 
 export type OriginKind = "home" | "galaxy" | "group";
 
@@ -16,7 +23,7 @@ export interface OriginView {
   /** The group re-centred on (-1 unless kind = group). */
   groupId: number;
   label: string;
-  /** Origin position, supergalactic Cartesian, Mpc. */
+  /** Origin position, supergalactic Cartesian, Mpc (the fit itself runs in Galactic Cartesian). */
   ox: number;
   oy: number;
   oz: number;
@@ -40,22 +47,80 @@ export interface OriginView {
 }
 
 export interface OriginInputs {
+  /** Galactic Cartesian positions (comoving Mpc) and line-of-sight velocities, as `peculiar recentre` builds them. */
   points: { x: Float64Array; y: Float64Array; z: Float64Array; vr: Float64Array; vrErr: Float64Array; use: Uint8Array };
-  h0: number;
+  /** Supergalactic Cartesian positions for the slices, Mpc. */
+  sg: { x: Float64Array; y: Float64Array; z: Float64Array };
+  /** The flow rows the points were made from (for group origins). */
+  rows: FlowRows;
+  raDeg: Float64Array;
+  decDeg: Float64Array;
+  cosmology: Cosmology;
+  /** Where H0 came from: the fit from here (as the CLI does by default). */
+  h0Source: string;
+  sigmaStar: number;
 }
 
-/** Rows usable as origins and as points of the fit: valid, finite position and velocity. */
+/** Non-linear scatter added to every error in the fits, km/s: the default of `peculiar recentre`. */
+export const SIGMA_STAR_KMS = 250;
+
+/**
+ * The re-centring inputs, built the way `peculiar recentre IN --on ID` builds them (src/cli/commands/
+ * recentre.ts) so that the page and the CLI give the same numbers: flow rows from the column contract
+ * (l, b, dist_c_mpc, dist_c_err_mpc / dist_c_mpc, cz_cmb; rows valid, not outliers, with a distance and
+ * a redshift), H0 from the flow fit from here (fitFlow), points from flowPoints with that H0.
+ * Rows without cz_cmb but with v_pec are placed with vr = H0 dist_c + v_pec and drawn, not fitted.
+ */
 export function originInputs(d: ViewData): OriginInputs {
-  const use = new Uint8Array(d.n);
-  for (let i = 0; i < d.n; i++) {
-    const ok = d.valid[i] && !d.outlier[i] && Number.isFinite(d.col.sgx[i]! + d.col.sgy[i]! + d.col.sgz[i]! + d.vr[i]!);
-    use[i] = ok ? 1 : 0;
+  const n = d.n;
+  const c = d.col;
+  const frac = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    const f = c.dist_c_err_mpc[i]! / c.dist_c_mpc[i]!;
+    frac[i] = Number.isFinite(f) ? f : c.dist_err_mpc[i]! / c.dist_mpc[i]!;
   }
-  return { points: { x: d.col.sgx, y: d.col.sgy, z: d.col.sgz, vr: d.vr, vrErr: d.col.v_pec_err, use }, h0: d.h0 };
+  const use = new Uint8Array(n);
+  for (let i = 0; i < n; i++) use[i] = d.valid[i] && !d.outlier[i] && c.dist_c_mpc[i]! > 0 && Number.isFinite(c.cz_cmb[i]!) ? 1 : 0;
+  const rows: FlowRows = { lDeg: c.l, bDeg: c.b, distCMpc: c.dist_c_mpc, distFracErr: frac, czCmbKmS: c.cz_cmb, use };
+  const omegaM = DEFAULT_COSMOLOGY.omegaM;
+  let h0 = DEFAULT_COSMOLOGY.h0;
+  let h0Source = "default (no galaxy to fit)";
+  let nFit = 0;
+  for (let i = 0; i < n; i++) nFit += use[i]!;
+  if (nFit > 4) {
+    const f = fitFlow({ ...rows, use }, { cosmology: { h0: DEFAULT_COSMOLOGY.h0, omegaM }, sigmaStar: SIGMA_STAR_KMS });
+    if (Number.isFinite(f.h0)) {
+      h0 = f.h0;
+      h0Source = "fit from here";
+    }
+  }
+  const cosmology = { h0, omegaM };
+  const pts = flowPoints(rows, cosmology);
+  for (let i = 0; i < n; i++) {
+    if (Number.isFinite(pts.vr[i]!)) continue;
+    const v = h0 * c.dist_c_mpc[i]! + c.v_pec[i]!;
+    if (Number.isFinite(v)) {
+      pts.vr[i] = v;
+      pts.vrErr[i] = c.v_pec_err[i]!;
+    }
+  }
+  const icrs = convertPositions(c.l, c.b, "galactic", "icrs");
+  return {
+    points: { ...pts, use },
+    sg: { x: c.sgx, y: c.sgy, z: c.sgz },
+    rows,
+    raDeg: icrs.lonDeg,
+    decDeg: icrs.latDeg,
+    cosmology,
+    h0Source,
+    sigmaStar: SIGMA_STAR_KMS,
+  };
 }
+
+const GAL_TO_SG = rotation("galactic", "supergalactic");
 
 /** Copies of the rows in `rows` (for re-centring the rows left out of the fit, e.g. outliers). */
-function subset(p: OriginInputs["points"], rows: Int32Array) {
+function subset(p: { x: Float64Array; y: Float64Array; z: Float64Array; vr: Float64Array; vrErr: Float64Array }, rows: Int32Array) {
   const pick = (a: Float64Array) => {
     const o = new Float64Array(rows.length);
     for (let k = 0; k < rows.length; k++) o[k] = a[rows[k]!]!;
@@ -64,34 +129,34 @@ function subset(p: OriginInputs["points"], rows: Int32Array) {
   return { x: pick(p.x), y: pick(p.y), z: pick(p.z), vr: pick(p.vr), vrErr: pick(p.vrErr) };
 }
 
-function build(inp: OriginInputs, origin: RecentreOrigin, kind: OriginKind, row: number, groupId: number, label: string): OriginView {
+function build(inp: OriginInputs, origin: RecentreOrigin, use: Uint8Array, kind: OriginKind, row: number, groupId: number, label: string): OriginView {
   const t0 = performance.now();
-  const p = inp.points;
-  const r = recentre(p, origin, { h0: inp.h0, fitDipole: true });
-  // Rows left out of the fit (outliers, invalid rows) are still drawn: the same library call on them
-  // alone, from the same origin given as a point, gives their distance and velocity seen from there.
+  const p = { ...inp.points, use };
+  const opts = { h0: inp.cosmology.h0, sigmaStar: inp.sigmaStar, form: "minor" as const };
+  const r = recentre(p, origin, opts);
+  // Rows left out of the fit (outliers, invalid rows, a group's own members) are still drawn: the same
+  // library call on them alone, from the same origin given as a point, gives their velocity seen from there.
   const o = originOf(p, origin);
   const left: number[] = [];
-  for (let i = 0; i < p.x.length; i++) if (!p.use[i] && i !== o.index) left.push(i);
+  for (let i = 0; i < p.x.length; i++) if (!use[i] && i !== o.index && Number.isFinite(p.vr[i]!)) left.push(i);
   if (left.length > 0 && Number.isFinite(o.x + o.y + o.z + o.vr)) {
     const rows = Int32Array.from(left);
-    const q = recentre(subset(p, rows), { x: o.x, y: o.y, z: o.z, vr: o.vr }, { h0: inp.h0, fitDipole: false, fitH0: false });
+    const q = recentre(subset(p, rows), { x: o.x, y: o.y, z: o.z, vr: o.vr }, { ...opts, fitDipole: false, fitH0: false });
     for (let k = 0; k < rows.length; k++) r.vAB[rows[k]!] = q.vAB[k]!;
   }
   const kernelMs = performance.now() - t0;
   const n = p.x.length;
-  const ox = o.x;
-  const oy = o.y;
-  const oz = o.z;
+  const [ox, oy, oz] = rotate(GAL_TO_SG, o.x, o.y, o.z);
   const x = new Float64Array(n);
   const y = new Float64Array(n);
   const z = new Float64Array(n);
   const u = new Float64Array(n);
-  const h = Number.isFinite(r.h0There) ? r.h0There : inp.h0;
+  const h = Number.isFinite(r.h0There) ? r.h0There : inp.cosmology.h0;
+  const sg = inp.sg;
   for (let i = 0; i < n; i++) {
-    x[i] = p.x[i]! - ox;
-    y[i] = p.y[i]! - oy;
-    z[i] = p.z[i]! - oz;
+    x[i] = sg.x[i]! - ox;
+    y[i] = sg.y[i]! - oy;
+    z[i] = sg.z[i]! - oz;
     u[i] = r.vAB[i]! - h * r.s[i]!;
   }
   return {
@@ -120,31 +185,38 @@ function build(inp: OriginInputs, origin: RecentreOrigin, kind: OriginKind, row:
 
 /** The view from here: the same fit with the origin at (0, 0, 0) and at rest. */
 export function homeView(inp: OriginInputs): OriginView {
-  return build(inp, { x: 0, y: 0, z: 0, vr: 0 }, "home", -1, -1, "here");
+  return build(inp, { x: 0, y: 0, z: 0, vr: 0 }, inp.points.use, "home", -1, -1, "here");
 }
 
 export function galaxyView(inp: OriginInputs, row: number, id: string): OriginView {
-  return build(inp, { index: row }, "galaxy", row, -1, `galaxy ${id}`);
+  return build(inp, { index: row }, inp.points.use, "galaxy", row, -1, `galaxy ${id}`);
 }
 
-/** A group's centroid: the mean position and mean line-of-sight velocity of its members. */
-export function groupView(inp: OriginInputs, groupId: number, rows: Int32Array): OriginView {
-  const p = inp.points;
-  let x = 0;
-  let y = 0;
-  let z = 0;
-  let vr = 0;
-  let m = 0;
-  for (const i of rows) {
-    const s = p.x[i]! + p.y[i]! + p.z[i]! + p.vr[i]!;
-    if (!Number.isFinite(s)) continue;
-    x += p.x[i]!;
-    y += p.y[i]!;
-    z += p.z[i]!;
-    vr += p.vr[i]!;
-    m++;
+/**
+ * A group as the origin, as `peculiar recentre --on group:ID` resolves it: the group table's
+ * centre (mean direction, error-weighted comoving distance and peculiar velocity; mean cz when no
+ * member has a distance), vr = H0 D + v_pec; the members are part of the origin and leave the fit.
+ */
+export function groupView(inp: OriginInputs, groupIds: Int32Array, groupId: number): OriginView {
+  let nG = 0;
+  for (const g of groupIds) if (g > nG) nG = g;
+  const gt = groupTable(
+    { groupId: groupIds, nGroups: nG, raDeg: inp.raDeg, decDeg: inp.decDeg, czKmS: inp.rows.czCmbKmS, distCMpc: inp.rows.distCMpc, distFracErr: inp.rows.distFracErr },
+    inp.cosmology,
+  );
+  const k = groupId - 1;
+  const label = `group ${groupId}`;
+  if (!(k >= 0 && k < nG) || gt.nMembers[k] === 0) return build(inp, { x: NaN, y: NaN, z: NaN, vr: NaN }, inp.points.use, "group", -1, groupId, `${label} (no members)`);
+  let d = gt.distCMpc[k]!;
+  let vp = gt.vPecKmS[k]!;
+  if (!Number.isFinite(d)) {
+    d = comovingDistanceMpc(gt.czMeanKmS[k]! / C_KMS, inp.cosmology);
+    vp = 0;
   }
-  if (m === 0) return build(inp, { x: NaN, y: NaN, z: NaN, vr: NaN }, "group", -1, groupId, `group ${groupId} (no usable members)`);
-  // vr of the centroid: the mean line-of-sight velocity, taken along the centroid's direction.
-  return build(inp, { x: x / m, y: y / m, z: z / m, vr: vr / m }, "group", -1, groupId, `group ${groupId} (${rows.length} members)`);
+  const [l, b] = convertPosition(gt.raDeg[k]!, gt.decDeg[k]!, "icrs", "galactic");
+  const e = unitVector(l, b);
+  const vr = inp.cosmology.h0 * d + vp;
+  const use = new Uint8Array(inp.points.use);
+  for (let i = 0; i < groupIds.length; i++) if (groupIds[i] === groupId) use[i] = 0;
+  return build(inp, { x: d * e[0], y: d * e[1], z: d * e[2], vr }, use, "group", -1, groupId, `${label} (${gt.nMembers[k]} members)`);
 }

@@ -46,7 +46,7 @@ export class SlicePanel extends CanvasPanel {
     const sx = d3.scaleLinear().domain([-R, R]).range([cx - side / 2, cx + side / 2]);
     const sy = d3.scaleLinear().domain([-R, R]).range([cy + side / 2, cy - side / 2]);
     const half = st.slabMpc / 2;
-    const H = Number.isFinite(o.h0) ? o.h0 : d.h0;
+    const H = Number.isFinite(o.h0) ? o.h0 : st.h0Ref;
     const px = this.px;
     const py = this.py;
     let unknown = 0;

@@ -24,8 +24,12 @@ export class ViewState {
   origin: OriginView;
   private readonly listeners = new Map<ViewEvent, ((s: ViewState) => void)[]>();
 
-  constructor(data: ViewData, home: OriginView, slabMpc: number) {
+  /** The H0 the positions and velocities were made with (the fit from here), km/s/Mpc. */
+  readonly h0Ref: number;
+
+  constructor(data: ViewData, home: OriginView, slabMpc: number, h0Ref: number) {
     this.data = data;
+    this.h0Ref = h0Ref;
     this.selected = new Uint8Array(data.n);
     this.origin = home;
     this.slabMpc = slabMpc;

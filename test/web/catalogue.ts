@@ -54,11 +54,14 @@ export function makeViewCatalogue(o: ViewCatalogueOptions): Table {
     sgy[i] = pv.distCMpc[i]! * u[3 * i + 1]!;
     sgz[i] = pv.distCMpc[i]! * u[3 * i + 2]!;
   }
-  const groupId = Int32Array.from(m.clusterOf);
+  // Group ids as 'peculiar groups' writes them: 1..N, -1 for none.
+  const groupId = Int32Array.from(m.clusterOf, (c) => (c >= 0 ? c + 1 : -1));
   const groupSize = Int32Array.from(m.clusterOf, (c) => (c >= 0 ? nCluster : 0));
   const f = (name: string, values: Float64Array, unit?: string): ColumnData => ({ name, kind: "float64", values, ...(unit ? { meta: { unit } } : {}) });
   let cols: ColumnData[] = [
     { name: "id", kind: "utf8", values: Array.from({ length: n }, (_, i) => `TG${String(i + 1).padStart(6, "0")}`) },
+    f("ra", Float64Array.from(m.raDeg), "deg"),
+    f("dec", Float64Array.from(m.decDeg), "deg"),
     f("l", gal.lonDeg, "deg"),
     f("b", gal.latDeg, "deg"),
     f("sgl", sg.lonDeg, "deg"),
@@ -69,6 +72,7 @@ export function makeViewCatalogue(o: ViewCatalogueOptions): Table {
     f("dist_mpc", dist.distMpc, "Mpc"),
     f("dist_err_mpc", dist.distErrMpc, "Mpc"),
     f("dist_c_mpc", pv.distCMpc, "Mpc"),
+    f("dist_c_err_mpc", pv.distCErrMpc, "Mpc"),
     f("cz_cmb", Float64Array.from(m.czCmbKmS), "km/s"),
     f("v_pec", pv.vPecKmS, "km/s"),
     f("v_pec_err", pv.vPecErrKmS, "km/s"),
@@ -81,7 +85,7 @@ export function makeViewCatalogue(o: ViewCatalogueOptions): Table {
   ];
   if (o.drop) cols = cols.filter((c) => !o.drop!.includes(c.name));
   const meta = new Map<string, string>([
-    [META.roles, JSON.stringify({ id: "id" })],
+    [META.roles, JSON.stringify({ id: "id", ra: "ra", dec: "dec" })],
     [META.settings, JSON.stringify({ step: "test-catalogue", h0, omegaM: 0.3, frame: "cmb", estimator: "exact" })],
   ]);
   return tableFromColumns(cols, meta, n);
