@@ -143,6 +143,41 @@ describe("sexagesimal parsing", () => {
   });
 });
 
+describe("sexagesimal parsing of arbitrary text", () => {
+  it("never throws and returns either an in-range angle or NaN with a reason", () => {
+    // Seeded random strings over digits, signs, separators and markers (LCG, common practice).
+    const alphabet = ["0", "1", "5", "9", "12", "59", "60", "99", ".", " ", ":", "h", "m", "s", "d", "°", "'", "′", '"', "″", "-", "+", "\u2212", "e", "x", "deg"];
+    let seed = 777;
+    const rnd = () => ((seed = (seed * 1103515245 + 12345) % 2147483648) / 2147483648);
+    let valid = 0;
+    for (let i = 0; i < 20000; i++) {
+      let t = "";
+      const len = 1 + Math.floor(rnd() * 9);
+      for (let k = 0; k < len; k++) t += alphabet[Math.floor(rnd() * alphabet.length)]!;
+      for (const kind of ["ra", "dec"] as const) {
+        for (const unit of [undefined, "deg", "rad", "h"] as const) {
+          const r = parseAngle(t, kind, unit);
+          if (r.reason === undefined) {
+            valid++;
+            expect(Number.isFinite(r.deg), t).toBe(true);
+            if (kind === "ra") expect(r.deg >= 0 && r.deg < 360, t).toBe(true);
+            else expect(Math.abs(r.deg) <= 90, t).toBe(true);
+          } else {
+            expect(r.deg, t).toBeNaN();
+            expect(r.reason.length).toBeGreaterThan(0);
+          }
+        }
+      }
+    }
+    expect(valid).toBeGreaterThan(1000);
+  });
+
+  it("accepts no-break and thin spaces as separators", () => {
+    expectDeg("12\u00a030\u00a000", "ra", 187.5);
+    expectDeg("+12\u202f30\u202f00", "dec", 12.5);
+  });
+});
+
 describe("angle units", () => {
   it("maps FITS, VOTable and CDS unit strings to deg, rad or h and rejects others", () => {
     // Unit spellings: FITS Standard 4.0 §4.3 / VOUnits ("deg", "rad", "h"), CDS ReadMe ("h:m:s", "d:m:s").
