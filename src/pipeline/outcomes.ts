@@ -9,6 +9,7 @@ import { float64Column, hasColumn } from "../catalogue/columns.js";
 import { compare, type Comparison } from "./truth.js";
 import { hubbleDiagramSvg, separationHistogramSvg, skyMapSvg, type SkyMarker } from "./plots.js";
 import type { PipelineState } from "./state.js";
+import { convertPosition } from "../sky/frames.js";
 
 /** The recovered numbers beside the truth, for everything the run got to. */
 export function comparisonsOf(s: PipelineState): Comparison[] {
@@ -61,18 +62,26 @@ export async function plotsOf(s: PipelineState, outDir: string): Promise<{ file:
     const v = col(t, `cz_${frame}`);
     const outlier = col(t, "outlier");
     if (d && v) {
-      const p: Parameters<typeof hubbleDiagramSvg>[0] = { distMpc: d, velKmS: v, vPecKmS: vpec, h0: s.flow?.h0.value ?? NaN, title: `Hubble diagram (${frame} frame)` };
+      const h0 = s.flow?.h0.value;
+      // Residuals from the fitted law when there is one (what the eye compares with the line), else v_pec.
+      const resid = h0 === undefined ? vpec : Float64Array.from(v, (vi, i) => vi - h0 * d[i]!);
+      const p: Parameters<typeof hubbleDiagramSvg>[0] = { distMpc: d, velKmS: v, vPecKmS: resid, h0: h0 ?? NaN, title: `Hubble diagram (${frame} frame)` };
+      if (h0 !== undefined) p.residualLabel = "v - H0 D (km/s)";
       const e = col(t, "v_pec_err");
       if (e) p.vPecErrKmS = e;
       if (outlier) p.outlier = outlier;
       if (s.truth) p.h0Truth = s.truth.h0;
-      await put("plot-hubble.svg", hubbleDiagramSvg(p), "Hubble diagram: velocity against comoving distance with the fitted law; peculiar velocities below");
+      await put("plot-hubble.svg", hubbleDiagramSvg(p), "Hubble diagram: cz (CMB frame) against the measured comoving distance with the fitted law; residuals from it below");
     }
     const l = col(t, "l");
     const b = col(t, "b");
     if (l && b) {
       const markers: SkyMarker[] = [];
       if (s.flow) markers.push({ lDeg: s.flow.bulk.lDeg, bDeg: s.flow.bulk.bDeg, label: "bulk flow (fit)", kind: "fit" });
+      if (s.cluster) {
+        const [gl, gb] = convertPosition(s.cluster.raDeg, s.cluster.decDeg, "icrs", "galactic");
+        markers.push({ lDeg: gl, bDeg: gb, label: `richest group (${s.cluster.members})`, kind: "fit" });
+      }
       if (s.truth) {
         markers.push({ lDeg: s.truth.bulkFlow.lDeg, bDeg: s.truth.bulkFlow.bDeg, label: "bulk flow (injected)", kind: "truth" });
         markers.push({ lDeg: s.truth.cluster.lDeg, bDeg: s.truth.cluster.bDeg, label: s.truth.cluster.name, kind: "truth" });

@@ -17,8 +17,10 @@ export interface HubblePlotInput {
   distMpc: ArrayLike<number>;
   /** Velocity in the fit frame (cz in the CMB frame), km/s. */
   velKmS: ArrayLike<number>;
-  /** Peculiar velocity (residual panel), km/s. */
+  /** Residual panel, km/s: the peculiar velocity, or the velocity minus the fitted law. */
   vPecKmS: ArrayLike<number>;
+  /** Axis label of the residual panel. Default "v_pec (km/s)". */
+  residualLabel?: string;
   vPecErrKmS?: ArrayLike<number>;
   /** 1 for rows flagged as outliers: drawn as crosses, not dots. */
   outlier?: ArrayLike<number>;
@@ -63,7 +65,7 @@ export function hubbleDiagramSvg(p: HubblePlotInput): string {
   const clampR = (v: number) => Math.max(yr.domain()[0]!, Math.min(yr.domain()[1]!, v));
 
   s += axes(x, y, "", "velocity (km/s)", { showXLabels: false });
-  s += axes(x, yr, "distance (Mpc)", "v_pec (km/s)", { yTicks: 4 });
+  s += axes(x, yr, "distance (Mpc)", p.residualLabel ?? "v_pec (km/s)", { yTicks: 4 });
   const withBars = nOk <= MAX_POINTS_WITH_ERROR_BARS && p.vPecErrKmS !== undefined;
 
   let dots = "";
@@ -178,7 +180,7 @@ export function skyMapSvg(p: SkyPlotInput): string {
       m.kind === "fit"
         ? `<circle class="marker-fit" cx="${px(mx)}" cy="${px(my)}" r="7" fill="none" stroke="#000" stroke-width="1.8"/>\n`
         : `<path class="marker-truth" d="M${px(mx - 7)},${px(my)}h14M${px(mx)},${px(my - 7)}v14" stroke="#000" stroke-width="1.8"/>\n`;
-    s += text(mx + 9, my - 6, m.label, `font-weight="bold"`);
+    s += text(mx + 9, m.kind === "fit" ? my + 16 : my - 6, m.label, `font-weight="bold"`);
   }
   // Legend: a horizontal colour bar with ticks at -lim, 0, +lim.
   const lx0 = W / 2 - 150;
