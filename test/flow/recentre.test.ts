@@ -25,8 +25,9 @@ describe("recentre", () => {
     const m = makeMockUniverse({ seed: 11, n: 400, linear: true, sigmaStar: 0, distErrFrac: 0, rMaxMpc: 100 });
     const pts = pointsFrom(m.raDeg, m.decDeg, m.distTrueMpc, m.czCmbKmS);
     for (const idx of [0, 17, 123, 250, 399]) {
-      for (const form of ["minor", "major"] as const) {
-        const r = recentre(pts, { index: idx }, { h0: 50, sigmaStar: 250, form });
+      for (const [form, estimator] of [["minor", "linear"], ["minor", "log"], ["major", "linear"]] as const) {
+        const r = recentre(pts, { index: idx }, { h0: 50, sigmaStar: 250, form, estimator });
+        expect(r.estimator).toBe(estimator);
         expect(Math.abs(r.h0There - H0)).toBeLessThan(EXACT);
         for (const d of r.dipole) expect(Math.abs(d)).toBeLessThan(1e-7);
         expect(r.residualRmsThere).toBeLessThan(1e-8);
