@@ -120,6 +120,10 @@ export async function loadForCommand(path: string, flags: CatalogueFlags, io: Io
     if (e instanceof PeculiarError && e.code === "column" && e.place.file === undefined) {
       throw new PeculiarError("column", e.message, { file: path }, { cause: e });
     }
+    // A shared --col that fits one input only: say how to aim it at one input.
+    if (e instanceof PeculiarError && e.code === "column" && options.index !== undefined && /^(.*: )?--col [a-z_]+=/.test(e.message)) {
+      throw new PeculiarError("column", `${e.message} (input ${options.index}; --col N:ROLE=NAME gives a column for input N only)`, {}, { cause: e });
+    }
     throw e;
   }
   reportCatalogue(cat, io);

@@ -62,4 +62,18 @@ describe("loadForCommand", () => {
       cleanup();
     }
   });
+
+  it("says how to aim a --col at one input when a shared one does not fit input 2", async () => {
+    const { dir, cleanup } = tempDir();
+    try {
+      const file = join(dir, "b.csv");
+      writeFileSync(file, "ra,dec\n1,2\n");
+      const flags = parseCatalogueFlags({ col: ["cz=vhel"] });
+      await expect(loadForCommand(file, flags, memoryIo(), { index: 2 })).rejects.toThrow(
+        `${file}: --col cz=vhel: no such column; expected one of ra, dec, valid, invalid_reason, source_row (input 2; --col N:ROLE=NAME gives a column for input N only)`,
+      );
+    } finally {
+      cleanup();
+    }
+  });
 });
