@@ -26,6 +26,7 @@ if (existsSync("web/main.ts")) {
     format: "esm",
     target: "es2022",
     sourcemap: true,
+    minify: true,
     logLevel: "warning",
     entryPoints: { app: "web/main.ts" },
     outdir: "dist/web",

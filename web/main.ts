@@ -130,6 +130,7 @@ async function start(): Promise<void> {
 
   const actions: PanelActions = {
     recentreOn: (row) => {
+      tooltip.show(-1, 0, 0);
       recentreOn(row);
     },
     select: (rows) => state.setSelection(rows),

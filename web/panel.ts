@@ -1,7 +1,8 @@
 /**
  * A plot panel: points on a canvas, axes, graticules and legends in an SVG overlay on top, and the
  * pointer handling every panel shares. Drag draws a selection rectangle (linked brushing), a click
- * on a galaxy re-centres on it, hovering shows the tooltip. Picking goes through the library's
+ * on a galaxy re-centres on it, hovering shows the tooltip; panels that zoom do so with the wheel,
+ * pan with shift-drag (or the middle button) and go back to the full view on a double click. Picking goes through the library's
  * PlaneIndex over the screen positions of the drawn points, built lazily after each draw.
  */
 import * as d3 from "d3";
@@ -113,6 +114,21 @@ export abstract class CanvasPanel {
     this.root.dataset.drawn = String(this.drawn);
   }
 
+  /** Zoom by `factor` about (x, y); false when the panel does not zoom. */
+  protected zoomAt(_x: number, _y: number, _factor: number): boolean {
+    return false;
+  }
+
+  /** Pan by (dx, dy) CSS px (shift-drag or middle-drag); false when the panel does not pan. */
+  protected panBy(_dx: number, _dy: number): boolean {
+    return false;
+  }
+
+  /** Back to the full view (double click); false when nothing changed. */
+  protected resetView(): boolean {
+    return false;
+  }
+
   /** The drawn row nearest to (x, y) within r CSS px, or -1. */
   pick(x: number, y: number, r = PICK_RADIUS_PX): number {
     if (!this.index) this.index = new PlaneIndex(this.px, this.py);
@@ -137,11 +153,31 @@ export abstract class CanvasPanel {
     const el = this.svg.node()!;
     let start: [number, number] | null = null;
     let dragging = false;
+    let panFrom: [number, number] | null = null;
+    el.addEventListener(
+      "wheel",
+      (e) => {
+        const p = local(e as unknown as PointerEvent);
+        if (this.zoomAt(p[0], p[1], Math.exp(-e.deltaY * 0.0015))) {
+          e.preventDefault();
+          this.render();
+        }
+      },
+      { passive: false },
+    );
+    el.addEventListener("dblclick", () => {
+      if (this.resetView()) this.render();
+    });
     const local = (e: PointerEvent): [number, number] => {
       const r = el.getBoundingClientRect();
       return [e.clientX - r.left, e.clientY - r.top];
     };
     el.addEventListener("pointerdown", (e) => {
+      if ((e.button === 0 && e.shiftKey) || e.button === 1) {
+        panFrom = local(e);
+        el.setPointerCapture(e.pointerId);
+        return;
+      }
       if (e.button !== 0) return;
       start = local(e);
       dragging = false;
@@ -149,6 +185,11 @@ export abstract class CanvasPanel {
     });
     el.addEventListener("pointermove", (e) => {
       const p = local(e);
+      if (panFrom) {
+        if (this.panBy(p[0] - panFrom[0], p[1] - panFrom[1])) this.render();
+        panFrom = p;
+        return;
+      }
       if (start) {
         if (!dragging && Math.hypot(p[0] - start[0], p[1] - start[1]) > DRAG_THRESHOLD_PX) dragging = true;
         if (dragging) {
@@ -164,6 +205,10 @@ export abstract class CanvasPanel {
       this.actions.hover(this.pick(p[0], p[1]), e.clientX, e.clientY);
     });
     el.addEventListener("pointerup", (e) => {
+      if (panFrom) {
+        panFrom = null;
+        return;
+      }
       if (!start) return;
       const p = local(e);
       if (dragging) {

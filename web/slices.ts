@@ -20,6 +20,38 @@ export class SlicePanel extends CanvasPanel {
   readonly plane: Plane;
   readonly scale: VelocityScale;
 
+  /** Zoom factor and window centre (Mpc, in the panel's two coordinates about the origin). */
+  private zoom = 1;
+  private centre: [number, number] = [0, 0];
+  private pxPerMpc = 1;
+
+  protected override zoomAt(x: number, y: number, factor: number): boolean {
+    const k = Math.min(50, Math.max(1, this.zoom * factor));
+    if (k === this.zoom) return false;
+    // Keep the point under the pointer fixed: its Mpc coordinates before and after are equal.
+    const cx = M.left + (this.width - M.left - M.right) / 2;
+    const cy = M.top + (this.height - M.top - M.bottom) / 2;
+    const ax = this.centre[0] + (x - cx) / this.pxPerMpc;
+    const ay = this.centre[1] - (y - cy) / this.pxPerMpc;
+    const s = this.zoom / k;
+    this.centre = k === 1 ? [0, 0] : [ax - (ax - this.centre[0]) * s, ay - (ay - this.centre[1]) * s];
+    this.zoom = k;
+    return true;
+  }
+
+  protected override panBy(dx: number, dy: number): boolean {
+    if (this.zoom === 1) return false;
+    this.centre = [this.centre[0] - dx / this.pxPerMpc, this.centre[1] + dy / this.pxPerMpc];
+    return true;
+  }
+
+  protected override resetView(): boolean {
+    if (this.zoom === 1) return false;
+    this.zoom = 1;
+    this.centre = [0, 0];
+    return true;
+  }
+
   constructor(parent: HTMLElement, state: ViewState, actions: PanelActions, scale: VelocityScale, plane: Plane, tools: HTMLElement[]) {
     const [a, b, c] = AXES[plane];
     super(parent, state, actions, { id: `slice-${plane}`, title: `${NAMES[a]}–${NAMES[b]} slice (|${NAMES[c]}| ≤ half the slab)`, tools });
@@ -37,14 +69,16 @@ export class SlicePanel extends CanvasPanel {
     const A = cols[ia]!;
     const B = cols[ib]!;
     const C = cols[ic]!;
-    const R = originLimits(o).extentMpc;
+    const R = originLimits(o).extentMpc / this.zoom;
     const w = this.width;
     const h = this.height;
     const side = Math.max(10, Math.min(w - M.left - M.right, h - M.top - M.bottom));
     const cx = M.left + (w - M.left - M.right) / 2;
     const cy = M.top + (h - M.top - M.bottom) / 2;
-    const sx = d3.scaleLinear().domain([-R, R]).range([cx - side / 2, cx + side / 2]);
-    const sy = d3.scaleLinear().domain([-R, R]).range([cy + side / 2, cy - side / 2]);
+    const [ca, cb] = this.centre;
+    const sx = d3.scaleLinear().domain([ca - R, ca + R]).range([cx - side / 2, cx + side / 2]);
+    const sy = d3.scaleLinear().domain([cb - R, cb + R]).range([cy + side / 2, cy - side / 2]);
+    this.pxPerMpc = side / (2 * R);
     const half = st.slabMpc / 2;
     const H = Number.isFinite(o.h0) ? o.h0 : st.h0Ref;
     const px = this.px;
@@ -58,16 +92,16 @@ export class SlicePanel extends CanvasPanel {
         unknown++;
         continue;
       }
-      if (Math.abs(c) > half || Math.abs(a) > R || Math.abs(b) > R) continue;
+      if (Math.abs(c) > half || Math.abs(a - ca) > R || Math.abs(b - cb) > R) continue;
       px[i] = sx(a);
       py[i] = sy(b);
     }
     ctx.save();
     ctx.beginPath();
-    ctx.rect(sx(-R), sy(R), side, side);
+    ctx.rect(sx(ca - R), sy(cb + R), side, side);
     ctx.clip();
     ctx.fillStyle = "#171b22";
-    ctx.fillRect(sx(-R), sy(R), side, side);
+    ctx.fillRect(sx(ca - R), sy(cb + R), side, side);
     // Velocity lines, one stroke per colour bin.
     const bins = binAll(o.u, this.scale);
     const k = side / (2 * R) / H; // px per km/s: u / H Mpc times px per Mpc
@@ -116,12 +150,12 @@ export class SlicePanel extends CanvasPanel {
 
     const g = this.layer;
     g.append("g")
-      .attr("transform", `translate(0,${sy(-R)})`)
+      .attr("transform", `translate(0,${sy(cb - R)})`)
       .call(d3.axisBottom(sx).ticks(5))
       .call((s) => s.selectAll("text").attr("fill", INK))
       .call((s) => s.selectAll("line,path").attr("stroke", FAINT_INK));
     g.append("g")
-      .attr("transform", `translate(${sx(-R)},0)`)
+      .attr("transform", `translate(${sx(ca - R)},0)`)
       .call(d3.axisLeft(sy).ticks(5))
       .call((s) => s.selectAll("text").attr("fill", INK))
       .call((s) => s.selectAll("line,path").attr("stroke", FAINT_INK));
@@ -129,11 +163,11 @@ export class SlicePanel extends CanvasPanel {
     g.append("text").attr("x", cx).attr("y", h - 4).attr("text-anchor", "middle").attr("fill", INK).text(`${NAMES[ia]}${rel} (Mpc)`);
     g.append("text").attr("transform", `translate(11,${cy}) rotate(-90)`).attr("text-anchor", "middle").attr("fill", INK).text(`${NAMES[ib]}${rel} (Mpc)`);
     g.append("text")
-      .attr("x", sx(-R) + 6)
-      .attr("y", sy(R) + 14)
+      .attr("x", sx(ca - R) + 6)
+      .attr("y", sy(cb + R) + 14)
       .attr("fill", INK)
       .attr("font-size", 10)
-      .text(`slab ${st.slabMpc.toFixed(0)} Mpc · ${o.kind === "home" ? "origin: here" : "origin: " + o.label + " (○ = us)"}`);
+      .text(`slab ${st.slabMpc.toFixed(0)} Mpc · ${o.kind === "home" ? "origin: here" : "origin: " + o.label + " (○ = us)"}${this.zoom !== 1 ? ` · zoom ×${this.zoom.toFixed(1)} (double-click: full view)` : ""}`);
     this.root.dataset.inSlab = String(drawn);
     this.footer.textContent = `${drawn} in the slab${unknown ? `, ${unknown} with unknown position` : ""} · line: u/H Mpc along the line of sight from the origin, outward = receding`;
     this.footer.title = "Each line is the radial peculiar velocity u seen from the origin, drawn as the distance u/H it is worth, along the direction from the origin (outward = receding, inward = approaching).";

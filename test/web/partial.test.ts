@@ -41,6 +41,27 @@ afterAll(async () => {
   tmp?.cleanup();
 });
 
+describe("the web view of a small catalogue", () => {
+  it("draws error bars in the Hubble diagram when there are few points", async () => {
+    const file = join(tmp.dir, "few.arrow");
+    writeViewCatalogue(file, { seed: 9, n: 120 });
+    const s = await startViewServer({ file, port: 0 });
+    const p = await browser.newPage();
+    const errs = collectErrors(p);
+    try {
+      await p.goto(s.url);
+      await p.waitForSelector("body[data-ready='1']", { timeout: 90_000 });
+      expect(errs).toEqual([]);
+      expect(await p.textContent("#panel-hubble footer")).toContain("bars: 1σ distance and velocity");
+      await p.locator("#panel-hubble").screenshot({ path: join(SHOTS, "few-hubble.png") });
+      await p.locator("#panel-sky").screenshot({ path: join(SHOTS, "few-sky.png") });
+    } finally {
+      await p.close();
+      await s.close();
+    }
+  });
+});
+
 describe("the web view of a partial catalogue", () => {
   it("draws every galaxy on the sky map in the unknown colour and logs no error", async () => {
     expect(errors).toEqual([]);

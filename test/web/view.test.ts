@@ -237,6 +237,18 @@ describe("the web view", () => {
     expect(await page.locator("#panel-match rect.bin").count()).toBe(30);
   });
 
+  it("thins the slices as the slab gets thinner", async () => {
+    const inSlab = async () => Number(await page.getAttribute("#panel-slice-xy", "data-drawn"));
+    const slab = page.locator("#slab");
+    await slab.fill("10");
+    const thin = await inSlab();
+    await slab.fill("200");
+    const thick = await inSlab();
+    expect(thin).toBeGreaterThan(0);
+    expect(thick).toBeGreaterThan(thin);
+    await slab.fill("34");
+  });
+
   it("exports each panel as SVG and PNG", async () => {
     for (const id of ["sky", "hubble", "slice-xy", "match"]) {
       for (const kind of ["SVG", "PNG"]) {
