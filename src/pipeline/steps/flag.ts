@@ -10,14 +10,14 @@ import { flagOutliers, OUTLIER_NOT_USED, OUTLIER_UNSCORED } from "../../flow/out
 import { PeculiarError } from "../../errors.js";
 import type { RunContext, StepOutcome } from "../runner.js";
 import { saveTable, withTable, type PipelineState } from "../state.js";
-import { flowRowsOf } from "./rows.js";
+import { flowRowsOfTable } from "../../flow/table.js";
 
 export async function flagStep(ctx: RunContext<PipelineState>): Promise<StepOutcome> {
   const { state: s, plan } = ctx;
   const v = s.velocities;
   if (!v) throw new PeculiarError("step", "no velocities table");
   const f = plan.steps.flag;
-  const rows = flowRowsOf(v.table, false);
+  const rows = flowRowsOfTable(v.table, v.raDeg, v.decDeg, {}, v.file, false).rows;
   const r = flagOutliers(rows, {
     method: f.method,
     k: f.kappa,

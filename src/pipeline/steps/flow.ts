@@ -19,14 +19,15 @@ import { fitFlow, type FlowFit, type FlowOptions, type FlowRows } from "../../fl
 import { PeculiarError } from "../../errors.js";
 import type { RunContext, StepOutcome } from "../runner.js";
 import type { PipelineState } from "../state.js";
-import { flowRowsOf } from "./rows.js";
+import { flowRowsOfTable } from "../../flow/table.js";
 
 export async function flowStep(ctx: RunContext<PipelineState>): Promise<StepOutcome> {
   const { state: s, plan } = ctx;
-  const t = (s.grouped ?? s.flagged ?? s.velocities)?.table;
-  if (!t) throw new PeculiarError("step", "no velocities table");
+  const cat = s.grouped ?? s.flagged ?? s.velocities;
+  if (!cat) throw new PeculiarError("step", "no velocities table");
+  const t = cat.table;
   const f = plan.steps.flow;
-  const rows = flowRowsOf(t, true);
+  const rows = flowRowsOfTable(t, cat.raDeg, cat.decDeg, {}, cat.file, true).rows;
   const o: FlowOptions = { sigmaStar: f.sigmaStarKmS, cosmology: { h0: plan.steps.velocities.h0, omegaM: plan.steps.velocities.omegaM } };
   if (f.maxDistMpc !== undefined) o.maxDistMpc = f.maxDistMpc;
   const fit = fitFlow(rows, o);

@@ -14,7 +14,7 @@ import { PeculiarError } from "../../errors.js";
 import { DEG } from "../../sky/angles.js";
 import type { RunContext, StepOutcome } from "../runner.js";
 import { saveTable, withTable, type ClusterOutcome, type PipelineState } from "../state.js";
-import { flowRowsOf } from "./rows.js";
+import { flowRowsOfTable } from "../../flow/table.js";
 
 function groupsTableArrow(g: GroupTable) {
   const f = (name: string, values: Float64Array, unit: string, description: string): ColumnData => {
@@ -96,7 +96,7 @@ export async function groupsStep(ctx: RunContext<PipelineState>): Promise<StepOu
   if (gs.linkKmS !== undefined) o.v0KmS = gs.linkKmS;
   const fof = friendsOfFriends(src.raDeg, src.decDeg, cz, o);
   // Group distances from members with a trusted distance only.
-  const rows = flowRowsOf(src.table, true);
+  const rows = flowRowsOfTable(src.table, src.raDeg, src.decDeg, {}, src.file, true).rows;
   const dist = Float64Array.from(rows.distCMpc, (d, i) => (rows.use![i] ? d : NaN));
   const g = groupTable({ groupId: fof.groupId, nGroups: fof.nGroups, raDeg: src.raDeg, decDeg: src.decDeg, czKmS: cz, distCMpc: dist, distFracErr: rows.distFracErr }, { h0, omegaM: plan.steps.velocities.omegaM });
   s.groups = g;

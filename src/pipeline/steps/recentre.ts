@@ -4,23 +4,25 @@
  * Each galaxy's 3-D velocity is its Hubble flow plus its radial peculiar velocity (radial-only:
  * tangential peculiar velocities are unknown and set to zero). Origins:
  *   group:richest | group:ID  the group's centroid at its error-weighted distance, moving with
- *                             H D + its peculiar velocity along the line of sight;
+ *                             H D + its peculiar velocity along the line of sight; its members
+ *                             are left out of the fit from there (as 'peculiar recentre' does);
  *   id:NAME                   the galaxy with that id (it must have a distance);
  *   RA,DEC,DIST               a point (deg, deg, comoving Mpc) at rest in the Hubble flow.
- * Writes 07-recentre.arrow (s_mpc, v_there, used per galaxy) and 07-recentre.json.
+ * The verdict is src/flow/copernican.ts's. Writes 07-recentre.arrow (s_mpc, v_there, used per
+ * galaxy) and 07-recentre.json.
  */
 import { join } from "node:path";
 import { writeFileAtomic } from "../../catalogue/atomic.js";
 import { stringColumn, tableFromColumns, type ColumnData } from "../../catalogue/columns.js";
 import { recentre, type RecentreOrigin } from "../../flow/recentre.js";
+import { copernicanCheck } from "../../flow/copernican.js";
+import { comovingDistanceMpc } from "../../cosmology/distances.js";
+import { C_KMS } from "../../cosmology/constants.js";
 import { PeculiarError } from "../../errors.js";
 import { convertPosition } from "../../sky/frames.js";
 import { unitVector } from "../../sky/vectors.js";
 import type { RunContext, StepOutcome } from "../runner.js";
 import { saveTable, type PipelineState } from "../state.js";
-
-/** |H_there - H_here| below this many combined sigma is called consistent (common practice: 2 sigma). */
-export const COPERNICAN_SIGMA = 2;
 
 function galacticPoint(raDeg: number, decDeg: number, distMpc: number): [number, number, number] {
   const [l, b] = convertPosition(raDeg, decDeg, "icrs", "galactic");
@@ -35,6 +37,7 @@ export async function recentreStep(ctx: RunContext<PipelineState>): Promise<Step
   if (!fit || !t) throw new PeculiarError("step", "re-centring needs the flow fit (step 'flow')");
   const on = plan.steps.recentre.on.trim();
   const h0 = fit.h0;
+  const use = Uint8Array.from(fit.used);
   let origin: RecentreOrigin;
   let label: string;
   const gm = /^group:(.+)$/.exec(on);
@@ -51,12 +54,20 @@ export async function recentreStep(ctx: RunContext<PipelineState>): Promise<Step
       k = g.id.findIndex((x) => x === id);
       if (k < 0) throw new PeculiarError("step", `no group with id ${gm[1]}`, { expected: `1..${g.nGroups} or 'richest'` });
     }
-    const d = g.distCMpc[k]!;
-    if (!(d > 0)) throw new PeculiarError("step", `group ${g.id[k]} has no member with a trusted distance, so it has no position to re-centre on`);
+    let d = g.distCMpc[k]!;
+    let vPec = g.vPecKmS[k]!;
+    let where = "its error-weighted distance";
+    if (!(d > 0)) {
+      // No member with a trusted distance: the redshift distance of the mean velocity, at rest in the flow.
+      d = comovingDistanceMpc(g.czMeanKmS[k]! / C_KMS, { h0, omegaM: plan.steps.velocities.omegaM });
+      vPec = 0;
+      where = "the redshift distance of its mean velocity (no member has a trusted distance)";
+    }
     const [x, y, z] = galacticPoint(g.raDeg[k]!, g.decDeg[k]!, d);
-    const vPec = Number.isFinite(g.vPecKmS[k]!) ? g.vPecKmS[k]! : 0;
-    origin = { x, y, z, vr: h0 * d + vPec };
-    label = `group ${g.id[k]} (${g.nMembers[k]} members) at RA ${g.raDeg[k]!.toFixed(3)}, Dec ${g.decDeg[k]!.toFixed(3)}, ${d.toFixed(1)} Mpc`;
+    origin = { x, y, z, vr: h0 * d + (Number.isFinite(vPec) ? vPec : 0) };
+    // The members are part of the origin: they do not enter the fit from there (as 'peculiar recentre').
+    for (let q = g.memberStart[k]!; q < g.memberStart[k + 1]!; q++) use[g.members[q]!] = 0;
+    label = `group ${g.id[k]} (${g.nMembers[k]} members) at RA ${g.raDeg[k]!.toFixed(3)}, Dec ${g.decDeg[k]!.toFixed(3)}, ${d.toFixed(1)} Mpc (${where})`;
   } else if (im) {
     const idCol = t.roles.id;
     if (!idCol) throw new PeculiarError("step", `'${on}': the survey has no id column (name one in inputs.redshifts.columns.id)`);
@@ -76,11 +87,12 @@ export async function recentreStep(ctx: RunContext<PipelineState>): Promise<Step
     label = `point RA ${parts[0]}, Dec ${parts[1]}, ${parts[2]} Mpc (at rest in the Hubble flow)`;
   }
   const sigmaStar = plan.steps.flow.sigmaStarKmS;
-  const r = recentre({ ...fit.points, use: fit.used }, origin, { h0, sigmaStar, fitDipole: true });
+  const opts = { h0, sigmaStar, fitDipole: true };
+  // H0 from here on the same galaxies as from there (the origin's members left out), as 'peculiar recentre'.
+  const here = recentre({ ...fit.points, use }, { x: 0, y: 0, z: 0, vr: 0 }, opts);
+  const r = recentre({ ...fit.points, use }, origin, opts);
   if (!Number.isFinite(r.h0There)) throw new PeculiarError("step", `the Hubble law seen from ${label} could not be fitted (${r.nUsed} galaxies usable)`);
-  const combined = Math.hypot(r.h0ThereErr, fit.h0Err);
-  const nSigma = Math.abs(r.h0There - fit.h0) / combined;
-  const verdict = nSigma <= COPERNICAN_SIGMA ? "consistent" : "inconsistent";
+  const check = copernicanCheck({ h0: here.h0There, err: here.h0ThereErr, rms: here.residualRmsThere }, { h0: r.h0There, err: r.h0ThereErr, rms: r.residualRmsThere });
   const n = t.table.numRows;
   const used = Uint8Array.from(r.used);
   const sNulls = Uint8Array.from(r.s, (x) => (Number.isFinite(x) ? 0 : 1));
@@ -96,19 +108,19 @@ export async function recentreStep(ctx: RunContext<PipelineState>): Promise<Step
   const result = {
     origin: label,
     velocity_model: r.velocityModel,
-    h0_here: { value: fit.h0, error: fit.h0Err },
+    h0_here: { value: here.h0There, error: here.h0ThereErr },
     h0_there: { value: r.h0There, error: r.h0ThereErr },
     dipole_there: { vx: r.dipole[0], vy: r.dipole[1], vz: r.dipole[2], err: r.dipoleErr, frame: "galactic" },
-    residual_rms_here_kms: fit.residualRms,
+    residual_rms_here_kms: here.residualRmsThere,
     residual_rms_there_kms: r.residualRmsThere,
     n_used: r.nUsed,
-    copernican: { verdict, n_sigma: nSigma, within_sigma: COPERNICAN_SIGMA },
+    copernican: { verdict: check.verdict, dH: check.dH, dH_err: check.dHErr, z: check.z, scatter_ratio: check.scatterRatio },
   };
   await writeFileAtomic(join(ctx.outDir, "07-recentre.json"), JSON.stringify(result, null, 2) + "\n");
   outputs.push("07-recentre.json");
   return {
     outputs,
-    numbers: { origin: label, h0Here: fit.h0, h0HereErr: fit.h0Err, h0There: r.h0There, h0ThereErr: r.h0ThereErr, dipoleThere: r.dipole, nUsed: r.nUsed, copernican: `${verdict} (${nSigma.toFixed(2)} sigma)` },
+    numbers: { origin: label, h0Here: here.h0There, h0HereErr: here.h0ThereErr, h0There: r.h0There, h0ThereErr: r.h0ThereErr, dipoleThere: r.dipole, nUsed: r.nUsed, copernican: `${check.verdict} (${Math.abs(check.z).toFixed(2)} sigma)` },
     notes: ["velocities are radial-only: tangential peculiar velocities are unknown and taken as zero"],
   };
 }
