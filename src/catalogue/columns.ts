@@ -130,7 +130,7 @@ function utf8Data(strings: string[], nulls: Uint8Array | undefined, length: numb
   let buf = new Uint8Array(Math.max(64, length * 8));
   let pos = 0;
   for (let i = 0; i < length; i++) {
-    if (!nulls?.[i]) {
+    if (!nulls?.[i] && strings[i]!.length !== 0) {
       const s = strings[i]!;
       if (pos + s.length * 3 > buf.length) {
         const grown = new Uint8Array(Math.max(buf.length * 2, pos + s.length * 3));
