@@ -228,15 +228,48 @@ function tableCell(chunk: Data, k: number): unknown {
   return vec.get(k);
 }
 
-/** A column as strings; nulls become null. */
+/** A column as strings; nulls become null. Utf8 chunks are decoded straight from their offsets. */
 export function stringColumn(table: Table, name: string): (string | null)[] {
   const v = requireColumn(table, name);
   const out: (string | null)[] = new Array(table.numRows);
-  for (let i = 0; i < table.numRows; i++) {
-    const x = v.isValid(i) ? v.get(i) : null;
-    out[i] = x === null || x === undefined ? null : String(x);
+  const decoder = new TextDecoder();
+  let i = 0;
+  for (const chunk of v.data) {
+    const len = chunk.length;
+    if (chunk.type instanceof Utf8 && chunk.valueOffsets && chunk.values) {
+      const offs = chunk.valueOffsets as Int32Array;
+      const bytes = chunk.values as Uint8Array;
+      const hasNulls = chunk.nullCount > 0;
+      for (let k = 0; k < len; k++) {
+        if (hasNulls && !chunk.getValid(k)) {
+          out[i + k] = null;
+          continue;
+        }
+        const a = offs[chunk.offset + k]!;
+        const b = offs[chunk.offset + k + 1]!;
+        out[i + k] = decodeAscii(bytes, a, b) ?? decoder.decode(bytes.subarray(a, b));
+      }
+    } else {
+      for (let k = 0; k < len; k++) {
+        const x = chunk.getValid(k) ? tableCell(chunk, k) : null;
+        out[i + k] = x === null || x === undefined ? null : String(x);
+      }
+    }
+    i += len;
   }
   return out;
+}
+
+/** Short pure-ASCII strings without a TextDecoder call; undefined when a byte is not ASCII. */
+function decodeAscii(bytes: Uint8Array, a: number, b: number): string | undefined {
+  if (b - a > 64) return undefined;
+  let s = "";
+  for (let j = a; j < b; j++) {
+    const c = bytes[j]!;
+    if (c > 127) return undefined;
+    s += String.fromCharCode(c);
+  }
+  return s;
 }
 
 /** 1 where the column is null. */

@@ -33,7 +33,7 @@ export function parseFlags<O extends Options>(argv: string[], options: O, comman
     return parseArgs({ args: argv, options, allowPositionals: true, strict: true });
   } catch (e) {
     const msg = e instanceof Error ? e.message.replace(/\. To specify a positional.*$/s, "") : String(e);
-    throw usageError(`${command}: ${msg}; see 'peculiar ${command} --help'`);
+    throw usageError(`${msg}; see 'peculiar ${command} --help'`);
   }
 }
 
