@@ -290,7 +290,8 @@ interface LogFitResult {
   nUsed: number;
 }
 
-const MAX_ITER = 60;
+const MAX_ITER = 200;
+const FREEZE_AT = 8;
 
 /**
  * The Hubble law seen from origin A with log-normal distance errors, by Gauss-Newton on
@@ -325,10 +326,15 @@ function logDistanceFit(
   const use = new Uint8Array(n);
   const rA2 = o.x * o.x + o.y * o.y + o.z * o.z;
   const T = new Float64Array(8);
+  // After FREEZE_AT steps the set of rows can only shrink (a row whose root comes and goes would
+  // otherwise make a limit cycle); after an overshoot steps are damped (tolerances on the raw step).
+  const member = new Uint8Array(used);
+  let prevDh = 0;
+  let damp = 1;
   for (let it = 0; it < MAX_ITER; it++) {
     for (let i = 0; i < n; i++) {
       use[i] = 0;
-      if (!used[i] || !Number.isFinite(vAB[i]!)) continue;
+      if (!member[i] || !Number.isFinite(vAB[i]!)) continue;
       const dObs = norm3(x[i]!, y[i]!, z[i]!);
       if (!lineTerms(x[i]! / dObs, y[i]! / dObs, z[i]! / dObs, dObs, vr[i]!, o, d, h, rA2, T)) continue;
       const e = vrErr ? vrErr[i]! : 0;
@@ -341,21 +347,30 @@ function logDistanceFit(
       SG[i] = Math.abs(T[5]!) * f;
       use[i] = 1;
     }
+    if (it + 1 >= FREEZE_AT) member.set(use);
     const step = fitHubbleFlow(
       { x: X, y: Y, ex: EX, ey: EY, ez: EZ, sigma: SG, use },
       { sigmaStar: opts.sigmaStar, fitDipole: opts.fitDipole, ...(opts.fitH0 ? {} : { fixedSlope: 0 }) },
     );
     if (!step.ok) return fail;
-    const dh = opts.fitH0 ? step.slope : 0;
+    const raw = opts.fitH0 ? step.slope : 0;
+    // each overshoot (the raw step flips sign) halves the step length from then on
+    if (it > 0 && raw * prevDh < 0) damp = Math.max(damp * 0.5, 1 / 4096);
+    prevDh = raw;
+    const dh = damp * raw;
     h += dh;
     if (opts.fitDipole) {
-      d[0] += step.dipole[0];
-      d[1] += step.dipole[1];
-      d[2] += step.dipole[2];
+      d[0] += damp * step.dipole[0];
+      d[1] += damp * step.dipole[1];
+      d[2] += damp * step.dipole[2];
     }
     if (!(h > 0)) return fail;
-    const small = Math.abs(dh) <= 1e-11 * h && (!opts.fitDipole || Math.hypot(...step.dipole) <= 1e-8);
-    if (small) return { ok: true, h, d, cov: step.cov, chi2: step.chi2, dof: step.dof, nUsed: step.nUsed };
+    // Converged when the raw step is a negligible fraction of the statistical error (or at round-off);
+    // a fit still wobbling after MAX_ITER steps by less than 1% of its error is accepted as it stands.
+    const rawD = Math.hypot(...step.dipole);
+    const errD = Math.max(...step.dipoleErr);
+    const within = (k: number) => Math.abs(raw) <= Math.max(1e-12 * h, k * step.slopeErr) && (!opts.fitDipole || rawD <= Math.max(1e-9, k * errD));
+    if (within(1e-7) || (it === MAX_ITER - 1 && within(0.01))) return { ok: true, h, d, cov: step.cov, chi2: step.chi2, dof: step.dof, nUsed: step.nUsed };
   }
   return fail;
 }

@@ -7,9 +7,9 @@ import { flowRowsOf } from "./mock-rows.js";
 describe("recentre on mocks", () => {
   // 30 mocks of 1500 galaxies (exact cosmology, 18% distance errors as in the measurement,
   // sigma* = 250, bulk flow (100, -300, 200)), three off-centre origins each; the generator's H0 = 70 is the truth.
-  // Measured: H0 + dipole: 57% of pulls within 1 sigma, 83% within 2 sigma, mean pull -0.28, rms pull 1.40
-  // (the reported errors from another galaxy are ~40% too small: radial-only velocities and the origin's
-  // own distance error are not in them). H0 alone: 4% within 1 sigma, 10% within 2 sigma (aliasing).
+  // Measured: H0 + dipole: 60% of pulls within 1 sigma, 88% within 2 sigma, mean pull -0.10, rms pull 1.29
+  // (the same mocks without the bulk flow give rms 0.88: the excess is the tangential part of the bulk flow,
+  // which radial-only velocities cannot carry). H0 alone: 4% within 1 sigma, 9% within 2 sigma (aliasing).
   it("recovers H0 from other galaxies when fitted with a dipole, and not without it", () => {
     const pullsDip: number[] = [];
     const pullsAlone: number[] = [];
@@ -26,9 +26,9 @@ describe("recentre on mocks", () => {
     }
     const within = (p: number[], k: number) => p.filter((x) => Math.abs(x) <= k).length / p.length;
     const mean = pullsDip.reduce((s, x) => s + x, 0) / pullsDip.length;
-    expect(within(pullsDip, 1)).toBeGreaterThan(0.45);
-    expect(within(pullsDip, 2)).toBeGreaterThan(0.75);
-    expect(Math.abs(mean)).toBeLessThan(0.6);
+    expect(within(pullsDip, 1)).toBeGreaterThan(0.5);
+    expect(within(pullsDip, 2)).toBeGreaterThan(0.8);
+    expect(Math.abs(mean)).toBeLessThan(0.4);
     expect(within(pullsAlone, 2)).toBeLessThan(0.3);
   });
 
