@@ -194,22 +194,17 @@ export function selectMatches(c: Candidates, mode: SelectMode, nA: number, nB: n
 
 /** 1 where the chosen candidate is ambiguous (see the module note), for each entry of `chosen`. */
 export function ambiguity(c: Candidates, chosen: Int32Array, nA: number, nB: number, delta = AMBIGUITY_DELTA): Uint8Array {
-  // best and second-best score per A row and per B row, with the index of the best
-  const best1A = new Float64Array(nA).fill(Infinity);
-  const best2A = new Float64Array(nA).fill(Infinity);
-  const argA = new Int32Array(nA).fill(-1);
+  void nA;
+  // A side: candidates are sorted by A row then score, so a row's best is the first of its run and
+  // its second-best the next one. B side: best and second-best score per B row, with the best's index.
+  const runStart = new Int32Array(c.length);
+  for (let k = 0; k < c.length; k++) runStart[k] = k > 0 && c.a[k] === c.a[k - 1] ? runStart[k - 1]! : k;
   const best1B = new Float64Array(nB).fill(Infinity);
   const best2B = new Float64Array(nB).fill(Infinity);
   const argB = new Int32Array(nB).fill(-1);
   for (let k = 0; k < c.length; k++) {
     const s = c.score[k]!;
-    const i = c.a[k]!;
     const j = c.b[k]!;
-    if (s < best1A[i]!) {
-      best2A[i] = best1A[i]!;
-      best1A[i] = s;
-      argA[i] = k;
-    } else if (s < best2A[i]!) best2A[i] = s;
     if (s < best1B[j]!) {
       best2B[j] = best1B[j]!;
       best1B[j] = s;
@@ -220,9 +215,11 @@ export function ambiguity(c: Candidates, chosen: Int32Array, nA: number, nB: num
   for (let t = 0; t < chosen.length; t++) {
     const k = chosen[t]!;
     const s = c.score[k]!;
-    const i = c.a[k]!;
     const j = c.b[k]!;
-    const rivalA = argA[i] === k ? best2A[i]! : best1A[i]!;
+    const lo = runStart[k]!;
+    let rivalA: number;
+    if (k !== lo) rivalA = c.score[lo]!;
+    else rivalA = lo + 1 < c.length && c.a[lo + 1] === c.a[lo] ? c.score[lo + 1]! : Infinity;
     const rivalB = argB[j] === k ? best2B[j]! : best1B[j]!;
     out[t] = rivalA <= s + delta || rivalB <= s + delta ? 1 : 0;
   }
