@@ -13,6 +13,15 @@ export function parseArrowColumns(bytes: Uint8Array, options: { file: string }):
   if (magic(0) && (bytes.length < 12 || !magic(bytes.length - 6))) {
     throw new PeculiarError("format", "truncated: Arrow IPC file does not end with its ARROW1 footer", { file: options.file });
   }
+  // A stream ends with the end-of-stream marker 0xFFFFFFFF 0x00000000 (Arrow columnar format,
+  // IPC streaming format); without it a cut between two batches would read as fewer rows.
+  const isStream = !magic(0) && bytes.length >= 8 && bytes[0] === 0xff && bytes[1] === 0xff && bytes[2] === 0xff && bytes[3] === 0xff;
+  if (isStream) {
+    const end = bytes.subarray(bytes.length - 8);
+    if (!(end[0] === 0xff && end[1] === 0xff && end[2] === 0xff && end[3] === 0xff && end[4] === 0 && end[5] === 0 && end[6] === 0 && end[7] === 0)) {
+      throw new PeculiarError("format", "truncated: Arrow IPC stream does not end with its end-of-stream marker", { file: options.file });
+    }
+  }
   let table: Table;
   try {
     table = tableFromIPC(bytes);
