@@ -77,7 +77,8 @@ export function parseFormatName(name: string): FormatName {
 
 export interface ReadOptions {
   format?: FormatName;
-  /** FITS: the HDU to read, by number (0 = primary) or EXTNAME. Default: the first BINTABLE. */
+  /** FITS: the HDU to read, by number (0 = primary) or EXTNAME (default: the first BINTABLE).
+   *  VOTable: the TABLE, by number (0 = first) or name/ID (default: the first). */
   hdu?: number | string;
   /** CSV/TSV: override the field separator. */
   delimiter?: string;
@@ -146,7 +147,7 @@ export function parseTable(bytes: Uint8Array, format: FormatName, options: { fil
       break;
     }
     case "votable":
-      ({ parsed, info } = parseVOTableColumns(bytes, { file }));
+      ({ parsed, info } = parseVOTableColumns(bytes, options.hdu === undefined ? { file } : { file, table: options.hdu }));
       break;
   }
   return finishTable(parsed, info);

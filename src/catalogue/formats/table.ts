@@ -26,6 +26,9 @@ export interface SourceInfo {
   /** FITS: the HDU the table came from (0 = primary) and its EXTNAME when present. */
   hdu?: number;
   extname?: string;
+  /** VOTable with several TABLEs: the one read (0 = first) and its name. */
+  table?: number;
+  tableName?: string;
   /** Columns the reader could not represent and left out, with why. */
   skipped?: string[];
 }
@@ -116,6 +119,8 @@ export function finishTable(parsed: ParsedColumns, info: SourceInfo): Table {
   const source: SourceMeta = { file: info.file, format: info.format, rows: n, invalid };
   if (info.hdu !== undefined) source.hdu = info.hdu;
   if (info.extname !== undefined) source.extname = info.extname;
+  if (info.table !== undefined) source.table = info.table;
+  if (info.tableName !== undefined) source.tableName = info.tableName;
   if (info.skipped && info.skipped.length > 0) source.skipped = info.skipped;
   const prev = metadata.get(META.source);
   if (prev !== undefined) {

@@ -44,6 +44,10 @@ interface VoState {
   params: Record<string, string>[];
   infos: { name: string; value: string; text?: string; inTable: boolean }[];
   tableCount: number;
+  /** name (or ID) of each TABLE, in document order. */
+  tables: string[];
+  /** index of the TABLE read, -1 when none matched. */
+  chosen: number;
   serialization?: "TABLEDATA" | "BINARY" | "BINARY2" | "FITS";
   rows: (string | null)[][];
   rowLines: number[];
@@ -54,11 +58,11 @@ interface VoState {
 
 const local = (name: string) => name.slice(name.indexOf(":") + 1);
 
-function parseXml(text: string, file: string): VoState {
-  const st: VoState = { fields: [], params: [], infos: [], tableCount: 0, rows: [], rowLines: [], stream: "" };
+function parseXml(text: string, file: string, want: number | string | undefined): VoState {
+  const st: VoState = { fields: [], params: [], infos: [], tableCount: 0, tables: [], chosen: -1, rows: [], rowLines: [], stream: "" };
   const parser = new SaxesParser({ position: true });
   const stack: string[] = [];
-  let inFirstTable = false;
+  let inChosen = false;
   let text_ = "";
   let row: (string | null)[] | null = null;
   let field: FieldDef | null = null;
@@ -78,11 +82,18 @@ function parseXml(text: string, file: string): VoState {
     }
     switch (name) {
       case "TABLE":
-        st.tableCount++;
-        inFirstTable = st.tableCount === 1;
+      {
+        const index = st.tableCount++;
+        const label = a.name ?? a.ID ?? "";
+        st.tables.push(label);
+        const wanted =
+          want === undefined ? true : typeof want === "number" ? index === want : label.toUpperCase() === want.trim().toUpperCase() || (a.ID ?? "").toUpperCase() === want.trim().toUpperCase();
+        inChosen = st.chosen < 0 && wanted;
+        if (inChosen) st.chosen = index;
+      }
         break;
       case "FIELD":
-        if (inFirstTable) {
+        if (inChosen) {
           field = { name: a.name ?? a.ID ?? "", datatype: a.datatype ?? "char" };
           if (a.arraysize !== undefined) field.arraysize = a.arraysize;
           if (a.unit) field.unit = a.unit;
@@ -102,22 +113,22 @@ function parseXml(text: string, file: string): VoState {
         break;
       }
       case "INFO":
-        st.infos.push({ name: a.name ?? "", value: a.value ?? "", inTable: inFirstTable });
+        st.infos.push({ name: a.name ?? "", value: a.value ?? "", inTable: inChosen });
         break;
       case "TABLEDATA":
       case "BINARY":
       case "BINARY2":
       case "FITS":
-        if (inFirstTable) st.serialization = name;
+        if (inChosen) st.serialization = name;
         break;
       case "STREAM":
-        if (inFirstTable) {
+        if (inChosen) {
           if (a.encoding !== undefined) st.streamEncoding = a.encoding;
           if (a.href !== undefined) st.streamHref = a.href;
         }
         break;
       case "TR":
-        if (inFirstTable) {
+        if (inChosen) {
           row = [];
           st.rowLines.push(parser.line);
         }
@@ -142,7 +153,7 @@ function parseXml(text: string, file: string): VoState {
         row = null;
         break;
       case "STREAM":
-        if (inFirstTable) st.stream += text_;
+        if (inChosen) st.stream += text_;
         break;
       case "DESCRIPTION":
         if (descTarget) descTarget.description = text_.replace(/\s+/g, " ").trim();
@@ -160,7 +171,7 @@ function parseXml(text: string, file: string): VoState {
         break;
       }
       case "TABLE":
-        inFirstTable = false;
+        inChosen = false;
         break;
     }
     text_ = "";
@@ -511,13 +522,22 @@ export function settingText(v: unknown): string {
   return typeof v === "string" ? v : JSON.stringify(v);
 }
 
-export function parseVOTableColumns(bytes: Uint8Array, options: { file: string }): { parsed: ParsedColumns; info: SourceInfo } {
+export interface VOTableReadOptions {
+  file: string;
+  /** The TABLE to read, by number (0 = first) or name/ID (case-insensitive). Default: the first. */
+  table?: number | string;
+}
+
+export function parseVOTableColumns(bytes: Uint8Array, options: VOTableReadOptions): { parsed: ParsedColumns; info: SourceInfo } {
   const file = options.file;
   const text = new TextDecoder("utf-8").decode(bytes);
-  const st = parseXml(text, file);
+  const want = typeof options.table === "string" && /^\s*\d+\s*$/.test(options.table) ? Number(options.table) : options.table;
+  const st = parseXml(text, file, want);
   if (st.tableCount === 0) throw new PeculiarError("format", "VOTable has no TABLE", { file });
+  const list = st.tables.map((t, k) => (t ? `${k} '${t}'` : `${k}`)).join(", ");
+  if (st.chosen < 0) throw new PeculiarError("format", `no TABLE ${typeof want === "number" ? want : `named '${want}'`} (TABLEs: ${list})`, { file });
   const skipped: string[] = [];
-  if (st.tableCount > 1) skipped.push(`${st.tableCount - 1} TABLE element(s) after the first are not read`);
+  if (st.tableCount > 1) skipped.push(`${st.tableCount - 1} other TABLE element(s) are not read (TABLEs: ${list})`);
   const lays = layout(st.fields, skipped);
   let sinks: Sink[][];
   let reasons: string[];
@@ -556,11 +576,15 @@ export function parseVOTableColumns(bytes: Uint8Array, options: { file: string }
   const sourceRows = new Int32Array(rows);
   for (let i = 0; i < rows; i++) sourceRows[i] = i + 1;
   const info: SourceInfo = { file, format: "votable" };
+  if (st.tableCount > 1) {
+    info.table = st.chosen;
+    if (st.tables[st.chosen]) info.tableName = st.tables[st.chosen]!;
+  }
   if (skipped.length > 0) info.skipped = skipped;
   return { parsed: { columns, rows, reasons, sourceRows, metadata }, info };
 }
 
-export function parseVOTable(bytes: Uint8Array, options: { file: string }): Table {
+export function parseVOTable(bytes: Uint8Array, options: VOTableReadOptions): Table {
   const { parsed, info } = parseVOTableColumns(bytes, options);
   return finishTable(parsed, info);
 }

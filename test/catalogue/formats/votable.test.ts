@@ -119,6 +119,18 @@ describe("VOTable reader on hand-built files (VOTable 1.4 Recommendation)", () =
     expect(cells(t, "v")).toEqual(["1 2 3"]);
   });
 
+  it("reads the first TABLE by default and another one by number or name, listing them when none matches", () => {
+    const table = (name: string, v: number) => `<TABLE name="${name}"><FIELD name="a" datatype="int"/><DATA><TABLEDATA><TR><TD>${v}</TD></TR></TABLEDATA></DATA></TABLE>`;
+    const xml = enc(`<VOTABLE version="1.4"><RESOURCE>${table("first", 1)}${table("second", 2)}</RESOURCE></VOTABLE>`);
+    const t = parseVOTable(xml, { file: "two.vot" });
+    expect(cells(t, "a")).toEqual([1]);
+    expect(JSON.parse(t.schema.metadata.get(META.source)!)).toMatchObject({ table: 0, tableName: "first", skipped: ["1 other TABLE element(s) are not read (TABLEs: 0 'first', 1 'second')"] });
+    expect(cells(parseVOTable(xml, { file: "two.vot", table: 1 }), "a")).toEqual([2]);
+    expect(cells(parseVOTable(xml, { file: "two.vot", table: "SECOND" }), "a")).toEqual([2]);
+    expect(cells(parseVOTable(xml, { file: "two.vot", table: "1" }), "a")).toEqual([2]);
+    expect(() => parseVOTable(xml, { file: "two.vot", table: "third" })).toThrow("two.vot: no TABLE named 'third' (TABLEs: 0 'first', 1 'second')");
+  });
+
   it("reads an empty TABLEDATA as a table of no rows", () => {
     const t = parseVOTable(enc(wrap('<FIELD name="a" datatype="int"/>', "<TABLEDATA></TABLEDATA>")), { file: "e.vot" });
     expect(t.numRows).toBe(0);
