@@ -1,5 +1,4 @@
 import { describe, expect, it } from "vitest";
-import { randomLcg, randomUniform, randomNormal } from "d3-random";
 import { skyPoints, type PairList } from "../../src/crossmatch/zones.js";
 import { pairsWithin } from "../../src/crossmatch/pairs.js";
 import { brutePairs } from "../../src/crossmatch/brute.js";

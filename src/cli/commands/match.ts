@@ -166,6 +166,7 @@ const command: Command = {
     } catch (e) {
       throw usageError(e instanceof Error ? e.message : String(e));
     }
+    if (radiusArcsec === undefined) io.note(`match: search radius ${result.searchRadiusArcsec.toPrecision(4)} arcsec (--sigma ${sigmaK} times the largest combined error)`);
     const rows = joinRows(result, join);
     const settings = { radiusArcsec: radiusArcsec ?? null, sigma: sigmaK ?? null, maxDvKmS: maxDvKmS ?? null, select, join, ambiguityDelta, inputA: pathA, inputB: pathB };
     const table = matchTable(catA.table, catB.table, result, rows, {
