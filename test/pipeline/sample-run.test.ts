@@ -118,3 +118,25 @@ describe("peculiar run when a later step fails", () => {
     expect(saved.steps.map((x) => x.status)).toEqual(["ok", "ok", "failed", "not run", "not run", "not run", "not run"]);
   });
 });
+
+describe("peculiar run on the Sorrel catalogue alone", () => {
+  it("finds H0 low by the uncorrected zero point: the comparison with the truth can fail", async () => {
+    const plan = JSON.parse(await readFile(samplePlanPath(), "utf8"));
+    const dir = await mkdtemp(join(tmpdir(), "peculiar-sample-one-"));
+    const here = join(samplePlanPath(), "..");
+    plan.inputs.redshifts.file = join(here, plan.inputs.redshifts.file);
+    plan.inputs.distances = [{ ...plan.inputs.distances[1], file: join(here, plan.inputs.distances[1].file) }];
+    plan.truth = join(here, plan.truth);
+    delete plan.steps.combine.reference;
+    plan.steps.groups = false;
+    plan.steps.recentre = false;
+    await writeFile(join(dir, "plan.json"), JSON.stringify(plan));
+    const r = await runPlan(await readPlan(join(dir, "plan.json")), { outDir: join(dir, "out") });
+    const h0 = r.summary.comparisons.find((c) => c.key === "h0")!;
+    // Moduli too large by dmu put every distance 10^(dmu/5) too far, so H0 comes out 10^(-dmu/5)
+    // times the truth (mu = 5 log10(D / Mpc) + 25, Hogg 1999, astro-ph/9905116).
+    const biased = truth.h0 * 10 ** (-truth.zeroPoints[0]!.offsetMag / 5);
+    expect(Math.abs(h0.recovered - biased) / h0.error).toBeLessThan(SIGMA_LIMIT);
+    expect(h0.nSigma).toBeGreaterThan(SIGMA_LIMIT);
+  });
+});
