@@ -45,6 +45,9 @@ describe("peculiar recentre", () => {
     expect(g.origin.kind).toBe("group");
     expect(g.infall).toHaveLength(3);
     expect(g.infall[0]).toHaveProperty("v_mean_kms");
+    const rich = JSON.parse(runCli(["recentre", grouped, "--on", "group:richest", "--json", "-q", "--h0", "70"]).stdout);
+    expect(rich.origin.kind).toBe("group");
+    expect(JSON.parse(runCli(["recentre", input, "--on", "id:G00007", "--json", "-q", "--h0", "70"]).stdout).origin.row).toBe(7);
   });
 
   it("writes the re-centred table and explains a bad origin", () => {

@@ -41,7 +41,7 @@ n_used {here, there}, copernican {verdict, delta_h0, delta_h0_err, z, scatter_ra
 settings, and with --infall the profile.
 
 options:
-  --on WHERE            ID | RA,DEC,DIST | group:ID  (required)
+  --on WHERE            ID (or id:ID) | RA,DEC,DIST | group:ID | group:richest  (required)
   --h0 X                H0 for positions, velocities and the infall profile, km/s/Mpc
                         (default: the value fitted from here)
   --omega-m X           flat LCDM matter density (default ${DEFAULT_COSMOLOGY.omegaM})
@@ -242,11 +242,18 @@ function resolveOrigin(
   if (g) {
     const gname = columnName(names, "group_id");
     if (!hasColumn(cat.table, gname)) throw new PeculiarError("column", `--on ${on}: no column ${gname}; run 'peculiar groups' first`, { file: cat.file, column: gname });
-    const id = Number(g[1]);
-    if (!Number.isInteger(id) || id < 1) throw usageError(`--on ${on}: a group id is a whole number >= 1`);
     const gid = Int32Array.from(float64Column(cat.table, gname), (x) => (Number.isFinite(x) ? x : -1));
     let nG = 0;
     for (let i = 0; i < gid.length; i++) nG = Math.max(nG, gid[i]!);
+    let id = Number(g[1]);
+    if (g[1] === "richest") {
+      const count = new Int32Array(nG + 1);
+      for (let i = 0; i < gid.length; i++) if (gid[i]! > 0) count[gid[i]!] = count[gid[i]!]! + 1;
+      id = 0;
+      for (let k = 1; k <= nG; k++) if (count[k]! > (count[id] ?? 0)) id = k;
+      if (id === 0) throw new PeculiarError("input", `--on ${on}: the catalogue has no groups`, { file: cat.file, column: gname });
+    }
+    if (!Number.isInteger(id) || id < 1) throw usageError(`--on ${on}: a group id is a whole number >= 1 (or richest)`);
     if (id > nG) throw new PeculiarError("input", `--on ${on}: no such group`, { file: cat.file, column: gname, value: id, expected: `1..${nG}` });
     const gt = groupTable({ groupId: gid, nGroups: nG, raDeg: cat.raDeg, decDeg: cat.decDeg, czKmS: t.rows.czCmbKmS, distCMpc: t.rows.distCMpc, distFracErr: t.rows.distFracErr }, cosmo);
     const k = id - 1;
@@ -277,8 +284,9 @@ function resolveOrigin(
   const idCol = cat.roles.id;
   if (!idCol) throw new PeculiarError("column", `--on ${on}: the catalogue has no id column to look the galaxy up in; name it with --col id=NAME or give RA,DEC,DIST`, { file: cat.file });
   const ids = stringColumn(cat.table, idCol);
+  const want = on.replace(/^id:/, "").trim();
   const hits: number[] = [];
-  for (let i = 0; i < ids.length; i++) if ((ids[i] ?? "").trim() === on.trim()) hits.push(i);
+  for (let i = 0; i < ids.length; i++) if ((ids[i] ?? "").trim() === want) hits.push(i);
   if (hits.length === 0) throw new PeculiarError("input", `--on ${on}: no row has this id`, { file: cat.file, column: idCol, value: on });
   if (hits.length > 1) throw new PeculiarError("input", `--on ${on}: ${hits.length} rows have this id (rows ${hits.slice(0, 5).map((h) => h + 1).join(", ")}); dedupe first`, { file: cat.file, column: idCol });
   const i = hits[0]!;
