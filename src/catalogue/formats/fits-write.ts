@@ -90,7 +90,8 @@ function planColumn(col: ColumnData, file: string | undefined): Plan {
     case "utf8": {
       const enc = new TextEncoder();
       const encoded = (col.values as string[]).map((s, i) => (isNull(i) ? new Uint8Array(0) : enc.encode(s)));
-      const width = Math.max(1, ...encoded.map((b) => b.length));
+      let width = 1;
+      for (const b of encoded) if (b.length > width) width = b.length;
       return { col, tform: `${width}A`, width, write: (_v, u8, at, i) => u8.set(encoded[i]!, at) };
     }
     default:

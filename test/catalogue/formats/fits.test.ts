@@ -262,6 +262,14 @@ describe("fitsFromTable", () => {
     }
   });
 
+  it("writes a string column of 300000 rows (no argument-count limit on the width)", () => {
+    const n = 300000;
+    const t = tableFromColumns([{ name: "id", kind: "utf8", values: Array.from({ length: n }, (_, i) => `obj-${i}`) }]);
+    const back = parseFits(fitsFromTable(t), { file: "big.fits" });
+    expect(back.numRows).toBe(n);
+    expect(cells(back, "id")[n - 1]).toBe(`obj-${n - 1}`);
+  });
+
   it("writes every HDU in whole 2880-byte blocks (FITS Standard 4.0, 2880-byte logical records; from memory)", () => {
     expect(fitsFromTable(tableFromColumns(everyType())).length % 2880).toBe(0);
   });
