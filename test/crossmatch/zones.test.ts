@@ -2,7 +2,7 @@ import { describe, expect, it } from "vitest";
 import { skyPoints, type PairList } from "../../src/crossmatch/zones.js";
 import { pairsWithin } from "../../src/crossmatch/pairs.js";
 import { brutePairs } from "../../src/crossmatch/brute.js";
-import { ARCSEC, DEG } from "../../src/sky/angles.js";
+import { ARCSEC } from "../../src/sky/angles.js";
 import { hardSky, withCopies } from "./sky-fixtures.js";
 
 /** 1e-9 arcsec: a hundred times the float64 resolution of a separation between unit vectors. */
