@@ -20,6 +20,10 @@
  * and a fit of H0 alone would alias it into H0 because a survey is lopsided as seen from anywhere but us.
  * Errors: a distance error of B moves s by delta D cos lambda while v_AB stays (to first order), so the
  * per-row error is vrErr |cos lambda| (minor form) or vrErr (major form), plus sigmaStar in quadrature.
+ * vrErr is read as H0 sigma_D (the error of v_pec that comes from the distance).
+ * The fit (minor form, estimator "auto"): in ln D by Gauss-Newton (logDistanceFit) when distance errors
+ * dominate, the linear least squares at the observed positions otherwise; the linear fit always gives the
+ * starting point. `used` marks the rows offered to the fit; nUsed counts those that entered it.
  * Browser-safe.
  */
 import { fitHubbleFlow } from "./hubble.js";
