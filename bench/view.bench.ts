@@ -16,8 +16,8 @@ import { makeViewCatalogue } from "../test/web/catalogue.js";
 import { randomLcg } from "d3-random";
 
 const SIZES = [10_000, 100_000];
-const RUNS = 5;
-const RECENTRES = 9;
+const RUNS = 3;
+const RECENTRES = 5;
 
 function median(a: number[]): number {
   const s = [...a].sort((x, y) => x - y);
@@ -51,8 +51,9 @@ try {
     try {
       for (let run = 0; run <= RUNS; run++) {
         const page = await browser.newPage();
+        page.on("pageerror", (e) => console.error(`page error: ${String(e)}`));
         await page.goto(server.url);
-        await page.waitForSelector("body[data-ready='1']", { timeout: 120_000 });
+        await page.waitForSelector("body[data-ready='1']", { timeout: 600_000 });
         const t = (await page.evaluate(`({ nav: performance.now(), own: window.peculiarView.timing.firstDrawMs })`)) as { nav: number; own: number };
         if (run > 0) {
           // run 0 warms the browser's caches and the JIT

@@ -1,7 +1,8 @@
 /**
  * Export of a panel as SVG and PNG. Canvas panels: the SVG holds the overlay (axes, graticule, legends)
  * as vectors and the points as vector squares when few (<= MAX_VECTOR_POINTS), else as the canvas
- * embedded as an image; the PNG is the canvas with the overlay rasterised on top, at device resolution.
+ * embedded as an image (the panel adds its other canvas marks as vectors too: lines, crosses, rings);
+ * the PNG is the canvas with the overlay rasterised on top, at device resolution.
  */
 import { BACKGROUND, N_BINS } from "./colour.js";
 import type { CanvasPanel } from "./panel.js";
@@ -40,6 +41,7 @@ export function canvasPanelSvg(p: CanvasPanel, title: string): string {
       }
       s += "</g>";
     }
+    s += p.vectorExtras();
   } else {
     s += `<image width="${w}" height="${h}" href="${p.canvas.toDataURL("image/png")}"/>`;
   }

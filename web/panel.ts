@@ -9,7 +9,7 @@ import * as d3 from "d3";
 import { PlaneIndex } from "../src/crossmatch/plane-index.js";
 import type { ViewState } from "./state.js";
 import type { BinnedColours } from "./colour.js";
-import { BACKGROUND } from "./colour.js";
+import { BACKGROUND, GROUP_RING, OUTLIER_MARK, SELECTED_RING } from "./colour.js";
 
 /** How far (CSS px) from a point a click or hover still picks it. */
 export const PICK_RADIUS_PX = 7;
@@ -112,6 +112,11 @@ export abstract class CanvasPanel {
     this.drawn = this.draw(ctx);
     this.index = null;
     this.root.dataset.drawn = String(this.drawn);
+  }
+
+  /** SVG for what the canvas draws besides the points (for the vector export): marks by default. */
+  vectorExtras(): string {
+    return marksSvg(this.state, this.px, this.py, this.pointRadius);
   }
 
   /** Zoom by `factor` about (x, y); false when the panel does not zoom. */
@@ -225,6 +230,31 @@ export abstract class CanvasPanel {
       if (!start) this.actions.hover(-1, 0, 0);
     });
   }
+}
+
+/** Outlier crosses, group rings and selection rings as SVG, as drawMarks draws them on the canvas. */
+export function marksSvg(state: ViewState, px: Float64Array, py: Float64Array, r: number): string {
+  const d = state.data;
+  const f = (x: number) => x.toFixed(1);
+  let rings = "";
+  let crosses = "";
+  let sel = "";
+  for (let i = 0; i < d.n; i++) {
+    const x = px[i]!;
+    const y = py[i]!;
+    if (x !== x || y !== y) continue;
+    if (d.has.group_id && d.groupId[i]! >= 0 && d.groupSize[i]! >= 2) rings += `<circle cx="${f(x)}" cy="${f(y)}" r="${r + 1.5}"/>`;
+    if (d.has.outlier && d.outlier[i]) {
+      const k = r + 2.5;
+      crosses += `M${f(x - k)},${f(y - k)}L${f(x + k)},${f(y + k)}M${f(x - k)},${f(y + k)}L${f(x + k)},${f(y - k)}`;
+    }
+    if (state.selected[i]) sel += `<circle cx="${f(x)}" cy="${f(y)}" r="${r + 1}"/>`;
+  }
+  let s = "";
+  if (rings) s += `<g fill="none" stroke="${GROUP_RING}" stroke-width="0.8" stroke-opacity="0.7">${rings}</g>`;
+  if (crosses) s += `<path fill="none" stroke="${OUTLIER_MARK}" stroke-width="1.2" d="${crosses}"/>`;
+  if (sel) s += `<g fill="none" stroke="${SELECTED_RING}" stroke-width="1">${sel}</g>`;
+  return s;
 }
 
 /** A small button for a panel's tool bar. */

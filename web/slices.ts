@@ -25,6 +25,13 @@ export class SlicePanel extends CanvasPanel {
   private centre: [number, number] = [0, 0];
   private pxPerMpc = 1;
 
+  /** Velocity lines of the last draw, one SVG path per colour bin (vector export). */
+  private lineSvg = "";
+
+  override vectorExtras(): string {
+    return this.lineSvg + super.vectorExtras();
+  }
+
   protected override zoomAt(x: number, y: number, factor: number): boolean {
     const k = Math.min(50, Math.max(1, this.zoom * factor));
     if (k === this.zoom) return false;
@@ -107,12 +114,15 @@ export class SlicePanel extends CanvasPanel {
     const k = side / (2 * R) / H; // px per km/s: u / H Mpc times px per Mpc
     ctx.lineWidth = 1;
     ctx.globalAlpha = st.nSelected > 0 ? 0.35 : 0.9;
+    const vector = bins.order.length <= 20_000;
+    let lineSvg = "";
     for (let bn = 0; bn < N_BINS; bn++) {
       const s0 = bins.start[bn]!;
       const s1 = bins.start[bn + 1]!;
       if (s0 === s1) continue;
       ctx.strokeStyle = bins.colours[bn]!;
       ctx.beginPath();
+      let dPath = "";
       for (let q = s0; q < s1; q++) {
         const i = bins.order[q]!;
         if (px[i] !== px[i]) continue; // not in the slab
@@ -122,10 +132,13 @@ export class SlicePanel extends CanvasPanel {
         const L = (u * k) / s;
         ctx.moveTo(px[i]!, py[i]!);
         ctx.lineTo(px[i]! + A[i]! * L, py[i]! - B[i]! * L);
+        if (vector) dPath += `M${px[i]!.toFixed(1)},${py[i]!.toFixed(1)}l${(A[i]! * L).toFixed(1)},${(-B[i]! * L).toFixed(1)}`;
       }
       ctx.stroke();
+      if (dPath) lineSvg += `<path fill="none" stroke="${bins.colours[bn]}" stroke-opacity="0.9" d="${dPath}"/>`;
     }
     ctx.globalAlpha = 1;
+    this.lineSvg = lineSvg;
     const { drawn } = drawPointsWithSelection(ctx, st, px, py, o.u, this.scale, this.pointRadius);
     this.bins = bins;
     drawMarks(ctx, st, px, py, this.pointRadius);
