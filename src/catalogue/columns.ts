@@ -137,7 +137,15 @@ function utf8Data(strings: string[], nulls: Uint8Array | undefined, length: numb
         grown.set(buf.subarray(0, pos));
         buf = grown;
       }
-      pos += enc.encodeInto(s, buf.subarray(pos)).written;
+      // ASCII goes byte by byte (no view per string); anything else through the encoder.
+      let k = 0;
+      const start = pos;
+      for (; k < s.length; k++) {
+        const c = s.charCodeAt(k);
+        if (c >= 0x80) break;
+        buf[pos++] = c;
+      }
+      if (k < s.length) pos = start + enc.encodeInto(s, buf.subarray(start)).written;
     }
     offsets[i + 1] = pos;
   }

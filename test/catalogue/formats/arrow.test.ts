@@ -13,7 +13,7 @@ const table = () =>
       { name: "i64", kind: "int64", values: new BigInt64Array([1n, 2n ** 62n, 0n]), nulls: new Uint8Array([0, 0, 1]) },
       { name: "u16", kind: "uint16", values: new Uint16Array([1, 65535, 0]) },
       { name: "b", kind: "bool", values: new Uint8Array([1, 0, 1]), nulls: new Uint8Array([0, 1, 0]) },
-      { name: "s", kind: "utf8", values: ["a", "", "c"], nulls: new Uint8Array([0, 0, 1]) },
+      { name: "s", kind: "utf8", values: ["obj-é ω", "", "c"], nulls: new Uint8Array([0, 0, 1]) },
     ],
     new Map([[META.roles, JSON.stringify({ ra: "f64" })]]),
   );
