@@ -65,7 +65,7 @@ export interface FofResult {
   /** Size of each row's component (1 for isolated galaxies, 0 for unusable rows). */
   groupSize: Int32Array;
   nGroups: number;
-  /** Number of friend pairs tested exactly (a measure of the index's work). */
+  /** Number of candidate pairs given the exact friend test (a measure of the index's work). */
   pairsTested: number;
   settings: FofSettings;
 }
@@ -309,6 +309,7 @@ export function friendsOfFriends(raDeg: Float64Array, decDeg: Float64Array, vKmS
     const vi = p.v[i]!;
     const vHi = vi + vlMax;
     const reach = Math.ceil(chordMax[i]! / cell);
+    const c2 = chordMax[i]! * chordMax[i]! * (1 + 1e-12);
     if (reach > MAX_REACH || !Number.isFinite(reach)) {
       // Nearby galaxies with huge angular links: walk the velocity window of the global order.
       for (let k = rank[i]! + 1; k < byV.length; k++) {
@@ -337,6 +338,11 @@ export function friendsOfFriends(raDeg: Float64Array, decDeg: Float64Array, vKmS
           for (let k = lo; k < en; k++) {
             const j = order[k]!;
             if (p.v[j]! > vHi) break;
+            // necessary condition first (cheap): the chord bound of row i
+            const dx = p.ux[i]! - p.ux[j]!;
+            const dy = p.uy[i]! - p.uy[j]!;
+            const dz = p.uz[i]! - p.uz[j]!;
+            if (dx * dx + dy * dy + dz * dz > c2) continue;
             pairsTested++;
             if (friends(p, i, j)) uf.union(i, j);
           }
