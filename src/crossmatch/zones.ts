@@ -145,7 +145,7 @@ export function skyPoints(raDeg: ArrayLike<number>, decDeg: ArrayLike<number>): 
       p.fill(NaN, 5 * i, 5 * i + 5);
       continue;
     }
-    let r = (rd % 360) * DEG;
+    let r = (rd >= 0 && rd < 360 ? rd : rd % 360) * DEG; // fmod only for RA outside [0, 360)
     if (r < 0) r += TWO_PI;
     if (r >= TWO_PI) r -= TWO_PI;
     const d = dd * DEG;
