@@ -48,6 +48,12 @@ describe("pairsWithin (zone engine)", () => {
     expect(Math.abs(got.sepRad[1]! / ARCSEC - 0.072)).toBeLessThan(1e-9);
   });
 
+  it("reads RA outside [0, 360) modulo 360", () => {
+    const a = skyPoints([-0.0001, 360.0001, 725], [0, 0, 0]);
+    const b = skyPoints([359.9999, 0.0001, 5], [0, 0, 0]);
+    expect(asTriples(pairsWithin(a, b, 0.01 * ARCSEC))).toEqual(["0-0", "1-1", "2-2"]);
+  });
+
   it("returns no pairs for empty catalogues and a zero radius keeps exact duplicates only", () => {
     const e = skyPoints([], []);
     const one = skyPoints([10], [20]);
