@@ -4,7 +4,7 @@
  * A flagged row gets valid = false and "; reason" appended to its reason (the first reason
  * stands alone). Tables without the two columns get them, all valid, on the first flag.
  */
-import type { Table } from "apache-arrow";
+import { Bool, type Table } from "apache-arrow";
 import { hasColumn, nullMask, stringColumn, withColumns, type ColumnData } from "./columns.js";
 import { INVALID_REASON, VALID } from "./meta.js";
 
@@ -14,6 +14,22 @@ export function validMask(table: Table): Uint8Array {
   const out = new Uint8Array(n).fill(1);
   const v = table.getChild(VALID);
   if (!v) return out;
+  if (v.type instanceof Bool) {
+    // read the packed bits directly (Arrow: bit (offset + k) of `values`); nulls are invalid
+    let i = 0;
+    for (const chunk of v.data) {
+      const bits = chunk.values as Uint8Array;
+      const off = chunk.offset;
+      const len = chunk.length;
+      for (let k = 0; k < len; k++) {
+        const b = off + k;
+        out[i + k] = (bits[b >> 3]! >> (b & 7)) & 1;
+      }
+      if (chunk.nullCount > 0) for (let k = 0; k < len; k++) if (!chunk.getValid(k)) out[i + k] = 0;
+      i += len;
+    }
+    return out;
+  }
   const nulls = nullMask(table, VALID);
   for (let i = 0; i < n; i++) out[i] = !nulls[i] && v.get(i) ? 1 : 0;
   return out;
