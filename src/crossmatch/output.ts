@@ -147,10 +147,12 @@ export function matchTable(a: Table, b: Table, r: MatchResult, j: JoinedRows, o:
     const okA = i < 0 || validA[i] === 1;
     const okB = k < 0 || validB[k] === 1;
     valid[t] = okA && okB ? 1 : 0;
-    const parts: string[] = [];
-    if (!okA) parts.push(`${o.aliasA}: ${reasonA[i] || "invalid"}`);
-    if (!okB) parts.push(`${o.aliasB}: ${reasonB[k] || "invalid"}`);
-    reason[t] = parts.join("; ");
+    if (okA && okB) reason[t] = "";
+    else {
+      const ra = okA ? "" : `${o.aliasA}: ${reasonA[i] || "invalid"}`;
+      const rb = okB ? "" : `${o.aliasB}: ${reasonB[k] || "invalid"}`;
+      reason[t] = ra && rb ? `${ra}; ${rb}` : ra || rb;
+    }
   }
   cols.push({ name: "sep_arcsec", kind: "float64", values: sep, nulls: nullSep, meta: { unit: "arcsec", ucd: "pos.angDistance", description: "separation of the matched pair (Vincenty/atan2 form)" } });
   if (o.withDv) cols.push({ name: "dv", kind: "float64", values: dv, nulls: nullDv, meta: { unit: "km/s", ucd: "spect.dopplerVeloc", description: `velocity of ${o.aliasB} minus velocity of ${o.aliasA}` } });
