@@ -124,6 +124,16 @@ function gunzip(raw: Uint8Array, path: string): Uint8Array {
   return out;
 }
 
+/** Text of a CSV/TSV file: UTF-8, or UTF-16 with its byte-order mark; NUL bytes mean binary data. */
+function decodeText(bytes: Uint8Array, file: string): string {
+  if (bytes[0] === 0xff && bytes[1] === 0xfe) return new TextDecoder("utf-16le").decode(bytes.subarray(2));
+  if (bytes[0] === 0xfe && bytes[1] === 0xff) return new TextDecoder("utf-16be").decode(bytes.subarray(2));
+  if (bytes.subarray(0, 65536).includes(0)) {
+    throw new PeculiarError("format", "binary data, not a text table (a FITS or Arrow file? give its extension or --format)", { file });
+  }
+  return new TextDecoder("utf-8").decode(bytes);
+}
+
 /** Parses bytes already in memory as `format`; `file` names the source in messages and metadata. */
 export function parseTable(bytes: Uint8Array, format: FormatName, options: { file: string; hdu?: number | string; delimiter?: string }): Table {
   const file = options.file;
@@ -132,7 +142,7 @@ export function parseTable(bytes: Uint8Array, format: FormatName, options: { fil
   switch (format) {
     case "csv":
     case "tsv": {
-      const text = new TextDecoder("utf-8").decode(bytes);
+      const text = decodeText(bytes, file);
       if (text.trim() === "") throw new PeculiarError("format", "empty file (only blank space)", { file });
       parsed = parseCsvColumns(text, { file, delimiter: options.delimiter ?? (format === "tsv" ? "\t" : ",") });
       break;

@@ -172,6 +172,26 @@ describe("bad files", () => {
     await expect(readTable(path)).rejects.toThrow("unknown file format");
   });
 
+  it("fails on binary data read as CSV, naming the file", async () => {
+    const path = join(dir, "binary.csv");
+    await writeTable(sample(), join(dir, "bin.fits"));
+    writeFileSync(path, readFileSync(join(dir, "bin.fits")));
+    await expect(readTable(path)).rejects.toThrow(`${path}: binary data, not a text table`);
+  });
+
+  it("reads a UTF-16 text table with its byte-order mark", async () => {
+    const path = join(dir, "utf16.csv");
+    const text = "id,cz\nobj-é,10\n";
+    const le = new Uint8Array(2 + text.length * 2);
+    le[0] = 0xff;
+    le[1] = 0xfe;
+    for (let i = 0; i < text.length; i++) new DataView(le.buffer).setUint16(2 + 2 * i, text.charCodeAt(i), true);
+    writeFileSync(path, le);
+    const t = await readTable(path);
+    expect(cells(t, "id")).toEqual(["obj-é"]);
+    expect(cells(t, "cz")).toEqual([10]);
+  });
+
   it("fails on bytes that are not Arrow", async () => {
     const path = join(dir, "bad.arrow");
     writeFileSync(path, "id,cz\n1,2\n");
