@@ -8,3 +8,4 @@ export * from "./groups.js";
 export * from "./infall.js";
 export * from "./table.js";
 export * from "./copernican.js";
+export * from "./origins.js";

@@ -9,14 +9,13 @@ import { PeculiarError, usageError } from "../../errors.js";
 import { assertNotSameFile, writeTable } from "../../catalogue/io.js";
 import { float64Column, hasColumn, stringColumn, withColumns } from "../../catalogue/columns.js";
 import { recordStep } from "../../catalogue/meta.js";
-import { C_KMS } from "../../cosmology/constants.js";
-import { comovingDistanceMpc, DEFAULT_COSMOLOGY, type Cosmology } from "../../cosmology/distances.js";
-import { convertPosition } from "../../sky/frames.js";
-import { unitVector, lonLatOf } from "../../sky/vectors.js";
+import { DEFAULT_COSMOLOGY, type Cosmology } from "../../cosmology/distances.js";
+import { lonLatOf } from "../../sky/vectors.js";
 import { fitFlow, flowPoints } from "../../flow/bulkflow.js";
 import { recentre, type RecentreOrigin, type Recentred } from "../../flow/recentre.js";
 import { copernicanCheck } from "../../flow/copernican.js";
 import { groupTable } from "../../flow/groups.js";
+import { excludeMembers, groupOrigin, pointOrigin, richestGroup } from "../../flow/origins.js";
 import { infallProfile } from "../../flow/infall.js";
 import { columnName, flowRowsOfTable, splitFlowColumns } from "../../flow/table.js";
 import { CATALOGUE_FLAGS, CATALOGUE_FLAGS_HELP, loadForCommand, parseCatalogueFlags } from "../catalogue-flags.js";
@@ -233,11 +232,6 @@ function resolveOrigin(
   use: Uint8Array,
   originVpec: string | undefined,
 ): OriginInfo {
-  const toGal = (ra: number, dec: number, d: number): [number, number, number] => {
-    const [l, b] = convertPosition(ra, dec, "icrs", "galactic");
-    const u = unitVector(l, b);
-    return [d * u[0], d * u[1], d * u[2]];
-  };
   const g = /^group:(.+)$/.exec(on);
   if (g) {
     const gname = columnName(names, "group_id");
@@ -245,30 +239,22 @@ function resolveOrigin(
     const gid = Int32Array.from(float64Column(cat.table, gname), (x) => (Number.isFinite(x) ? x : -1));
     let nG = 0;
     for (let i = 0; i < gid.length; i++) nG = Math.max(nG, gid[i]!);
-    let id = Number(g[1]);
-    if (g[1] === "richest") {
-      const count = new Int32Array(nG + 1);
-      for (let i = 0; i < gid.length; i++) if (gid[i]! > 0) count[gid[i]!] = count[gid[i]!]! + 1;
-      id = 0;
-      for (let k = 1; k <= nG; k++) if (count[k]! > (count[id] ?? 0)) id = k;
-      if (id === 0) throw new PeculiarError("input", `--on ${on}: the catalogue has no groups`, { file: cat.file, column: gname });
-    }
-    if (!Number.isInteger(id) || id < 1) throw usageError(`--on ${on}: a group id is a whole number >= 1 (or richest)`);
-    if (id > nG) throw new PeculiarError("input", `--on ${on}: no such group`, { file: cat.file, column: gname, value: id, expected: `1..${nG}` });
     const gt = groupTable({ groupId: gid, nGroups: nG, raDeg: cat.raDeg, decDeg: cat.decDeg, czKmS: t.rows.czCmbKmS, distCMpc: t.rows.distCMpc, distFracErr: t.rows.distFracErr }, cosmo);
-    const k = id - 1;
-    if (gt.nMembers[k] === 0) throw new PeculiarError("input", `--on ${on}: the group has no members`, { file: cat.file, column: gname });
-    let d = gt.distCMpc[k]!;
-    let vp = gt.vPecKmS[k]!;
-    if (!Number.isFinite(d)) {
-      d = comovingDistanceMpc(gt.czMeanKmS[k]! / C_KMS, cosmo);
-      vp = 0;
+    let k: number;
+    if (g[1] === "richest") {
+      k = richestGroup(gt);
+      if (k < 0) throw new PeculiarError("input", `--on ${on}: the catalogue has no groups`, { file: cat.file, column: gname });
+    } else {
+      const id = Number(g[1]);
+      if (!Number.isInteger(id) || id < 1) throw usageError(`--on ${on}: a group id is a whole number >= 1 (or richest)`);
+      if (id > nG) throw new PeculiarError("input", `--on ${on}: no such group`, { file: cat.file, column: gname, value: id, expected: `1..${nG}` });
+      k = id - 1;
+      if (gt.nMembers[k] === 0) throw new PeculiarError("input", `--on ${on}: the group has no members`, { file: cat.file, column: gname });
     }
-    const [x, y, z] = toGal(gt.raDeg[k]!, gt.decDeg[k]!, d);
-    const vr = cosmo.h0 * d + vp;
+    const o = groupOrigin(gt, k, cosmo);
     // the members are part of the origin: they do not enter the fit from there
-    for (let i = 0; i < gid.length; i++) if (gid[i] === id) use[i] = 0;
-    return { kind: "group", label: on, origin: { x, y, z, vr }, raDeg: gt.raDeg[k]!, decDeg: gt.decDeg[k]!, distMpc: d, vrKmS: vr, index: -1 };
+    excludeMembers(gt, k, use);
+    return { kind: "group", label: on, origin: { x: o.x, y: o.y, z: o.z, vr: o.vr }, raDeg: gt.raDeg[k]!, decDeg: gt.decDeg[k]!, distMpc: o.distMpc, vrKmS: o.vr, index: -1 };
   }
   const p = on.split(",");
   if (p.length === 3) {
@@ -277,9 +263,8 @@ function resolveOrigin(
       throw usageError(`--on ${on}: expected RA,DEC,DIST with RA, Dec in degrees and a distance > 0 Mpc`);
     }
     const vpec = numberFlag(originVpec, "origin-vpec", 0);
-    const [x, y, z] = toGal(ra, dec, d);
-    const vr = cosmo.h0 * d + vpec;
-    return { kind: "point", label: on, origin: { x, y, z, vr }, raDeg: ra, decDeg: dec, distMpc: d, vrKmS: vr, index: -1 };
+    const o = pointOrigin(ra, dec, d, cosmo.h0, vpec);
+    return { kind: "point", label: on, origin: { x: o.x, y: o.y, z: o.z, vr: o.vr }, raDeg: ra, decDeg: dec, distMpc: d, vrKmS: o.vr, index: -1 };
   }
   const idCol = cat.roles.id;
   if (!idCol) throw new PeculiarError("column", `--on ${on}: the catalogue has no id column to look the galaxy up in; name it with --col id=NAME or give RA,DEC,DIST`, { file: cat.file });

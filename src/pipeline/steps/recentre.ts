@@ -16,19 +16,10 @@ import { writeFileAtomic } from "../../catalogue/atomic.js";
 import { stringColumn, tableFromColumns, type ColumnData } from "../../catalogue/columns.js";
 import { recentre, type RecentreOrigin } from "../../flow/recentre.js";
 import { copernicanCheck } from "../../flow/copernican.js";
-import { comovingDistanceMpc } from "../../cosmology/distances.js";
-import { C_KMS } from "../../cosmology/constants.js";
+import { excludeMembers, groupOrigin, pointOrigin, richestGroup } from "../../flow/origins.js";
 import { PeculiarError } from "../../errors.js";
-import { convertPosition } from "../../sky/frames.js";
-import { unitVector } from "../../sky/vectors.js";
 import type { RunContext, StepOutcome } from "../runner.js";
 import { saveTable, type PipelineState } from "../state.js";
-
-function galacticPoint(raDeg: number, decDeg: number, distMpc: number): [number, number, number] {
-  const [l, b] = convertPosition(raDeg, decDeg, "icrs", "galactic");
-  const [x, y, z] = unitVector(l, b);
-  return [x * distMpc, y * distMpc, z * distMpc];
-}
 
 export async function recentreStep(ctx: RunContext<PipelineState>): Promise<StepOutcome> {
   const { state: s, plan } = ctx;
@@ -46,27 +37,19 @@ export async function recentreStep(ctx: RunContext<PipelineState>): Promise<Step
     const g = s.groups;
     if (!g || g.nGroups === 0) throw new PeculiarError("step", `'${on}': there are no groups (did step 'groups' run?)`);
     let k = -1;
-    if (gm[1] === "richest") {
-      k = 0;
-      for (let q = 1; q < g.nGroups; q++) if (g.nMembers[q]! > g.nMembers[k]!) k = q;
-    } else {
+    if (gm[1] === "richest") k = richestGroup(g);
+    else {
       const id = Number(gm[1]);
       k = g.id.findIndex((x) => x === id);
       if (k < 0) throw new PeculiarError("step", `no group with id ${gm[1]}`, { expected: `1..${g.nGroups} or 'richest'` });
     }
-    let d = g.distCMpc[k]!;
-    let vPec = g.vPecKmS[k]!;
-    let where = "its error-weighted distance";
-    if (!(d > 0)) {
-      // No member with a trusted distance: the redshift distance of the mean velocity, at rest in the flow.
-      d = comovingDistanceMpc(g.czMeanKmS[k]! / C_KMS, { h0, omegaM: plan.steps.velocities.omegaM });
-      vPec = 0;
-      where = "the redshift distance of its mean velocity (no member has a trusted distance)";
-    }
-    const [x, y, z] = galacticPoint(g.raDeg[k]!, g.decDeg[k]!, d);
-    origin = { x, y, z, vr: h0 * d + (Number.isFinite(vPec) ? vPec : 0) };
+    if (k < 0) throw new PeculiarError("step", `'${on}': every group is empty`);
+    const placed = groupOrigin(g, k, { h0, omegaM: plan.steps.velocities.omegaM });
+    const d = placed.distMpc;
+    const where = placed.atRedshiftDistance ? "the redshift distance of its mean velocity (no member has a trusted distance)" : "its error-weighted distance";
+    origin = { x: placed.x, y: placed.y, z: placed.z, vr: placed.vr };
     // The members are part of the origin: they do not enter the fit from there (as 'peculiar recentre').
-    for (let q = g.memberStart[k]!; q < g.memberStart[k + 1]!; q++) use[g.members[q]!] = 0;
+    excludeMembers(g, k, use);
     label = `group ${g.id[k]} (${g.nMembers[k]} members) at RA ${g.raDeg[k]!.toFixed(3)}, Dec ${g.decDeg[k]!.toFixed(3)}, ${d.toFixed(1)} Mpc (${where})`;
   } else if (im) {
     const idCol = t.roles.id;
@@ -82,8 +65,8 @@ export async function recentreStep(ctx: RunContext<PipelineState>): Promise<Step
     if (parts.length !== 3 || parts.some((p) => !Number.isFinite(p)) || !(parts[2]! > 0)) {
       throw new PeculiarError("input", "steps.recentre.on: not an origin", { value: on, expected: "group:richest, group:ID, id:NAME or RA,DEC,DIST (deg, deg, Mpc)" });
     }
-    const [x, y, z] = galacticPoint(parts[0]!, parts[1]!, parts[2]!);
-    origin = { x, y, z, vr: h0 * parts[2]! };
+    const p = pointOrigin(parts[0]!, parts[1]!, parts[2]!, h0);
+    origin = { x: p.x, y: p.y, z: p.z, vr: p.vr };
     label = `point RA ${parts[0]}, Dec ${parts[1]}, ${parts[2]} Mpc (at rest in the Hubble flow)`;
   }
   const sigmaStar = plan.steps.flow.sigmaStarKmS;
