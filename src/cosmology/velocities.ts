@@ -240,6 +240,7 @@ export function computeVelocities(cat: PositionedTable, o: VelocityOptions): { t
     if (noPos) flag(i, "no usable position");
     if (!Number.isFinite(zIn[i]!)) flag(i, `no usable redshift (${redshiftColumn})`);
     if (!Number.isFinite(dist.distMpc[i]!)) flag(i, `no usable distance (${distanceColumn})`);
+    if (err !== undefined && err[i]! < 0) flag(i, `negative distance error (${roles[errRole]})`);
     else if (!Number.isFinite(pv.zCos[i]!)) flag(i, "distance beyond the range of the redshift solve (z_cos > 20)");
     if (Number.isFinite(pv.vPecKmS[i]!)) {
       withVelocity++;

@@ -126,6 +126,20 @@ describe("the velocities step", () => {
     expect(report.valid).toBe(1);
   });
 
+  it("flags a negative distance error and keeps the row with its velocity", () => {
+    // A 1-sigma error is a non-negative number by definition (common practice).
+    const cat = catalogue([
+      { ra: 10, dec: 10, cz: 5000, mu: 34.5, muErr: 0.3 },
+      { ra: 20, dec: 10, cz: 5000, mu: 34.5, muErr: -0.3 },
+    ]);
+    const { table, report } = computeVelocities(cat, { frame: "cmb", cosmology: LCDM, estimator: "exact" });
+    expect(table.numRows).toBe(2);
+    expect(Array.from(validMask(table))).toEqual([1, 0]);
+    expect(stringColumn(table, "invalid_reason")[1]).toBe("negative distance error (mu_err)");
+    expect(report.flagged["negative distance error (mu_err)"]).toBe(1);
+    expect(Number.isFinite(float64Column(table, "v_pec")[1]!)).toBe(true);
+  });
+
   it("records the settings in the schema metadata", () => {
     const cat = catalogue([{ ra: 10, dec: 10, cz: 5000, mu: 34.5, muErr: 0.3 }]);
     const { table } = computeVelocities(cat, { frame: "cmb", cosmology: { h0: 73, omegaM: 0.25 }, estimator: "log" });
