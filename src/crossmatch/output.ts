@@ -11,7 +11,7 @@
  * row of this table (1-based). Each side's own source_row is what row_a/row_b carry.
  */
 import type { Table } from "apache-arrow";
-import { columnDataOf, float64Column, tableFromColumns, takeColumn, type ColumnData } from "../catalogue/columns.js";
+import { columnDataOf, columnMeta, float64Column, kindOf, tableFromColumns, takeColumn, type ColumnData } from "../catalogue/columns.js";
 import { getRoles, INVALID_REASON, META, recordStep, setJsonMeta, SOURCE_ROW, VALID, type RoleMap } from "../catalogue/meta.js";
 import { validMask } from "../catalogue/validity.js";
 import { PeculiarError } from "../errors.js";
@@ -71,6 +71,35 @@ export function outputNames(a: Table, b: Table, aliasA: string, aliasB: string):
   return { a: ma, b: mb };
 }
 
+const GATHER_KINDS = new Set(["float64", "float32", "int8", "int16", "int32", "uint8", "uint16", "uint32"]);
+
+/**
+ * Rows `rows` (-1 = null) of a numeric single-chunk column without nulls, gathered straight from the
+ * Arrow buffer (takeColumn(columnDataOf(...)) copies the whole column first). undefined for any other
+ * column, which then goes the general way.
+ */
+function gatherColumn(table: Table, name: string, rows: Int32Array): ColumnData | undefined {
+  const v = table.getChild(name);
+  const field = table.schema.fields.find((f) => f.name === name);
+  if (!v || !field || v.data.length !== 1 || v.nullCount !== 0) return undefined;
+  const kind = kindOf(field.type);
+  if (kind === undefined || !GATHER_KINDS.has(kind)) return undefined;
+  const chunk = v.data[0]!;
+  const src = chunk.values as Float64Array;
+  const off = chunk.offset;
+  const n = rows.length;
+  const dst = new (src.constructor as Float64ArrayConstructor)(n);
+  let nulls: Uint8Array | undefined;
+  for (let t = 0; t < n; t++) {
+    const r = rows[t]!;
+    if (r < 0) (nulls ??= new Uint8Array(n))[t] = 1;
+    else dst[t] = src[off + r]!;
+  }
+  const out: ColumnData = { name, kind, values: dst, meta: columnMeta(table, name) };
+  if (nulls) out.nulls = nulls;
+  return out;
+}
+
 export interface MatchTableOptions {
   aliasA: string;
   aliasB: string;
@@ -93,7 +122,7 @@ export function matchTable(a: Table, b: Table, r: MatchResult, j: JoinedRows, o:
   ] as const) {
     for (const f of table.schema.fields) {
       if (BOOKKEEPING.has(f.name)) continue;
-      const t = takeColumn(columnDataOf(table, f.name), rows);
+      const t = gatherColumn(table, f.name, rows) ?? takeColumn(columnDataOf(table, f.name), rows);
       t.name = map.get(f.name)!;
       cols.push(t);
     }

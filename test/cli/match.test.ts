@@ -41,6 +41,10 @@ describe("peculiar match", () => {
     expect(dids[at("s3")]).toBe("d2");
     expect(dids[at("s5")]).toBe("d4");
     expect(dids[at("s2")]).toBeNull();
+    const distDec = float64Column(t, "dist_dec"); // numeric columns are gathered straight from Arrow
+    expect(distDec[at("s1")]).toBe(20.0001);
+    expect(Number.isNaN(distDec[at("s2")]!)).toBe(true);
+    expect(float64Column(t, "mu")[at("s3")]).toBe(34.0);
     expect(Number.isNaN(sep[at("s2")]!)).toBe(true);
     // d3 and d5 are used by no match: they come last with no survey row
     const rowA = float64Column(t, "row_a");
