@@ -53,6 +53,43 @@ describe("peculiar groups", () => {
     expect(Math.abs(Number(row[12]) - 45)).toBeLessThan(6); // 20% per member over ~50 members: ~3% error
   });
 
+  it("links galaxies flagged only for a missing distance, and takes group distances from valid rows", () => {
+    // Half the cluster's members lose their distance and are flagged as the velocities step flags them.
+    const lines = readFileSync(input, "utf8").trim().split("\n");
+    const out = [lines[0] + ",valid,invalid_reason"];
+    const dropped = new Set<number>();
+    let k = 0;
+    for (let i = 0; i < lines.length - 1; i++) {
+      const cells = lines[i + 1]!.split(",");
+      if (members.has(i) && k++ % 2 === 0) {
+        dropped.add(i);
+        cells[4] = "";
+        cells[5] = "";
+        out.push(cells.join(",") + ",false,no usable distance (mu)");
+      } else out.push(cells.join(",") + ",true,");
+    }
+    const partial = join(dir, "partial.csv");
+    writeFileSync(partial, out.join("\n") + "\n");
+    const o = join(dir, "gp.csv");
+    const gout = join(dir, "gp-groups.csv");
+    const r = runCli(["groups", partial, "-o", o, "--groups-out", gout, "-q"]);
+    expect(r.code).toBe(0);
+    const { header, body } = rowsOf(o);
+    const gi = header.indexOf("group_id");
+    const votes = new Map<string, number>();
+    for (const i of members) votes.set(body[i]![gi]!, (votes.get(body[i]![gi]!) ?? 0) + 1);
+    const [best] = [...votes.entries()].sort((a, b) => b[1] - a[1])[0]!;
+    expect(best).not.toBe("-1");
+    let droppedLinked = 0;
+    for (const i of dropped) if (body[i]![gi] === best) droppedLinked++;
+    expect(droppedLinked / dropped.size).toBeGreaterThanOrEqual(0.8); // as many as the full run links
+    const g = rowsOf(gout);
+    const row = g.body.find((x) => x[0] === best)!;
+    const nDist = Number(row[11]);
+    expect(nDist).toBeLessThan(Number(row[1]));
+    expect(Math.abs(Number(row[12]) - 45)).toBeLessThan(8); // ~25 members with 20 % distances
+  });
+
   it("takes the published parameters as options and rejects bad ones", () => {
     const out = join(dir, "g2.csv");
     const r = runCli(["groups", input, "-o", out, "--scaling", "constant", "--d0", "1.0", "--v0", "500", "--min-members", "2", "--json", "-q"]);

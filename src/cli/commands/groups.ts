@@ -23,7 +23,8 @@ Finds friends-of-friends groups in redshift space (Huchra & Geller 1982): galaxi
 2 sin(theta/2) V/H0 <= D0 R(V) and |V_i - V_j| <= V0 R(V), V = (V_i + V_j)/2, with R(V) the HG82
 luminosity-function scaling (R = 1 at V_f) or constant. Groups are the connected components.
 Adds group_id (1, 2, ... for groups of at least --min-members; -1 otherwise) and group_size (size of the
-friends-of-friends component, 1 for an isolated galaxy, 0 for an unusable row). Invalid rows are not grouped.
+friends-of-friends component, 1 for an isolated galaxy, 0 for an unusable row). A row is linked when it has a
+usable position and cz_cmb, even if flagged for another reason (e.g. no distance); group distances use valid rows only.
 
 The groups table has one row per group: group_id, n_members, ra, dec, l, b (centroid), cz_mean,
 cz_mean_err, sigma_v (gapper, Beers et al. 1990), sigma_v_rest (/(1 + z)), r_proj_mpc (rms projected
@@ -107,14 +108,17 @@ const command: Command = {
       throw new PeculiarError("column", `no column ${czName} (observed CMB-frame c z); run 'peculiar velocities' first or name it with --col cz_cmb=NAME`, { file: cat.file, column: czName });
     }
     const cz = float64Column(cat.table, czName);
+    // Linking needs only a position and a velocity: a galaxy flagged for another reason (most often
+    // "no usable distance": a survey galaxy no distance catalogue measured) is still linked. Rows
+    // whose position or velocity is unusable have NaN there and stay out. Group distances below
+    // come from valid rows only.
     const valid = validMask(cat.table);
-    const v = new Float64Array(n);
-    for (let i = 0; i < n; i++) v[i] = valid[i] ? cz[i]! : NaN;
+    const v = cz;
     const fof = friendsOfFriends(cat.raDeg, cat.decDeg, v, o);
     const haveDist = hasColumn(cat.table, columnName(names, "dist_c_mpc")) && hasColumn(cat.table, columnName(names, "dist_c_err_mpc"));
     const rows = haveDist ? flowRowsOfTable(cat.table, cat.raDeg, cat.decDeg, names, cat.file, false).rows : undefined;
     const gt = groupTable(
-      { groupId: fof.groupId, nGroups: fof.nGroups, raDeg: cat.raDeg, decDeg: cat.decDeg, czKmS: v, ...(rows ? { distCMpc: rows.distCMpc, distFracErr: rows.distFracErr } : {}) },
+      { groupId: fof.groupId, nGroups: fof.nGroups, raDeg: cat.raDeg, decDeg: cat.decDeg, czKmS: v, ...(rows ? { distCMpc: Float64Array.from(rows.distCMpc, (d, i) => (valid[i] ? d : NaN)), distFracErr: rows.distFracErr } : {}) },
       { h0, omegaM },
     );
     const s = fof.settings;
