@@ -3,11 +3,49 @@
  * drawn on top: outliers (a cross), group members (a ring), the selection (white rings, the rest dimmed),
  * the row under the pointer.
  */
+import * as d3 from "d3";
 import type { BinnedColours, VelocityScale } from "./colour.js";
 import { binAll, binByColour, GROUP_RING, N_BINS, OUTLIER_MARK, SELECTED_RING } from "./colour.js";
 import type { ViewState } from "./state.js";
 
-/** Draws the rows of `bins` at (px, py) as squares of half-size r; returns how many had a position. */
+/** A reusable pixel layer the size of the canvas: points are written straight into its buffer. */
+interface Layer {
+  canvas: HTMLCanvasElement;
+  ctx: CanvasRenderingContext2D;
+  img: ImageData;
+  buf: Uint32Array;
+}
+let layer: Layer | null = null;
+
+function layerFor(w: number, h: number): Layer {
+  if (layer && layer.img.width === w && layer.img.height === h) return layer;
+  const canvas = document.createElement("canvas");
+  canvas.width = w;
+  canvas.height = h;
+  const ctx = canvas.getContext("2d")!;
+  const img = ctx.createImageData(w, h);
+  layer = { canvas, ctx, img, buf: new Uint32Array(img.data.buffer) };
+  return layer;
+}
+
+const rgbaCache = new Map<string, number>();
+/** A CSS colour as one RGBA pixel in the platform's (little-endian) byte order. */
+function pixelOf(colour: string): number {
+  let v = rgbaCache.get(colour);
+  if (v === undefined) {
+    const c = d3.rgb(colour);
+    v = ((255 << 24) | (Math.round(c.b) << 16) | (Math.round(c.g) << 8) | Math.round(c.r)) >>> 0;
+    rgbaCache.set(colour, v);
+  }
+  return v;
+}
+
+/**
+ * Draws the rows of `bins` at (px, py) as squares of half-size r (CSS px); returns how many had a
+ * position. The squares are written into a pixel buffer and composited onto the canvas in one
+ * drawImage (honouring its clip and `alpha`): one fillRect per point is ten times slower in a
+ * software-rendered canvas at 1e5 points.
+ */
 export function drawBinnedPoints(
   ctx: CanvasRenderingContext2D,
   px: Float64Array,
@@ -16,24 +54,39 @@ export function drawBinnedPoints(
   r: number,
   alpha = 1,
 ): number {
+  const W = ctx.canvas.width;
+  const H = ctx.canvas.height;
+  const t = ctx.getTransform();
+  const k = t.a;
+  const L = layerFor(W, H);
+  const buf = L.buf;
+  const size = Math.max(1, Math.round(2 * r * k));
   let drawn = 0;
-  const d = 2 * r;
-  ctx.globalAlpha = alpha;
   for (let b = 0; b <= N_BINS; b++) {
     const a = bins.start[b]!;
     const e = bins.start[b + 1]!;
     if (a === e) continue;
-    ctx.fillStyle = bins.colours[b]!;
-    for (let k = a; k < e; k++) {
-      const i = bins.order[k]!;
+    const colour = pixelOf(bins.colours[b]!);
+    for (let q = a; q < e; q++) {
+      const i = bins.order[q]!;
       const x = px[i]!;
       const y = py[i]!;
       if (x !== x || y !== y) continue;
-      ctx.fillRect(x - r, y - r, d, d);
       drawn++;
+      const x0 = Math.max(0, Math.round((x - r) * k + t.e));
+      const y0 = Math.max(0, Math.round((y - r) * k + t.f));
+      const x1 = Math.min(W, x0 + size);
+      const y1 = Math.min(H, y0 + size);
+      for (let yy = y0; yy < y1; yy++) buf.fill(colour, yy * W + x0, yy * W + x1);
     }
   }
-  ctx.globalAlpha = 1;
+  L.ctx.putImageData(L.img, 0, 0);
+  buf.fill(0);
+  ctx.save();
+  ctx.setTransform(1, 0, 0, 1, 0, 0);
+  ctx.globalAlpha = alpha;
+  ctx.drawImage(L.canvas, 0, 0);
+  ctx.restore();
   return drawn;
 }
 
