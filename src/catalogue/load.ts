@@ -23,7 +23,7 @@ import {
 } from "../sky/index.js";
 import { columnMeta, float64Column, kindOf, nullMask, stringColumn } from "./columns.js";
 import { readTable, type FormatName } from "./io.js";
-import { META, ROLES, SOURCE_ROW, readJsonMeta, setJsonMeta, type Role, type RoleMap } from "./meta.js";
+import { META, ROLES, SOURCE_ROW, getRoles, readJsonMeta, setJsonMeta, type Role, type RoleMap } from "./meta.js";
 import { detectRoles } from "./roles.js";
 import { flagRows, invalidReasons } from "./validity.js";
 
@@ -197,6 +197,27 @@ function cdsParts(table: Table): { ra: AngleColumn; dec: AngleColumn; names: str
   return { ra: parseAngles(raText, "ra", "h"), dec: parseAngles(decText, "dec", "deg"), names };
 }
 
+/**
+ * The roles a table of ours recorded when it was written (`peculiar.roles`), for the columns it
+ * still has and the roles the user did not set. They rank below --col and above detection by name,
+ * so a chain of commands keeps the positions and redshifts it started with: in a joined table the
+ * second catalogue's own RA/Dec columns (empty for the rows it did not observe) do not take over.
+ * A step that makes a new column for a role records it (combine does for mu and mu_err).
+ */
+function storedRoles(table: Table, overrides: RoleMap): { roles: RoleMap; kept: string[] } {
+  const recorded = getRoles(table);
+  const names = new Set(table.schema.fields.map((f) => f.name));
+  const roles: RoleMap = {};
+  const kept: string[] = [];
+  for (const [role, column] of Object.entries(recorded) as [Role, string | undefined][]) {
+    if (!(ROLES as readonly string[]).includes(role) || column === undefined || column === "") continue;
+    if (role in overrides || !names.has(column)) continue;
+    roles[role] = column;
+    kept.push(`${role} <- ${column}`);
+  }
+  return { roles, kept };
+}
+
 function withSchemaMetadata(table: Table, metadata: Map<string, string>): Table {
   return new Table(new Schema(table.schema.fields, metadata), table.batches);
 }
@@ -207,7 +228,9 @@ function withSchemaMetadata(table: Table, metadata: Map<string, string>): Table 
  */
 export function prepareCatalogue(table: Table, options: PrepareOptions): Catalogue {
   const file = options.file;
-  const { roles, notes } = detectRoles(table, options.overrides ?? {}, file);
+  const stored = storedRoles(table, options.overrides ?? {});
+  const { roles, notes } = detectRoles(table, { ...stored.roles, ...(options.overrides ?? {}) }, file);
+  if (stored.kept.length > 0) notes.unshift(`roles kept from the file's own record: ${stored.kept.join(", ")}`);
   const n = table.numRows;
   const units: Partial<Record<Role, string>> = {};
   for (const r of ROLES) {

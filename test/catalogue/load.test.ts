@@ -3,7 +3,7 @@ import { parseCsv } from "../../src/catalogue/io.js";
 import { prepareCatalogue } from "../../src/catalogue/load.js";
 import { countInvalid, invalidReasons, validMask } from "../../src/catalogue/validity.js";
 import { getRoles } from "../../src/catalogue/meta.js";
-import { tableFromColumns } from "../../src/catalogue/columns.js";
+import { columnsOf, tableFromColumns } from "../../src/catalogue/columns.js";
 import { convertPosition } from "../../src/sky/index.js";
 import { PeculiarError } from "../../src/errors.js";
 
@@ -156,6 +156,27 @@ describe("prepareCatalogue", () => {
     const cat = prepareCatalogue(t, { file: "x.fits" });
     expect(cat.notes.some((n) => /ra <- ra is float32/.test(n))).toBe(true);
     expect(Math.abs(cat.raDeg[0]! - 300.1) * 3600).toBeLessThan(0.055);
+  });
+
+  it("keeps the roles a table recorded over what the names suggest, below --col, skipping vanished columns", () => {
+    // A joined table: the survey's sexagesimal positions were chosen; the second catalogue's raj2000/dej2000
+    // (decimal degrees, empty for rows it did not observe) would win detection by name.
+    const csv = "ra_hms,dec_dms,cz,raj2000,dej2000\n10:00:00,+10:00:00,1500,150.0001,10.0001\n11:00:00,-00:30:00,2500,,\n";
+    const joined = parseCsv(csv, { file: "j.csv" });
+    const recorded = new Map(joined.schema.metadata);
+    recorded.set("peculiar.roles", JSON.stringify({ ra: "ra_hms", dec: "dec_dms", cz: "cz", mu: "gone" }));
+    const table = tableFromColumns(columnsOf(joined), recorded, joined.numRows);
+    const cat = prepareCatalogue(table, { file: "j.arrow" });
+    expect(cat.roles.ra).toBe("ra_hms");
+    expect(cat.roles.dec).toBe("dec_dms");
+    expect(cat.roles.mu).toBeUndefined();
+    expect(Math.abs(cat.raDeg[1]! - 165)).toBeLessThan(TOL_DEG);
+    expect(Math.abs(cat.decDeg[1]! - -0.5)).toBeLessThan(TOL_DEG);
+    expect(countInvalid(cat.table)).toBe(0);
+    expect(cat.notes.some((n) => /roles kept from the file's own record: ra <- ra_hms/.test(n))).toBe(true);
+    const overridden = prepareCatalogue(table, { file: "j.arrow", overrides: { ra: "raj2000", dec: "dej2000" } });
+    expect(overridden.roles.ra).toBe("raj2000");
+    expect(countInvalid(overridden.table)).toBe(1);
   });
 
   it("does not change the input table", () => {
