@@ -14,6 +14,9 @@ import { startViewServer } from "../src/server/index.js";
 import { launchBrowser } from "../test/web/browser.js";
 import { makeViewCatalogue } from "../test/web/catalogue.js";
 import { randomLcg } from "d3-random";
+import { recentre } from "../src/flow/recentre.js";
+import { viewDataFromTable } from "../web/data.js";
+import { originInputs } from "../web/origin.js";
 
 const SIZES = [10_000, 100_000];
 const RUNS = 3;
@@ -36,10 +39,30 @@ interface Row {
 }
 
 const rows: Row[] = [];
+const kernelRows: { n: number; auto: number; linear: number }[] = [];
 const browser = await launchBrowser({ width: 1600, height: 1400 });
 try {
   for (const n of SIZES) {
     const table = makeViewCatalogue({ seed: 424242, n });
+    // Node, same process, side by side: the re-centring kernel with its default estimator ("auto", which
+    // takes the Gauss-Newton log-distance fit when distance errors dominate) and with the linear fit.
+    {
+      const inp = originInputs(viewDataFromTable(table));
+      const opts = { h0: inp.cosmology.h0, sigmaStar: inp.sigmaStar, form: "minor" as const };
+      const a: number[] = [];
+      const l: number[] = [];
+      const r = randomLcg(7);
+      for (let k = 0; k < 7; k++) {
+        const o = { index: Math.floor(r() * n) };
+        let t = performance.now();
+        recentre(inp.points, o, opts);
+        if (k > 0) a.push(performance.now() - t);
+        t = performance.now();
+        recentre(inp.points, o, { ...opts, estimator: "linear" });
+        if (k > 0) l.push(performance.now() - t);
+      }
+      kernelRows.push({ n, auto: median(a), linear: median(l) });
+    }
     const server = await startViewServer({ file: `bench-${n}.arrow`, table, port: 0 });
     const nav: number[] = [];
     const own: number[] = [];
@@ -105,5 +128,7 @@ console.log("galaxies | first draw (nav) ms | first draw (page) ms | recentre ke
 for (const r of rows) {
   console.log(`${String(r.n).padStart(8)} | ${f(r.firstDrawNav)} | ${f(r.firstDrawPage)} | ${f(r.kernel)} | ${f(r.recentre)} | ${f(r.recentreFrame)} | ${f(r.home)} | ${(r.recentre / r.home).toFixed(2)}`);
 }
+console.log("Node kernel alone (recentre, medians of 6): galaxies | estimator auto ms | estimator linear ms | ratio");
+for (const k of kernelRows) console.log(`${String(k.n).padStart(8)} | ${f(k.auto)} | ${f(k.linear)} | ${(k.auto / k.linear).toFixed(1)}`);
 const big = rows.find((r) => r.n === 100_000);
 if (big) console.log(`target: re-centre 1e5 under 100 ms: ${big.recentre < 100 ? "met" : "NOT met"} (${big.recentre.toFixed(1)} ms; ${big.recentreFrame.toFixed(1)} ms to the next frame)`);
