@@ -1,7 +1,7 @@
 // Compiles the library, the CLI and the browser bundle with esbuild.
 // Runs on `npm install` (prepare) so a fresh clone has a working `peculiar` bin.
 import { build } from "esbuild";
-import { chmodSync, mkdirSync, copyFileSync, existsSync, readdirSync } from "node:fs";
+import { chmodSync, mkdirSync, copyFileSync, existsSync, readdirSync, rmSync } from "node:fs";
 import { join } from "node:path";
 
 const node = {
@@ -14,7 +14,10 @@ const node = {
   logLevel: "warning",
 };
 
-await build({ ...node, entryPoints: { cli: "src/cli/main.ts", index: "src/index.ts" }, outdir: "dist" });
+// Code splitting keeps each command's dependencies (arrow, d3, XML, ...) out of start-up: the command
+// table imports commands lazily, and with splitting each lands in its own chunk under dist/chunks/.
+rmSync("dist/chunks", { recursive: true, force: true });
+await build({ ...node, entryPoints: { cli: "src/cli/main.ts", index: "src/index.ts" }, outdir: "dist", splitting: true, chunkNames: "chunks/[name]-[hash]" });
 chmodSync("dist/cli.js", 0o755);
 
 // The web view: one browser bundle (d3, apache-arrow and our browser-safe modules) plus static files.
