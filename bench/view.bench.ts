@@ -71,14 +71,20 @@ try {
     const frame: number[] = [];
     const home: number[] = [];
     const rnd = randomLcg(n);
+    const parts: Record<string, number[]> = {};
     try {
       for (let run = 0; run <= RUNS; run++) {
         const page = await browser.newPage();
         page.on("pageerror", (e) => console.error(`page error: ${String(e)}`));
         await page.goto(server.url);
         await page.waitForSelector("body[data-ready='1']", { timeout: 600_000 });
-        const t = (await page.evaluate(`({ nav: performance.now(), own: window.peculiarView.timing.firstDrawMs })`)) as { nav: number; own: number };
+        const t = (await page.evaluate(`({ nav: performance.now(), own: window.peculiarView.timing.firstDrawMs, parts: window.peculiarView.timing })`)) as {
+          nav: number;
+          own: number;
+          parts: Record<string, number>;
+        };
         if (run > 0) {
+          for (const k of ["loadMs", "decodeMs", "inputsMs", "homeMs", "drawMs"]) (parts[k] ??= []).push(t.parts[k]!);
           // run 0 warms the browser's caches and the JIT
           nav.push(t.nav);
           own.push(t.own);
@@ -108,6 +114,7 @@ try {
     } finally {
       await server.close();
     }
+    console.log(`first draw at ${n}, page parts (medians, ms): ${Object.entries(parts).map(([k, v]) => `${k} ${median(v).toFixed(0)}`).join(", ")}`);
     rows.push({
       n,
       firstDrawNav: median(nav),

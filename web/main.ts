@@ -89,8 +89,11 @@ async function start(): Promise<void> {
   const [bytes, sidecars] = await Promise.all([fetchBytes("data.arrow"), fetchSidecars(meta)]);
   const tLoaded = performance.now();
   const data = viewDataFromIPC(bytes);
+  const tDecoded = performance.now();
   const inputs: OriginInputs = originInputs(data);
+  const tInputs = performance.now();
   const home: OriginView = homeView(inputs);
+  const tHome = performance.now();
   const scale = velocityScale(symmetricLimitKmS(data.col.v_pec));
   const state = new ViewState(data, home, defaultSlabMpc(home), inputs.cosmology.h0);
   const groups = groupsOf(data, 3);
@@ -105,7 +108,15 @@ async function start(): Promise<void> {
 
   const tooltip = new Tooltip(state);
   const panels: CanvasPanel[] = [];
-  const timing = { loadMs: tLoaded - tStart, firstDrawMs: NaN, lastRecentre: { kernelMs: NaN, totalMs: NaN } as RecentreTiming };
+  const timing = {
+    loadMs: tLoaded - tStart,
+    decodeMs: tDecoded - tLoaded,
+    inputsMs: tInputs - tDecoded,
+    homeMs: tHome - tInputs,
+    drawMs: NaN,
+    firstDrawMs: NaN,
+    lastRecentre: { kernelMs: NaN, totalMs: NaN } as RecentreTiming,
+  };
 
   const setOrigin = (o: OriginView): RecentreTiming => {
     const t0 = performance.now();
@@ -289,7 +300,9 @@ async function start(): Promise<void> {
   });
 
   showOrigin();
+  const tDraw = performance.now();
   renderAll();
+  timing.drawMs = performance.now() - tDraw;
   timing.firstDrawMs = performance.now() - tStart;
   $("status").textContent = `${data.n} galaxies drawn in ${timing.firstDrawMs.toFixed(0)} ms`;
   document.body.dataset.ready = "1";
