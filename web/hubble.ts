@@ -66,6 +66,14 @@ export class HubblePanel extends CanvasPanel {
     }
     const rx = this.rx.fill(NaN);
     const ry = this.ry.fill(NaN);
+    // The linear scales as a x + b, so the loop over 1e5 rows makes no function calls.
+    const lin = (f: d3.ScaleLinear<number, number>): [number, number] => {
+      const b = f(0);
+      return [f(1) - b, b];
+    };
+    const [xa, xb] = lin(x);
+    const [ya, yb] = lin(y);
+    const [ra, rb] = lin(yr);
     for (let i = 0; i < n; i++) {
       const s = o.s[i]!;
       const v = o.v[i]!;
@@ -73,10 +81,10 @@ export class HubblePanel extends CanvasPanel {
         if (i !== o.row) unknown++;
         continue;
       }
-      px[i] = x(s);
-      py[i] = y(v);
+      px[i] = xa * s + xb;
+      py[i] = ya * v + yb;
       rx[i] = px[i]!;
-      ry[i] = yr(o.u[i]!);
+      ry[i] = ra * o.u[i]! + rb;
       drawn++;
     }
     // Frames and zero lines.

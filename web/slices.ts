@@ -90,6 +90,10 @@ export class SlicePanel extends CanvasPanel {
     const H = Number.isFinite(o.h0) ? o.h0 : st.h0Ref;
     const px = this.px;
     const py = this.py;
+    const xb = sx(0);
+    const xa = sx(1) - xb;
+    const yb = sy(0);
+    const ya = sy(1) - yb;
     let unknown = 0;
     for (let i = 0; i < d.n; i++) {
       const a = A[i]!;
@@ -100,8 +104,8 @@ export class SlicePanel extends CanvasPanel {
         continue;
       }
       if (Math.abs(c) > half || Math.abs(a - ca) > R || Math.abs(b - cb) > R) continue;
-      px[i] = sx(a);
-      py[i] = sy(b);
+      px[i] = xa * a + xb;
+      py[i] = ya * b + yb;
     }
     ctx.save();
     ctx.beginPath();
