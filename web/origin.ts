@@ -9,10 +9,9 @@ import type { ViewData } from "./data.js";
 import { originOf, recentre, type RecentreOrigin } from "../src/flow/recentre.js";
 import { fitFlow, flowPoints, type FlowRows } from "../src/flow/bulkflow.js";
 import { groupTable } from "../src/flow/groups.js";
-import { C_KMS } from "../src/cosmology/constants.js";
-import { comovingDistanceMpc, DEFAULT_COSMOLOGY, type Cosmology } from "../src/cosmology/distances.js";
-import { convertPosition, convertPositions, rotate, rotation } from "../src/sky/frames.js";
-import { unitVector } from "../src/sky/vectors.js";
+import { excludeMembers, groupOrigin } from "../src/flow/origins.js";
+import { DEFAULT_COSMOLOGY, type Cosmology } from "../src/cosmology/distances.js";
+import { convertPositions, rotate, rotation } from "../src/sky/frames.js";
 
 export type OriginKind = "home" | "galaxy" | "group";
 
@@ -207,16 +206,8 @@ export function groupView(inp: OriginInputs, groupIds: Int32Array, groupId: numb
   const k = groupId - 1;
   const label = `group ${groupId}`;
   if (!(k >= 0 && k < nG) || gt.nMembers[k] === 0) return build(inp, { x: NaN, y: NaN, z: NaN, vr: NaN }, inp.points.use, "group", -1, groupId, `${label} (no members)`);
-  let d = gt.distCMpc[k]!;
-  let vp = gt.vPecKmS[k]!;
-  if (!Number.isFinite(d)) {
-    d = comovingDistanceMpc(gt.czMeanKmS[k]! / C_KMS, inp.cosmology);
-    vp = 0;
-  }
-  const [l, b] = convertPosition(gt.raDeg[k]!, gt.decDeg[k]!, "icrs", "galactic");
-  const e = unitVector(l, b);
-  const vr = inp.cosmology.h0 * d + vp;
+  const o = groupOrigin(gt, k, inp.cosmology);
   const use = new Uint8Array(inp.points.use);
-  for (let i = 0; i < groupIds.length; i++) if (groupIds[i] === groupId) use[i] = 0;
-  return build(inp, { x: d * e[0], y: d * e[1], z: d * e[2], vr }, use, "group", -1, groupId, `${label} (${gt.nMembers[k]} members)`);
+  excludeMembers(gt, k, use);
+  return build(inp, { x: o.x, y: o.y, z: o.z, vr: o.vr }, use, "group", -1, groupId, `${label} (${gt.nMembers[k]} members)`);
 }
