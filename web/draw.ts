@@ -62,7 +62,9 @@ export function drawBinnedPoints(
   const buf = L.buf;
   const size = Math.max(1, Math.round(2 * r * k));
   let drawn = 0;
-  for (let b = 0; b <= N_BINS; b++) {
+  // Unknown values (bin N_BINS) first, so galaxies with a measured velocity are drawn over them.
+  for (let j = 0; j <= N_BINS; j++) {
+    const b = j === 0 ? N_BINS : j - 1;
     const a = bins.start[b]!;
     const e = bins.start[b + 1]!;
     if (a === e) continue;
