@@ -18,7 +18,7 @@ import { float64Column, hasColumn, type ColumnData } from "../catalogue/columns.
 import { META, getRoles, recordStep, setJsonMeta } from "../catalogue/meta.js";
 import { withColumns } from "../catalogue/columns.js";
 import { PeculiarError } from "../errors.js";
-import { combineModuli, zeroPointNetwork, zeroPointOffset } from "./zeropoint.js";
+import { combineModuli, zeroPointNetwork, zeroPointOffset, type ZeroPointStats } from "./zeropoint.js";
 import { addColumnsKeepingInputs } from "./velocities.js";
 
 export interface CombineOptions {
@@ -37,22 +37,12 @@ export interface CombineOptions {
   file?: string;
 }
 
-export interface CatalogueOffset {
+/** One catalogue's offset: offsetMag is mu(column) - mu(reference) over the galaxies shared with it. */
+export interface CatalogueOffset extends ZeroPointStats {
   column: string;
   errColumn: string;
   /** The reference catalogue's own entry (offset 0; nShared = its usable moduli). */
   isReference: boolean;
-  /** mu(column) - mu(reference), weighted mean over shared galaxies, mag. */
-  offsetMag: number;
-  offsetErrMag: number;
-  nShared: number;
-  chi2Dof: number;
-  scatterMag: number;
-  medianMag: number;
-  clippedOffsetMag: number;
-  clippedOffsetErrMag: number;
-  nRejected: number;
-  kappa: number;
   /** The network solution's offset and error (zeroPointNetwork; NaN when not linked to the reference). */
   networkOffsetMag: number;
   networkOffsetErrMag: number;
@@ -141,20 +131,12 @@ export function combineDistances(table: Table, o: CombineOptions): { table: Tabl
     if (r.nShared > 1 && Math.abs(r.offsetMag - r.clippedOffsetMag) > 2 * r.offsetErrMag) {
       notes.push(`${c}: the clipped offset (${r.clippedOffsetMag.toFixed(3)} mag, ${r.nRejected} rejected) differs from the plain one (${r.offsetMag.toFixed(3)}) by more than 2 sigma; check for wrong cross-identifications`);
     }
+    const { shared: _shared, rejected: _rejected, ...stats } = r;
     return {
       column: c,
       errColumn: errNames[k]!,
       isReference: false,
-      offsetMag: r.offsetMag,
-      offsetErrMag: r.offsetErrMag,
-      nShared: r.nShared,
-      chi2Dof: r.chi2Dof,
-      scatterMag: r.scatterMag,
-      medianMag: r.medianMag,
-      clippedOffsetMag: r.clippedOffsetMag,
-      clippedOffsetErrMag: r.clippedOffsetErrMag,
-      nRejected: r.nRejected,
-      kappa: r.kappa,
+      ...stats,
       networkOffsetMag: netOff,
       networkOffsetErrMag: net.offsetsErrMag[k]!,
       appliedMag,

@@ -23,7 +23,8 @@ export interface ZeroPointOptions {
   maxIterations?: number;
 }
 
-export interface ZeroPointOffset {
+/** The statistics of one zero-point offset (also carried per catalogue by the combine step). */
+export interface ZeroPointStats {
   /** Weighted mean of mu_B - mu_A over the shared galaxies (mag); NaN if none shared. */
   offsetMag: number;
   offsetErrMag: number;
@@ -38,6 +39,9 @@ export interface ZeroPointOffset {
   clippedOffsetErrMag: number;
   nRejected: number;
   kappa: number;
+}
+
+export interface ZeroPointOffset extends ZeroPointStats {
   /** Row indices of the shared galaxies (Int32Array) and 1 where clipping rejected them. */
   shared: Int32Array;
   rejected: Uint8Array;
