@@ -5,6 +5,7 @@
  */
 import { parseArgs, type ParseArgsConfig } from "node:util";
 import { usageError } from "../errors.js";
+import { DEFAULT_COSMOLOGY } from "../cosmology/distances.js";
 
 export interface Io {
   stdout: NodeJS.WritableStream;
@@ -45,6 +46,16 @@ export function numberFlag(value: string | undefined, flag: string, fallback: nu
     throw usageError(`bad value for --${flag}`, { value, expected: expected ?? "a number" });
   }
   return x;
+}
+
+/** --h0, checked: km/s/Mpc in (0, 1000). */
+export function h0Flag(value: string | undefined, fallback: number = DEFAULT_COSMOLOGY.h0): number {
+  return numberFlag(value, "h0", fallback, (x) => x > 0 && x < 1000, "a number in (0, 1000) km/s/Mpc");
+}
+
+/** --omega-m, checked: the matter density of a flat model, in [0, 1]. */
+export function omegaMFlag(value: string | undefined): number {
+  return numberFlag(value, "omega-m", DEFAULT_COSMOLOGY.omegaM, (x) => x >= 0 && x <= 1, "a number in [0, 1]");
 }
 
 /** Flags every command accepts. Spread into a command's option table. */

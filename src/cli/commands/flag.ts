@@ -3,7 +3,7 @@
  * Adds outlier, outlier_score, outlier_reason; never deletes a row; --json prints a summary on stdout.
  */
 import type { Command } from "../command.js";
-import { COMMON_FLAGS, numberFlag, parseFlags } from "../command.js";
+import { COMMON_FLAGS, numberFlag, parseFlags, h0Flag, omegaMFlag } from "../command.js";
 import { usageError } from "../../errors.js";
 import { assertNotSameFile, writeTable } from "../../catalogue/io.js";
 import { withColumns, type ColumnData } from "../../catalogue/columns.js";
@@ -67,8 +67,8 @@ const command: Command = {
     if (method !== "clip" && method !== "mad") throw usageError("bad value for --method", { value: method, expected: "clip or mad" });
     const k = numberFlag(values.k, "k", 3.5, (x) => x > 0, "a number > 0");
     const sigmaStar = numberFlag(values["sigma-star"], "sigma-star", 250, (x) => x >= 0, "a number >= 0 km/s");
-    const h0 = numberFlag(values.h0, "h0", DEFAULT_COSMOLOGY.h0, (x) => x > 0 && x < 1000, "a number in (0, 1000) km/s/Mpc");
-    const omegaM = numberFlag(values["omega-m"], "omega-m", DEFAULT_COSMOLOGY.omegaM, (x) => x >= 0 && x <= 1, "a number in [0, 1]");
+    const h0 = h0Flag(values.h0);
+    const omegaM = omegaMFlag(values["omega-m"]);
     const maxDist = values["max-dist"] === undefined ? undefined : numberFlag(values["max-dist"], "max-dist", 0, (x) => x > 0, "a distance > 0 Mpc");
     const { names, rest } = splitFlowColumns(values.col);
     const flags = parseCatalogueFlags({ ...values, col: rest });

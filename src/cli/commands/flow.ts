@@ -4,7 +4,7 @@
  * residual and whether it entered the fit.
  */
 import type { Command } from "../command.js";
-import { COMMON_FLAGS, numberFlag, parseFlags } from "../command.js";
+import { COMMON_FLAGS, numberFlag, parseFlags, h0Flag, omegaMFlag } from "../command.js";
 import { usageError } from "../../errors.js";
 import { assertNotSameFile, writeTable } from "../../catalogue/io.js";
 import { withColumns } from "../../catalogue/columns.js";
@@ -65,8 +65,8 @@ const command: Command = {
     const input = positionals[0]!;
     if (values.output) assertNotSameFile(input, values.output);
     const sigmaStar = numberFlag(values["sigma-star"], "sigma-star", 250, (x) => x >= 0, "a number >= 0 km/s");
-    const h0 = numberFlag(values.h0, "h0", DEFAULT_COSMOLOGY.h0, (x) => x > 0 && x < 1000, "a number in (0, 1000) km/s/Mpc");
-    const omegaM = numberFlag(values["omega-m"], "omega-m", DEFAULT_COSMOLOGY.omegaM, (x) => x >= 0 && x <= 1, "a number in [0, 1]");
+    const h0 = h0Flag(values.h0);
+    const omegaM = omegaMFlag(values["omega-m"]);
     const maxDist = values["max-dist"] === undefined ? undefined : numberFlag(values["max-dist"], "max-dist", 0, (x) => x > 0, "a distance > 0 Mpc");
     const { names, rest } = splitFlowColumns(values.col);
     const flags = parseCatalogueFlags({ ...values, col: rest });

@@ -3,7 +3,7 @@
  * (src/flow/fof.ts) and the groups table (src/flow/groups.ts).
  */
 import type { Command } from "../command.js";
-import { COMMON_FLAGS, numberFlag, parseFlags } from "../command.js";
+import { COMMON_FLAGS, numberFlag, parseFlags, h0Flag, omegaMFlag } from "../command.js";
 import { PeculiarError, usageError } from "../../errors.js";
 import { assertNotSameFile, writeTable } from "../../catalogue/io.js";
 import { hasColumn, tableFromColumns, withColumns, type ColumnData } from "../../catalogue/columns.js";
@@ -85,8 +85,8 @@ const command: Command = {
     if (values["groups-out"]) assertNotSameFile(input, values["groups-out"]);
     const scaling = values.scaling ?? "hg82";
     if (scaling !== "hg82" && scaling !== "constant") throw usageError("bad value for --scaling", { value: scaling, expected: "hg82 or constant" });
-    const h0 = numberFlag(values.h0, "h0", DEFAULT_COSMOLOGY.h0, (x) => x > 0 && x < 1000, "a number in (0, 1000) km/s/Mpc");
-    const omegaM = numberFlag(values["omega-m"], "omega-m", DEFAULT_COSMOLOGY.omegaM, (x) => x >= 0 && x <= 1, "a number in [0, 1]");
+    const h0 = h0Flag(values.h0);
+    const omegaM = omegaMFlag(values["omega-m"]);
     const pos = (x: number) => x > 0;
     const o = {
       h0,

@@ -4,7 +4,7 @@
  * infall profile in the origin's rest frame (src/flow/infall.ts).
  */
 import type { Command } from "../command.js";
-import { COMMON_FLAGS, numberFlag, parseFlags } from "../command.js";
+import { COMMON_FLAGS, numberFlag, parseFlags, h0Flag, omegaMFlag } from "../command.js";
 import { PeculiarError, usageError } from "../../errors.js";
 import { assertNotSameFile, writeTable } from "../../catalogue/io.js";
 import { float64Column, hasColumn, stringColumn, withColumns } from "../../catalogue/columns.js";
@@ -103,7 +103,7 @@ const command: Command = {
     if (values.output) assertNotSameFile(input, values.output);
     const on = values.on;
     if (!on) throw usageError("recentre needs --on ID|RA,DEC,DIST|group:ID");
-    const omegaM = numberFlag(values["omega-m"], "omega-m", DEFAULT_COSMOLOGY.omegaM, (x) => x >= 0 && x <= 1, "a number in [0, 1]");
+    const omegaM = omegaMFlag(values["omega-m"]);
     const sigmaStar = numberFlag(values["sigma-star"], "sigma-star", 250, (x) => x >= 0, "a number >= 0 km/s");
     const maxDist = values["max-dist"] === undefined ? undefined : numberFlag(values["max-dist"], "max-dist", 0, (x) => x > 0, "a distance > 0 Mpc");
     const form = values.form ?? "minor";
@@ -120,7 +120,7 @@ const command: Command = {
     for (let i = 0; i < use.length; i++) if (!(t.rows.distCMpc[i]! > 0) || !Number.isFinite(t.rows.czCmbKmS[i]!)) use[i] = 0;
 
     let h0: number;
-    if (values.h0 !== undefined) h0 = numberFlag(values.h0, "h0", 70, (x) => x > 0 && x < 1000, "a number in (0, 1000) km/s/Mpc");
+    if (values.h0 !== undefined) h0 = h0Flag(values.h0, 70);
     else {
       const f = fitFlow({ ...t.rows, use }, { cosmology: { h0: DEFAULT_COSMOLOGY.h0, omegaM }, sigmaStar });
       h0 = Number.isFinite(f.h0) ? f.h0 : DEFAULT_COSMOLOGY.h0;

@@ -4,7 +4,7 @@
  * Counts go to stderr; the table to OUT.
  */
 import type { Command } from "../command.js";
-import { COMMON_FLAGS, numberFlag, parseFlags } from "../command.js";
+import { COMMON_FLAGS, parseFlags, h0Flag, omegaMFlag } from "../command.js";
 import { usageError } from "../../errors.js";
 import { assertNotSameFile, writeTable } from "../../catalogue/io.js";
 import { APEXES, FRAME_FORMS, VELOCITY_FRAMES, type FrameForm, type VelocityFrame } from "../../cosmology/restframes.js";
@@ -103,8 +103,8 @@ const command: Command = {
       frame,
       form: choice<FrameForm>(values.form, "form", FRAME_FORMS, "exact"),
       cosmology: {
-        h0: numberFlag(values.h0, "h0", DEFAULT_COSMOLOGY.h0, (x) => x > 0 && x < 1000, "a number in (0, 1000) km/s/Mpc"),
-        omegaM: numberFlag(values["omega-m"], "omega-m", DEFAULT_COSMOLOGY.omegaM, (x) => x >= 0 && x <= 1, "a number in [0, 1]"),
+        h0: h0Flag(values.h0),
+        omegaM: omegaMFlag(values["omega-m"]),
       },
       estimator: choice<Estimator>(values.estimator, "estimator", ESTIMATORS, "exact"),
       redshiftFrame: choice<VelocityFrame>(values["input-frame"], "input-frame", VELOCITY_FRAMES, "helio"),
