@@ -33,7 +33,9 @@ export function parseFlags<O extends Options>(argv: string[], options: O, comman
   try {
     return parseArgs({ args: argv, options, allowPositionals: true, strict: true });
   } catch (e) {
-    const msg = e instanceof Error ? e.message.replace(/\. To specify a positional.*$/s, "") : String(e);
+    const raw = e instanceof Error ? e.message.replace(/\. To specify a positional.*$/s, "") : String(e);
+    // node's messages can span lines; errors here are one line.
+    const msg = raw.split("\n").map((l) => l.trim()).filter((l) => l !== "").join(" ").replace(/\.$/, "");
     throw usageError(`${msg}; see 'peculiar ${command} --help'`);
   }
 }
