@@ -6,6 +6,7 @@ import { chromium, type BrowserContext, type Page } from "playwright-core";
 import { existsSync, mkdtempSync, readdirSync, rmSync, statSync } from "node:fs";
 import { spawnSync } from "node:child_process";
 import { ROOT } from "../cli-helpers.js";
+import { startViewServer, type ViewServer } from "../../src/server/index.js";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 
@@ -67,6 +68,25 @@ function newestMtime(dir: string): number {
 }
 
 /** Builds dist/ (CLI and page) unless dist/web/app.js and dist/cli.js are newer than src/ and web/. */
+/**
+ * Serves `file` on a free loopback port, opens it in a new page and waits until the view is ready.
+ * The caller closes page and server; if the page does not come up, both are closed here.
+ */
+export async function openView(browser: Browser, file: string): Promise<{ server: ViewServer; page: Page; errors: string[] }> {
+  const server = await startViewServer({ file, port: 0 });
+  const page = await browser.newPage();
+  const errors = collectErrors(page);
+  try {
+    await page.goto(server.url);
+    await page.waitForSelector("body[data-ready='1']", { timeout: 90_000 });
+  } catch (e) {
+    await page.close();
+    await server.close();
+    throw e;
+  }
+  return { server, page, errors };
+}
+
 export function buildWebOnce(): void {
   const app = join(ROOT, "dist", "web", "app.js");
   const cli = join(ROOT, "dist", "cli.js");

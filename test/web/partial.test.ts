@@ -6,9 +6,9 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { mkdirSync } from "node:fs";
 import { join } from "node:path";
 import type { Page } from "playwright-core";
-import { startViewServer, type ViewServer } from "../../src/server/index.js";
+import type { ViewServer } from "../../src/server/index.js";
 import { tempDir } from "../cli-helpers.js";
-import { ARTIFACTS, buildWebOnce, collectErrors, launchBrowser, type Browser } from "./browser.js";
+import { ARTIFACTS, buildWebOnce, launchBrowser, openView, type Browser } from "./browser.js";
 import { writeViewCatalogue } from "./catalogue.js";
 
 const ROWS = 400;
@@ -27,12 +27,8 @@ beforeAll(async () => {
   const file = join(tmp.dir, "positions-only.arrow");
   // Sky positions and distances but no velocities, no flags, no groups, no Cartesian columns.
   writeViewCatalogue(file, { seed: 5, n: ROWS, drop: ["v_pec", "v_pec_err", "cz_cmb", "outlier", "group_id", "group_size", "sgx", "sgy", "sgz", "sgl", "sgb"] });
-  server = await startViewServer({ file, port: 0 });
   browser = await launchBrowser({ width: 1400, height: 1200 });
-  page = await browser.newPage();
-  errors = collectErrors(page);
-  await page.goto(server.url);
-  await page.waitForSelector("body[data-ready='1']", { timeout: 90_000 });
+  ({ server, page, errors } = await openView(browser, file));
 });
 
 afterAll(async () => {
@@ -45,12 +41,8 @@ describe("the web view of a small catalogue", () => {
   it("draws error bars in the Hubble diagram when there are few points", async () => {
     const file = join(tmp.dir, "few.arrow");
     writeViewCatalogue(file, { seed: 9, n: 120 });
-    const s = await startViewServer({ file, port: 0 });
-    const p = await browser.newPage();
-    const errs = collectErrors(p);
+    const { server: s, page: p, errors: errs } = await openView(browser, file);
     try {
-      await p.goto(s.url);
-      await p.waitForSelector("body[data-ready='1']", { timeout: 90_000 });
       expect(errs).toEqual([]);
       expect(await p.textContent("#panel-hubble footer")).toContain("bars: 1σ distance and velocity");
       await p.locator("#panel-hubble").screenshot({ path: join(SHOTS, "few-hubble.png") });

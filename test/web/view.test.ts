@@ -6,9 +6,9 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { mkdirSync, readFileSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
 import type { Page } from "playwright-core";
-import { startViewServer, type ViewServer } from "../../src/server/index.js";
+import type { ViewServer } from "../../src/server/index.js";
 import { runCli, tempDir } from "../cli-helpers.js";
-import { ARTIFACTS, buildWebOnce, collectErrors, launchBrowser, type Browser } from "./browser.js";
+import { ARTIFACTS, buildWebOnce, launchBrowser, openView, type Browser } from "./browser.js";
 import { writeViewCatalogue } from "./catalogue.js";
 import { tableFromIPC } from "apache-arrow";
 import { viewDataFromTable } from "../../web/data.js";
@@ -87,12 +87,8 @@ beforeAll(async () => {
   file = join(tmp.dir, "flowfield.arrow");
   writeViewCatalogue(file, { seed: 20261201, n: ROWS });
   writeFileSync(join(tmp.dir, "flowfield.match.json"), JSON.stringify(matchReport()));
-  server = await startViewServer({ file, port: 0 });
   browser = await launchBrowser();
-  page = await browser.newPage();
-  errors = collectErrors(page);
-  await page.goto(server.url);
-  await page.waitForSelector("body[data-ready='1']", { timeout: 90_000 });
+  ({ server, page, errors } = await openView(browser, file));
 });
 
 afterAll(async () => {
