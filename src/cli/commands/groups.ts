@@ -113,12 +113,11 @@ const command: Command = {
     // whose position or velocity is unusable have NaN there and stay out. Group distances below
     // come from valid rows only.
     const valid = validMask(cat.table);
-    const v = cz;
-    const fof = friendsOfFriends(cat.raDeg, cat.decDeg, v, o);
+    const fof = friendsOfFriends(cat.raDeg, cat.decDeg, cz, o);
     const haveDist = hasColumn(cat.table, columnName(names, "dist_c_mpc")) && hasColumn(cat.table, columnName(names, "dist_c_err_mpc"));
     const rows = haveDist ? flowRowsOfTable(cat.table, cat.raDeg, cat.decDeg, names, cat.file, false).rows : undefined;
     const gt = groupTable(
-      { groupId: fof.groupId, nGroups: fof.nGroups, raDeg: cat.raDeg, decDeg: cat.decDeg, czKmS: v, ...(rows ? { distCMpc: Float64Array.from(rows.distCMpc, (d, i) => (valid[i] ? d : NaN)), distFracErr: rows.distFracErr } : {}) },
+      { groupId: fof.groupId, nGroups: fof.nGroups, raDeg: cat.raDeg, decDeg: cat.decDeg, czKmS: cz, ...(rows ? { distCMpc: Float64Array.from(rows.distCMpc, (d, i) => (valid[i] ? d : NaN)), distFracErr: rows.distFracErr } : {}) },
       { h0, omegaM },
     );
     const s = fof.settings;
