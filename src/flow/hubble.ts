@@ -105,17 +105,9 @@ export function fitHubbleFlow(rows: HubbleFitRows, opts: HubbleFitOptions = {}):
   const fitSlope = fixed === undefined;
   const { x, y, ex, ey, ez, sigma, use } = rows;
   const n = y.length;
-  // Parameter slots: 0 = slope, 1..3 = dipole. `idx` lists the fitted ones.
-  const idx: number[] = [];
-  if (fitSlope) idx.push(0);
-  if (fitDipole) idx.push(1, 2, 3);
-  const p = idx.length;
-  const A = new Float64Array(p * p);
-  const bvec = new Float64Array(p);
-  const f = new Float64Array(4);
+  const sums = new HubbleSums();
   const sigmaTotal = new Float64Array(n);
   const ss2 = sigmaStar * sigmaStar;
-  let nUsed = 0;
   const okRow = (i: number) => {
     const s = sigma ? sigma[i]! : 0;
     return Number.isFinite(x[i]!) && Number.isFinite(y[i]!) && Number.isFinite(ex[i]! + ey[i]! + ez[i]!) && Number.isFinite(s);
@@ -126,37 +118,13 @@ export function fitHubbleFlow(rows: HubbleFitRows, opts: HubbleFitOptions = {}):
     if ((use && !use[i]) || !okRow(i)) continue;
     const v2 = s * s + ss2;
     // No error at all (noise-free checks): equal weights.
-    const w = v2 > 0 ? 1 / v2 : 1;
-    f[0] = x[i]!;
-    f[1] = ex[i]!;
-    f[2] = ey[i]!;
-    f[3] = ez[i]!;
-    const yy = y[i]! - (fitSlope ? 0 : fixed * x[i]!);
-    for (let a = 0; a < p; a++) {
-      const fa = f[idx[a]!]!;
-      bvec[a] = bvec[a]! + w * fa * yy;
-      for (let c = a; c < p; c++) A[a * p + c] = A[a * p + c]! + w * fa * f[idx[c]!]!;
-    }
-    nUsed++;
+    sums.add(x[i]!, y[i]! - (fitSlope ? 0 : fixed * x[i]!), ex[i]!, ey[i]!, ez[i]!, v2 > 0 ? 1 / v2 : 1);
   }
-  for (let a = 0; a < p; a++) for (let c = 0; c < a; c++) A[a * p + c] = A[c * p + a]!;
-  const cov = new Float64Array(16);
-  const params = [fitSlope ? NaN : fixed, 0, 0, 0];
-  let ok = true;
-  if (p > 0) {
-    const inv = nUsed >= p ? invertSymmetric(A, p) : null;
-    if (!inv) {
-      ok = false;
-      for (const k of idx) params[k] = NaN;
-    } else {
-      for (let a = 0; a < p; a++) {
-        let s = 0;
-        for (let c = 0; c < p; c++) s += inv[a * p + c]! * bvec[c]!;
-        params[idx[a]!] = s;
-        for (let c = 0; c < p; c++) cov[idx[a]! * 4 + idx[c]!] = inv[a * p + c]!;
-      }
-    }
-  }
+  const nUsed = sums.rows;
+  const sol = sums.solve(fitSlope, fitDipole);
+  const params = sol.params;
+  if (!fitSlope) params[0] = fixed;
+  const { cov, ok, nParams: p } = sol;
   const residual = new Float64Array(n);
   let chi2 = 0;
   let sumR2 = 0;
@@ -186,4 +154,90 @@ export function fitHubbleFlow(rows: HubbleFitRows, opts: HubbleFitOptions = {}):
     sigmaTotal,
     ok,
   };
+}
+
+/**
+ * Running sums of the normal equations of y = a x + d . e with weights w (A = sum w f f^T, b = sum w f y,
+ * f = (x, ex, ey, ez)), for kernels that make their rows on the fly; fitHubbleFlow is built on it.
+ * No allocation per row.
+ */
+export class HubbleSums {
+  /** A, row-major 4 x 4 (upper triangle filled by add, mirrored by solve). */
+  readonly A = new Float64Array(16);
+  readonly b = new Float64Array(4);
+  /** sum w y^2: with b and A, chi2 of any parameters without a second pass. */
+  wyy = 0;
+  rows = 0;
+
+  reset(): void {
+    this.A.fill(0);
+    this.b.fill(0);
+    this.wyy = 0;
+    this.rows = 0;
+  }
+
+  add(x: number, y: number, ex: number, ey: number, ez: number, w: number): void {
+    const A = this.A;
+    const b = this.b;
+    const wx = w * x;
+    const wex = w * ex;
+    const wey = w * ey;
+    const wez = w * ez;
+    b[0] = b[0]! + wx * y;
+    b[1] = b[1]! + wex * y;
+    b[2] = b[2]! + wey * y;
+    b[3] = b[3]! + wez * y;
+    A[0] = A[0]! + wx * x;
+    A[1] = A[1]! + wx * ex;
+    A[2] = A[2]! + wx * ey;
+    A[3] = A[3]! + wx * ez;
+    A[5] = A[5]! + wex * ex;
+    A[6] = A[6]! + wex * ey;
+    A[7] = A[7]! + wex * ez;
+    A[10] = A[10]! + wey * ey;
+    A[11] = A[11]! + wey * ez;
+    A[15] = A[15]! + wez * ez;
+    this.wyy += w * y * y;
+    this.rows++;
+  }
+
+  /**
+   * Solves for the fitted parameters (slot 0 = slope, 1..3 = dipole; slots not fitted are 0 in params
+   * and in cov). chi2 = sum w (y - f . p)^2 of the solution, from the sums.
+   */
+  solve(fitSlope: boolean, fitDipole: boolean): { params: number[]; cov: Float64Array; ok: boolean; nParams: number; chi2: number } {
+    const idx: number[] = [];
+    if (fitSlope) idx.push(0);
+    if (fitDipole) idx.push(1, 2, 3);
+    const p = idx.length;
+    const full = this.A;
+    const A = new Float64Array(p * p);
+    for (let a = 0; a < p; a++) for (let c = 0; c < p; c++) {
+      const i = Math.min(idx[a]!, idx[c]!);
+      const j = Math.max(idx[a]!, idx[c]!);
+      A[a * p + c] = full[i * 4 + j]!;
+    }
+    const cov = new Float64Array(16);
+    const params = [0, 0, 0, 0];
+    let ok = true;
+    let chi2 = this.wyy;
+    if (p > 0) {
+      const inv = this.rows >= p ? invertSymmetric(A, p) : null;
+      if (!inv) {
+        ok = false;
+        for (const k of idx) params[k] = NaN;
+        chi2 = NaN;
+      } else {
+        for (let a = 0; a < p; a++) {
+          let s = 0;
+          for (let c = 0; c < p; c++) s += inv[a * p + c]! * this.b[idx[c]!]!;
+          params[idx[a]!] = s;
+          for (let c = 0; c < p; c++) cov[idx[a]! * 4 + idx[c]!] = inv[a * p + c]!;
+        }
+        // chi2 = wyy - 2 p.b + p^T A p = wyy - p.b at the solution of A p = b
+        for (let a = 0; a < p; a++) chi2 -= params[idx[a]!]! * this.b[idx[a]!]!;
+      }
+    }
+    return { params, cov, ok, nParams: p, chi2 };
+  }
 }

@@ -1,5 +1,5 @@
 import { describe, it, expect } from "vitest";
-import { fitHubbleFlow, invertSymmetric } from "../../src/flow/hubble.js";
+import { fitHubbleFlow, HubbleSums, invertSymmetric } from "../../src/flow/hubble.js";
 
 const TIGHT = 1e-9; // km/s or km/s/Mpc: round-off only (common practice)
 
@@ -80,5 +80,40 @@ describe("fitHubbleFlow", () => {
         for (let k = 0; k < 3; k++) s += a[r * 3 + k]! * inv[k * 3 + c]!;
         expect(Math.abs(s - (r === c ? 1 : 0))).toBeLessThan(1e-14);
       }
+  });
+
+  it("gives from its running sums the parameters and the chi2 of the residual sum (HubbleSums)", () => {
+    // seeded rows (common practice: chi2 = sum w r^2 = sum w y^2 - p . b at the solution of A p = b)
+    let seed = 12345;
+    const rnd = () => ((seed = (seed * 1103515245 + 12345) % 2147483648) / 2147483648);
+    const n = 500;
+    const x = new Float64Array(n);
+    const y = new Float64Array(n);
+    const ex = new Float64Array(n);
+    const ey = new Float64Array(n);
+    const ez = new Float64Array(n);
+    const sigma = new Float64Array(n);
+    for (let i = 0; i < n; i++) {
+      const u = 2 * rnd() - 1;
+      const ph = 2 * Math.PI * rnd();
+      const c = Math.sqrt(1 - u * u);
+      ex[i] = c * Math.cos(ph);
+      ey[i] = c * Math.sin(ph);
+      ez[i] = u;
+      x[i] = 10 + 100 * rnd();
+      sigma[i] = 50 + 300 * rnd();
+      y[i] = 70 * x[i]! + 200 * ex[i]! - 100 * ez[i]! + 400 * (rnd() - 0.5);
+    }
+    for (const [fitSlope, fitDipole] of [[true, true], [true, false], [false, true]] as const) {
+      const f = fitHubbleFlow({ x, y, ex, ey, ez, sigma }, { sigmaStar: 150, fitDipole, ...(fitSlope ? {} : { fixedSlope: 0 }) });
+      const sums = new HubbleSums();
+      for (let i = 0; i < n; i++) sums.add(x[i]!, y[i]!, ex[i]!, ey[i]!, ez[i]!, 1 / (sigma[i]! ** 2 + 150 ** 2));
+      const s = sums.solve(fitSlope, fitDipole);
+      expect(s.ok).toBe(true);
+      expect(sums.rows).toBe(n);
+      expect(s.params[0]).toBe(fitSlope ? f.slope : 0);
+      for (let c = 0; c < 3; c++) expect(s.params[c + 1]).toBe(f.dipole[c]);
+      expect(Math.abs(s.chi2 - f.chi2)).toBeLessThan(1e-9 * f.chi2);
+    }
   });
 });
