@@ -343,7 +343,7 @@ export function logDistanceFit(
   // The rows offered, packed once with what does not change from step to step (LogRows).
   let m = 0;
   for (let i = 0; i < n; i++) if (used[i] && Number.isFinite(vAB[i]!)) m++;
-  const R: LogRows = { m, ax: new Float64Array(m), ay: new Float64Array(m), az: new Float64Array(m), dc: new Float64Array(m), b2: new Float64Array(m), q0: new Float64Array(m), lnD: new Float64Array(m), f: new Float64Array(m) };
+  const R: LogRows = { m, ax: new Float64Array(m), ay: new Float64Array(m), az: new Float64Array(m), dc: new Float64Array(m), b2: new Float64Array(m), q0: new Float64Array(m), lnD: new Float64Array(m), f: new Float64Array(m), side: new Float64Array(m) };
   const rA2 = o.x * o.x + o.y * o.y + o.z * o.z;
   for (let i = 0, k = 0; i < n; i++) {
     if (!used[i] || !Number.isFinite(vAB[i]!)) continue;
@@ -363,8 +363,9 @@ export function logDistanceFit(
     R.f[k] = Number.isFinite(e) ? e / (opts.h0 * dObs) : 0;
     k++;
   }
-  // After FREEZE_AT steps the set of rows can only shrink (a row whose root comes and goes would
-  // otherwise make a limit cycle).
+  // After FREEZE_AT steps the set of rows can only shrink and each row keeps the root it had then: a row
+  // whose root comes and goes, or a row seen near its closest approach (q near 0, where "the root away
+  // from D_c" changes sides), would otherwise make a limit cycle that never converges.
   const member = new Uint8Array(m).fill(1);
   const inFit = new Uint8Array(m);
   const sums = new HubbleSums();
@@ -378,7 +379,7 @@ export function logDistanceFit(
   const unit = new Float64Array(q);
   let prevNorm = Infinity;
   for (let it = 0; it < MAX_ITER; it++) {
-    logStepSums(R, o, member, inFit, h, d[0], d[1], d[2], opts.sigmaStar * opts.sigmaStar, sums);
+    logStepSums(R, o, member, inFit, h, d[0], d[1], d[2], opts.sigmaStar * opts.sigmaStar, it >= FREEZE_AT, sums);
     if (it + 1 >= FREEZE_AT) member.set(inFit);
     const step = sums.solve(fitH0, fitDipole);
     if (!step.ok) return fail;
@@ -503,7 +504,7 @@ class Anderson {
 /**
  * The rows of the log fit, with the parts of each row's terms that do not depend on (H, d):
  * a = unit line of sight, dc = a . r_A (closest approach), b2 = |r_A|^2 - dc^2, q0 = V_B - a . v_A,
- * lnD = ln D_obs, f = fractional distance error.
+ * lnD = ln D_obs, f = fractional distance error; side is written by logStepSums.
  */
 interface LogRows {
   m: number;
@@ -515,11 +516,14 @@ interface LogRows {
   q0: Float64Array;
   lnD: Float64Array;
   f: Float64Array;
+  /** The root each row takes once frozen: the sign of F'(D_pred), +1 beyond dc, -1 before it. */
+  side: Float64Array;
 }
 
 /**
  * One Gauss-Newton step's normal equations: for each member row at (H, d), the predicted distance
- * D_pred = dc + t, the root of F = H s^2 - (w - d).(D a - r_A) with t = (q + F'(D_pred)) / (2H),
+ * D_pred = dc + t, the root of F = H s^2 - (w - d).(D a - r_A) with t = (q + F'(D_pred)) / (2H) and
+ * F'(D_pred) = +-sqrt(q^2 - 4 H F(dc)), signed as q (the root away from dc) or, once frozen, as side,
  * q = (w - d) . a = q0 - d . a and F(dc) = H b2 - (w - d).p = H b2 + (v_A + d).p, p = dc a - r_A
  * (a . p = 0, so V_B drops out); then s_pred, e_pred, kappa = F'(D_pred) D_pred / s_pred and the row
  * y = -kappa ln(D_obs / D_pred) with error |kappa| f and sigmaStar in quadrature, summed into `sums`.
@@ -535,9 +539,10 @@ function logStepSums(
   d1: number,
   d2: number,
   ss2: number,
+  frozen: boolean,
   sums: HubbleSums,
 ): void {
-  const { ax: AX, ay: AY, az: AZ, dc: DC, b2: B2, q0: Q0, lnD: LND, f: FR } = R;
+  const { ax: AX, ay: AY, az: AZ, dc: DC, b2: B2, q0: Q0, lnD: LND, f: FR, side: SIDE } = R;
   const ox = o.x;
   const oy = o.y;
   const oz = o.z;
@@ -559,9 +564,13 @@ function logStepSums(
     const q = Q0[k]! - (d0 * ax + d1 * ay + d2 * az);
     const c0 = h * B2[k]! + (ux * (dc * ax - ox) + uy * (dc * ay - oy) + uz * (dc * az - oz));
     const disc = q * q - h4 * c0;
-    if (!(disc > 0) || q === 0) continue;
-    const root = Math.sqrt(disc);
-    const fD = q > 0 ? root : -root; // F'(D_pred) = 2 H t - q
+    if (!(disc > 0)) continue;
+    // F'(D_pred) = 2 H t - q: the root away from dc (the sign of q) until frozen, then the same root
+    let sign: number;
+    if (frozen) sign = SIDE[k]!;
+    else if (q === 0) continue;
+    else SIDE[k] = sign = q > 0 ? 1 : -1;
+    const fD = sign * Math.sqrt(disc);
     const dp = dc + (q + fD) * inv2h;
     if (!(dp > 0)) continue;
     const sx = dp * ax - ox;
