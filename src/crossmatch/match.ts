@@ -8,9 +8,9 @@
  * falls back on R alone). Without R, a pair lacking an error is rejected and counted.
  */
 import { ARCSEC } from "../sky/angles.js";
-import { pairsWithin } from "./pairs.js";
+import { blockPairs, degreeBandJobs, degreeBandPairs, mergePairs, type DegreeBandJob } from "./pairs.js";
 import { ambiguity, candidateCounts, scoreCandidates, selectMatches, AMBIGUITY_DELTA, type Candidates, type SelectMode } from "./select.js";
-import { skyPoints, type SkyPoints } from "./zones.js";
+import { positionBlock, skyPoints, type PairList, type SkyPoints } from "./zones.js";
 
 export type JoinMode = "inner" | "left" | "outer";
 export const JOIN_MODES: readonly JoinMode[] = ["inner", "left", "outer"];
@@ -51,16 +51,67 @@ export interface MatchResult {
   /** Rows with a usable position. */
   usableA: number;
   usableB: number;
-  pointsA: SkyPoints;
-  pointsB: SkyPoints;
+  /** Unit vectors of every row (made on first read). */
+  readonly pointsA: SkyPoints;
+  readonly pointsB: SkyPoints;
 }
 
 /** Matches A against B. Throws (plain Error) on an option the kernel cannot use; the CLI checks options first. */
 export function crossMatch(a: MatchSide, b: MatchSide, o: MatchOptions): MatchResult {
-  const pa = skyPoints(a.raDeg, a.decDeg);
-  const pb = skyPoints(b.raDeg, b.decDeg);
   const search = searchRadiusArcsec(a, b, o);
-  const pairs = pairsWithin(pa, pb, search * ARCSEC, { partitions: o.partitions, onProgress: o.onProgress });
+  const blockA = positionBlock(a.raDeg, a.decDeg);
+  const blockB = positionBlock(b.raDeg, b.decDeg);
+  const nA = a.raDeg.length;
+  const pairs = blockPairs(blockA, blockB, nA, search * ARCSEC, { partitions: o.partitions, onProgress: o.onProgress });
+  return finishMatch({ a, b, o, nA, nB: b.raDeg.length, usableA: blockA.length, usableB: blockB.length, search }, pairs);
+}
+
+/** Runs band jobs and returns each band's sorted pairs, in job order (threads.ts runs them on worker threads). */
+export type BandRunner = (jobs: DegreeBandJob[]) => Promise<PairList[]>;
+
+/** The runner that runs every band on this thread, one after another. */
+export const runBandsHere: BandRunner = async (jobs) => jobs.map(degreeBandPairs);
+
+/**
+ * crossMatch with the sky cut into `bands` declination bands handed to `runBands` (e.g. worker
+ * threads). The result is identical to crossMatch's: the pair list is the same whatever the banding.
+ */
+export async function crossMatchBanded(a: MatchSide, b: MatchSide, o: MatchOptions, bands: number, runBands: BandRunner = runBandsHere): Promise<MatchResult> {
+  const search = searchRadiusArcsec(a, b, o);
+  const jobs = degreeBandJobs(float64(a.raDeg), float64(a.decDeg), float64(b.raDeg), float64(b.decDeg), search * ARCSEC, Math.max(bands, Math.floor(o.partitions ?? 1)));
+  const lists = await runBands(jobs);
+  o.onProgress?.(jobs.length, jobs.length);
+  const nA = a.raDeg.length;
+  return finishMatch({ a, b, o, nA, nB: b.raDeg.length, usableA: countUsable(a), usableB: countUsable(b), search }, mergePairs(lists, nA));
+}
+
+function float64(x: ArrayLike<number>): Float64Array {
+  return x instanceof Float64Array ? x : Float64Array.from(x);
+}
+
+/** Rows with a usable position (the test of skyPoints and positionBlock). */
+function countUsable(s: MatchSide): number {
+  let n = 0;
+  for (let i = 0; i < s.raDeg.length; i++) {
+    const d = s.decDeg[i]!;
+    if (Number.isFinite(s.raDeg[i]!) && d >= -90 && d <= 90) n++;
+  }
+  return n;
+}
+
+interface PreparedMatch {
+  a: MatchSide;
+  b: MatchSide;
+  o: MatchOptions;
+  nA: number;
+  nB: number;
+  usableA: number;
+  usableB: number;
+  search: number;
+}
+
+function finishMatch(m: PreparedMatch, pairs: PairList): MatchResult {
+  const { a, b, o, nA, nB } = m;
   const candidates = scoreCandidates(pairs, {
     radiusRad: o.radiusArcsec === undefined ? undefined : o.radiusArcsec * ARCSEC,
     sigmaK: o.sigmaK,
@@ -70,22 +121,27 @@ export function crossMatch(a: MatchSide, b: MatchSide, o: MatchOptions): MatchRe
     vBKmS: b.velocityKmS,
     maxDvKmS: o.maxDvKmS,
   });
-  const nA = pa.length;
-  const nB = pb.length;
   const chosen = selectMatches(candidates, o.select ?? "nearest", nA, nB);
   const amb = ambiguity(candidates, chosen, nA, nB, o.ambiguityDelta ?? AMBIGUITY_DELTA);
+  // unit vectors of every row are only needed by the diagnostics: made on first use
+  let pointsA: SkyPoints | undefined;
+  let pointsB: SkyPoints | undefined;
   return {
     candidates,
     chosen,
     ambiguous: amb,
     nCandidates: candidateCounts(candidates, nA),
-    searchRadiusArcsec: search,
+    searchRadiusArcsec: m.search,
     nA,
     nB,
-    usableA: countUsable(pa),
-    usableB: countUsable(pb),
-    pointsA: pa,
-    pointsB: pb,
+    usableA: m.usableA,
+    usableB: m.usableB,
+    get pointsA() {
+      return (pointsA ??= skyPoints(a.raDeg, a.decDeg));
+    },
+    get pointsB() {
+      return (pointsB ??= skyPoints(b.raDeg, b.decDeg));
+    },
   };
 }
 
@@ -237,10 +293,4 @@ function maxFinite(x: Float64Array | undefined): number {
     if (v > m && Number.isFinite(v)) m = v;
   }
   return m;
-}
-
-function countUsable(p: SkyPoints): number {
-  let n = 0;
-  for (let i = 0; i < p.length; i++) if (p.p[5 * i + 1] === p.p[5 * i + 1]) n++;
-  return n;
 }

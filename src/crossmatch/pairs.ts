@@ -1,9 +1,12 @@
 /**
  * All pairs within a fixed radius between two catalogues (or within one), partition by partition,
  * on the zone engine. This is the single entry point the match, dedupe and diagnostics steps use.
+ * A partition (a declination band with its margin, partitions.ts) is a BandJob: plain typed arrays
+ * in, a sorted PairList out, no shared state, so bands can run one after another here or on worker
+ * threads (threads.ts) and their results merge into the same pair list.
  */
-import { buildZoneIndex, sortQueries, chooseCellRad, makeZoneGrid, occupiedAreaSr, PairBuffer, queryZoneIndex, sortPairs, DEFAULT_ROWS_PER_CELL, type PairList, type SkyPoints } from "./zones.js";
-import { partitionEdges, skyPartitions } from "./partitions.js";
+import { bandBlock, blockOfPoints, buildZoneIndex, sortQueries, chooseCellRad, makeZoneGrid, occupiedAreaSr, PairBuffer, queryZoneIndex, sortPairs, DEFAULT_ROWS_PER_CELL, type PairList, type PositionBlock, type SkyPoints } from "./zones.js";
+import { bandWindow, partitionEdges, skyPartitions } from "./partitions.js";
 
 export interface PairsOptions {
   /** Number of declination bands to process one after another (default 1: the whole sky at once). */
@@ -14,47 +17,140 @@ export interface PairsOptions {
   onProgress?: (done: number, total: number) => void;
 }
 
+/** One unit of work: the owned query rows of a band, the indexed rows of its window, the radius. */
+export interface BandJob {
+  query: PositionBlock;
+  index: PositionBlock;
+  radiusRad: number;
+  /** Rows of the whole query catalogue (the pair sort's key range). */
+  nQueryRows: number;
+  rowsPerCell: number;
+}
+
 /**
  * Every (row of a, row of b) with exact separation <= radiusRad, sorted by a row, then
  * separation, then b row. Rows with NaN positions take part in no pair.
  */
 export function pairsWithin(a: SkyPoints, b: SkyPoints, radiusRad: number, opts: PairsOptions = {}): PairList {
-  if (!(radiusRad >= 0) || !Number.isFinite(radiusRad)) throw new Error(`radius must be a finite angle >= 0 (got ${radiusRad} rad)`);
+  return blockPairs(blockOfPoints(a), blockOfPoints(b), a.length, radiusRad, opts);
+}
+
+/** pairsWithin on position blocks; nA is the number of rows of the query catalogue. */
+export function blockPairs(a: PositionBlock, b: PositionBlock, nA: number, radiusRad: number, opts: PairsOptions = {}): PairList {
+  checkRadius(radiusRad);
   const parts = Math.max(1, Math.floor(opts.partitions ?? 1));
-  const out = new PairBuffer(Math.max(1024, Math.min(a.length, 1 << 22)));
+  const rowsPerCell = opts.rowsPerCell ?? DEFAULT_ROWS_PER_CELL;
   if (parts === 1) {
-    matchBlock(a, b, radiusRad, out, undefined, undefined, opts.rowsPerCell);
+    const out = bandPairs({ query: a, index: b, radiusRad, nQueryRows: nA, rowsPerCell });
     opts.onProgress?.(1, 1);
-  } else {
-    const bands = skyPartitions(a, b, radiusRad, partitionEdges(a, parts));
-    for (const band of bands) {
-      matchBlock(a, b, radiusRad, out, band.queryRows, band.indexRows, opts.rowsPerCell);
-      opts.onProgress?.(band.id + 1, bands.length);
-    }
+    return out;
   }
-  return sortPairs(out.finish(), a.length);
+  const jobs = bandJobs(a, b, nA, radiusRad, parts, rowsPerCell);
+  const lists = jobs.map((job, p) => {
+    const l = bandPairs(job);
+    opts.onProgress?.(p + 1, jobs.length);
+    return l;
+  });
+  return mergePairs(lists, nA);
+}
+
+export function checkRadius(radiusRad: number): void {
+  if (!(radiusRad >= 0) || !Number.isFinite(radiusRad)) throw new Error(`radius must be a finite angle >= 0 (got ${radiusRad} rad)`);
+}
+
+/** The band jobs of a match split into `parts` declination bands of about equal numbers of query rows. */
+export function bandJobs(a: PositionBlock, b: PositionBlock, nA: number, radiusRad: number, parts: number, rowsPerCell = DEFAULT_ROWS_PER_CELL): BandJob[] {
+  return skyPartitions(a, b, radiusRad, partitionEdges(a.decRad, parts)).map((band) => ({ query: band.query, index: band.index, radiusRad, nQueryRows: nA, rowsPerCell }));
+}
+
+/** Runs one band: its pairs, sorted by query row, then separation, then indexed row. */
+export function bandPairs(job: BandJob): PairList {
+  const out = new PairBuffer(Math.max(1024, Math.min(job.query.length, 1 << 22)));
+  matchBlock(job.query, job.index, job.radiusRad, out, job.rowsPerCell);
+  return sortPairs(out.finish(), job.nQueryRows);
 }
 
 /**
- * One block of work: index `indexRows` of b (all when omitted), query `queryRows` of a (all when
- * omitted) in cell order, append pairs to out. A block is what a worker or a remote task runs.
+ * A band of a match given by the catalogues' own positions in degrees (all rows) and the band edges:
+ * the job a worker thread runs on shared arrays, cutting its band out itself (bandBlock).
  */
-export function matchBlock(a: SkyPoints, b: SkyPoints, radiusRad: number, out: PairBuffer, queryRows?: Int32Array, indexRows?: Int32Array, rowsPerCell = DEFAULT_ROWS_PER_CELL): void {
-  const nIndexed = indexRows ? indexRows.length : b.length;
-  if (nIndexed === 0) return;
-  const area = occupiedAreaSr(b, indexRows);
-  const grid = makeZoneGrid(chooseCellRad(radiusRad, nIndexed, area, rowsPerCell));
-  const index = buildZoneIndex(grid, b, indexRows);
-  if (index.length === 0) return;
-  queryZoneIndex(index, sortQueries(grid, a, queryRows), radiusRad, out);
+export interface DegreeBandJob {
+  raA: Float64Array;
+  decA: Float64Array;
+  raB: Float64Array;
+  decB: Float64Array;
+  /** band edges in radians (partitionEdges) */
+  edges: Float64Array;
+  band: number;
+  radiusRad: number;
+  rowsPerCell: number;
+}
+
+/** The jobs of a match over `parts` bands of about equal numbers of A rows. */
+export function degreeBandJobs(raA: Float64Array, decA: Float64Array, raB: Float64Array, decB: Float64Array, radiusRad: number, parts: number, rowsPerCell = DEFAULT_ROWS_PER_CELL): DegreeBandJob[] {
+  checkRadius(radiusRad);
+  const edges = partitionEdges(decA, Math.max(1, Math.floor(parts)), Math.PI / 180);
+  return Array.from({ length: edges.length - 1 }, (_, band) => ({ raA, decA, raB, decB, edges, band, radiusRad, rowsPerCell }));
+}
+
+/** Runs one DegreeBandJob: the band's pairs, sorted as bandPairs sorts them. */
+export function degreeBandPairs(job: DegreeBandJob): PairList {
+  const w = bandWindow(job.edges, job.band, job.radiusRad);
+  const query = bandBlock(job.raA, job.decA, w.qLo, w.qHi, w.qHiInclusive);
+  const index = bandBlock(job.raB, job.decB, w.bLo, w.bHi, true);
+  return bandPairs({ query, index, radiusRad: job.radiusRad, nQueryRows: job.raA.length, rowsPerCell: job.rowsPerCell });
+}
+
+/**
+ * One block of work: index the block `index`, query the block `query` in cell order, append pairs
+ * (catalogue rows) to out.
+ */
+export function matchBlock(query: PositionBlock, index: PositionBlock, radiusRad: number, out: PairBuffer, rowsPerCell = DEFAULT_ROWS_PER_CELL): void {
+  if (index.length === 0 || query.length === 0) return;
+  const area = occupiedAreaSr(index);
+  const grid = makeZoneGrid(chooseCellRad(radiusRad, index.length, area, rowsPerCell));
+  queryZoneIndex(buildZoneIndex(grid, index), sortQueries(grid, query), radiusRad, out);
+}
+
+/**
+ * Pair lists of disjoint sets of query rows, each sorted by query row, merged into one sorted list:
+ * a counting pass over the query rows places each row's run (runs keep their own order).
+ */
+export function mergePairs(lists: PairList[], nQueryRows: number): PairList {
+  if (lists.length === 1) return lists[0]!;
+  let n = 0;
+  for (const l of lists) n += l.length;
+  const start = new Int32Array(nQueryRows + 1);
+  for (const l of lists) for (let k = 0; k < l.length; k++) start[l.a[k]! + 1]!++;
+  for (let i = 0; i < nQueryRows; i++) start[i + 1]! += start[i]!;
+  const a = new Int32Array(n);
+  const b = new Int32Array(n);
+  const s = new Float64Array(n);
+  for (const l of lists) {
+    let t = -1;
+    let prev = -1;
+    for (let k = 0; k < l.length; k++) {
+      const i = l.a[k]!;
+      if (i !== prev) {
+        t = start[i]!;
+        prev = i;
+      }
+      a[t] = i;
+      b[t] = l.b[k]!;
+      s[t] = l.sepRad[k]!;
+      t++;
+    }
+  }
+  return { a, b, sepRad: s, length: n };
 }
 
 /** For each row of a, the number of rows of b within radiusRad (NaN rows: 0). */
 export function countWithin(a: SkyPoints, b: SkyPoints, radiusRad: number, rowsPerCell = DEFAULT_ROWS_PER_CELL): Int32Array {
   const counts = new Int32Array(a.length);
   if (b.length === 0 || a.length === 0) return counts;
-  const grid = makeZoneGrid(chooseCellRad(radiusRad / 2, b.length, occupiedAreaSr(b), rowsPerCell));
-  const index = buildZoneIndex(grid, b);
-  queryZoneIndex(index, sortQueries(grid, a), radiusRad, counts);
+  const bb = blockOfPoints(b);
+  if (bb.length === 0) return counts;
+  const grid = makeZoneGrid(chooseCellRad(radiusRad / 2, bb.length, occupiedAreaSr(bb), rowsPerCell));
+  queryZoneIndex(buildZoneIndex(grid, bb), sortQueries(grid, blockOfPoints(a)), radiusRad, counts);
   return counts;
 }

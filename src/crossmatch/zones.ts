@@ -76,18 +76,27 @@ export function chooseCellRad(radiusRad: number, nIndexed: number, areaSr: numbe
  * Area (steradians) occupied by positions, on a 1 x 1 degree grid of (RA, Dec) boxes: the sum of the
  * areas of the boxes holding at least one row. Used to size the grid for surveys that cover part of the sky.
  */
-export function occupiedAreaSr(pts: SkyPoints, rows?: Int32Array): number {
+export function occupiedAreaSr(pts: SkyPoints | PositionBlock, rows?: Int32Array): number {
   const seen = new Uint8Array(360 * 180);
-  const n = rows ? rows.length : pts.length;
-  const p = pts.p;
-  for (let k = 0; k < n; k++) {
-    const i = rows ? rows[k]! : k;
-    const r = p[5 * i]!;
-    const d = p[5 * i + 1]!;
-    if (r !== r || d !== d) continue;
-    const zr = Math.min(179, Math.max(0, Math.floor((d / DEG) + 90)));
+  const mark = (r: number, d: number) => {
+    const zr = Math.min(179, Math.max(0, Math.floor(d / DEG + 90)));
     const cr = Math.min(359, Math.max(0, Math.floor(r / DEG)));
     seen[zr * 360 + cr] = 1;
+  };
+  if ("p" in pts) {
+    const n = rows ? rows.length : pts.length;
+    const p = pts.p;
+    for (let k = 0; k < n; k++) {
+      const i = rows ? rows[k]! : k;
+      const r = p[5 * i]!;
+      const d = p[5 * i + 1]!;
+      if (r !== r || d !== d) continue;
+      mark(r, d);
+    }
+  } else {
+    const ra = pts.raRad;
+    const dec = pts.decRad;
+    for (let k = 0; k < pts.length; k++) mark(ra[k]!, dec[k]!);
   }
   let area = 0;
   for (let z = 0; z < 180; z++) {
@@ -132,12 +141,20 @@ export function decOf(pts: SkyPoints, i: number): number {
   return pts.p[5 * i + 1]!;
 }
 
+/** RA in degrees to radians in [0, 2 pi) (fmod only for RA outside [0, 360)); the caller checks finiteness. */
+function raRadOfDeg(rd: number): number {
+  let r = (rd >= 0 && rd < 360 ? rd : rd % 360) * DEG;
+  if (r < 0) r += TWO_PI;
+  if (r >= TWO_PI) r -= TWO_PI;
+  return r;
+}
+const TWO_PI = 2 * Math.PI;
+
 /** Positions in degrees to SkyPoints. A row with NaN, infinite RA or |Dec| > 90 becomes NaN (never matched). */
 export function skyPoints(raDeg: ArrayLike<number>, decDeg: ArrayLike<number>): SkyPoints {
   if (raDeg.length !== decDeg.length) throw new Error(`raDeg has ${raDeg.length} values but decDeg has ${decDeg.length}`);
   const n = raDeg.length;
   const p = new Float64Array(5 * n);
-  const TWO_PI = 2 * Math.PI;
   for (let i = 0; i < n; i++) {
     const rd = raDeg[i]!;
     const dd = decDeg[i]!;
@@ -145,9 +162,7 @@ export function skyPoints(raDeg: ArrayLike<number>, decDeg: ArrayLike<number>): 
       p.fill(NaN, 5 * i, 5 * i + 5);
       continue;
     }
-    let r = (rd >= 0 && rd < 360 ? rd : rd % 360) * DEG; // fmod only for RA outside [0, 360)
-    if (r < 0) r += TWO_PI;
-    if (r >= TWO_PI) r -= TWO_PI;
+    const r = raRadOfDeg(rd);
     const d = dd * DEG;
     const c = Math.cos(d);
     p[5 * i] = r;
@@ -157,6 +172,69 @@ export function skyPoints(raDeg: ArrayLike<number>, decDeg: ArrayLike<number>): 
     p[5 * i + 4] = Math.sin(d);
   }
   return { p, length: n };
+}
+
+/**
+ * The rows of a catalogue that have a usable position, compact: row[k] is the catalogue row of entry
+ * k, raRad in [0, 2 pi) and decRad its position (the same numbers SkyPoints holds). This is what the
+ * engine indexes and queries, and what a sky partition hands to a worker (plain typed arrays).
+ */
+export interface PositionBlock {
+  row: Int32Array;
+  raRad: Float64Array;
+  decRad: Float64Array;
+  length: number;
+}
+
+/** The usable rows of positions in degrees (same test and normalisation as skyPoints), in row order. */
+export function positionBlock(raDeg: ArrayLike<number>, decDeg: ArrayLike<number>): PositionBlock {
+  return bandBlock(raDeg, decDeg, -Infinity, Infinity, true);
+}
+
+/**
+ * The usable rows of positions in degrees whose Dec (radians) lies in [loRad, hiRad) (or [loRad,
+ * hiRad] with hiInclusive): one sky partition's rows (partitions.ts), read straight from the
+ * catalogue's columns, so a worker thread can cut its own band out of shared arrays.
+ */
+export function bandBlock(raDeg: ArrayLike<number>, decDeg: ArrayLike<number>, loRad: number, hiRad: number, hiInclusive: boolean): PositionBlock {
+  if (raDeg.length !== decDeg.length) throw new Error(`raDeg has ${raDeg.length} values but decDeg has ${decDeg.length}`);
+  const n = raDeg.length;
+  const row = new Int32Array(n);
+  const ra = new Float64Array(n);
+  const dec = new Float64Array(n);
+  let m = 0;
+  for (let i = 0; i < n; i++) {
+    const rd = raDeg[i]!;
+    const dd = decDeg[i]!;
+    if (!Number.isFinite(rd) || !(dd >= -90 && dd <= 90)) continue;
+    const d = dd * DEG;
+    if (!(d >= loRad && (d < hiRad || (hiInclusive && d <= hiRad)))) continue;
+    row[m] = i;
+    ra[m] = raRadOfDeg(rd);
+    dec[m] = d;
+    m++;
+  }
+  return m === n ? { row, raRad: ra, decRad: dec, length: m } : { row: row.slice(0, m), raRad: ra.slice(0, m), decRad: dec.slice(0, m), length: m };
+}
+
+/** The usable rows of SkyPoints (all, or the subset `rows`) as a block, in the given order. */
+export function blockOfPoints(pts: SkyPoints, rows?: Int32Array): PositionBlock {
+  const n = rows ? rows.length : pts.length;
+  const p = pts.p;
+  const row = new Int32Array(n);
+  const ra = new Float64Array(n);
+  const dec = new Float64Array(n);
+  let m = 0;
+  for (let k = 0; k < n; k++) {
+    const i = rows ? rows[k]! : k;
+    const d = p[5 * i + 1]!;
+    if (d !== d) continue;
+    row[m] = i;
+    ra[m] = p[5 * i]!;
+    dec[m] = d;
+    m++;
+  }
+  return { row: row.subarray(0, m), raRad: ra.subarray(0, m), decRad: dec.subarray(0, m), length: m };
 }
 
 /** A catalogue indexed on a grid: rows in cell order with their unit vectors copied in that order. */
@@ -172,48 +250,124 @@ export interface ZoneIndex {
   length: number;
 }
 
-/** Counting sort of rows (all, or the subset `rows`) into cell order. Rows with NaN positions are left out. */
-export function cellOrder(grid: ZoneGrid, pts: SkyPoints, rows?: Int32Array): { order: Int32Array; cellStart: Int32Array } {
-  const nCells = grid.zoneBase[grid.nZones]!;
-  const count = new Int32Array(nCells + 1);
-  const m = rows ? rows.length : pts.length;
-  const cell = new Int32Array(m);
-  let kept = 0;
-  for (let k = 0; k < m; k++) {
-    const i = rows ? rows[k]! : k;
-    const c = cellOf(grid, pts.p[5 * i]!, pts.p[5 * i + 1]!);
-    cell[k] = c;
-    if (c >= 0) {
-      count[c + 1]!++;
-      kept++;
-    }
-  }
-  for (let c = 0; c < nCells; c++) count[c + 1]! += count[c]!;
-  const cellStart = count.slice();
-  const order = new Int32Array(kept);
-  for (let k = 0; k < m; k++) {
-    const c = cell[k]!;
-    if (c >= 0) order[count[c]!++] = rows ? rows[k]! : k;
-  }
-  return { order, cellStart };
+/** Block entries in zone or cell order (stable): their cells, rows and positions, moved together. */
+interface CellSorted {
+  cell: Int32Array;
+  row: Int32Array;
+  ra: Float64Array;
+  dec: Float64Array;
+  /** zoneStart[z] .. zoneStart[z + 1]: the entries in zone z */
+  zoneStart: Int32Array;
 }
 
-/** Builds the index of `pts` (or of the subset `rows`) on `grid`. */
-export function buildZoneIndex(grid: ZoneGrid, pts: SkyPoints, rows?: Int32Array): ZoneIndex {
-  const { order, cellStart } = cellOrder(grid, pts, rows);
-  const n = order.length;
-  const xyz = new Float64Array(3 * n);
-  const src = pts.p;
+/**
+ * Sorts a block by zone (a stable counting pass: it writes to one place per zone, where a counting
+ * sort into ~1e5 cells writes at random), carrying cell, row and position along; with `cells`, each
+ * zone's run is then counting-sorted by cell in place of its own, a few thousand entries that stay in
+ * cache. Without `cells` the order within a zone is the block's (enough for queries: consecutive
+ * queries then read the same few zones of the index).
+ */
+function zoneSort(grid: ZoneGrid, blk: PositionBlock, cells: boolean): CellSorted {
+  const n = blk.length;
+  const { nZones, nRa, raScale, zoneBase, zoneHeightRad } = grid;
+  const invH = 1 / zoneHeightRad;
+  const HALF_PI = Math.PI / 2;
+  const ra = blk.raRad;
+  const dec = blk.decRad;
+  const row = blk.row;
+  const cellIn = new Int32Array(n);
+  const zoneIn = new Int32Array(n);
+  const zoneStart = new Int32Array(nZones + 1);
   for (let k = 0; k < n; k++) {
-    const i = order[k]!;
-    xyz[3 * k] = src[5 * i + 2]!;
-    xyz[3 * k + 1] = src[5 * i + 3]!;
-    xyz[3 * k + 2] = src[5 * i + 4]!;
+    // cellOf, inlined (the block holds usable positions only)
+    let z = Math.floor((dec[k]! + HALF_PI) * invH);
+    if (z < 0) z = 0;
+    else if (z >= nZones) z = nZones - 1;
+    const m = nRa[z]!;
+    let c = Math.floor(ra[k]! * raScale[z]!);
+    if (c < 0) c = 0;
+    else if (c >= m) c = m - 1;
+    cellIn[k] = zoneBase[z]! + c;
+    zoneIn[k] = z;
+    zoneStart[z + 1]!++;
   }
-  return { grid, rowOf: order, cellStart, xyz, length: n };
+  for (let z = 0; z < nZones; z++) zoneStart[z + 1]! += zoneStart[z]!;
+  const fill = zoneStart.slice(0, nZones);
+  const cell = new Int32Array(n);
+  const rowOut = new Int32Array(n);
+  const raOut = new Float64Array(n);
+  const decOut = new Float64Array(n);
+  for (let k = 0; k < n; k++) {
+    const t = fill[zoneIn[k]!]!++;
+    cell[t] = cellIn[k]!;
+    rowOut[t] = row[k]!;
+    raOut[t] = ra[k]!;
+    decOut[t] = dec[k]!;
+  }
+  const out: CellSorted = { cell, row: rowOut, ra: raOut, dec: decOut, zoneStart };
+  if (!cells) return out;
+  // within each zone, by cell: scatter the zone's run into the scratch arrays, then copy it back
+  let maxRun = 0;
+  for (let z = 0; z < nZones; z++) maxRun = Math.max(maxRun, zoneStart[z + 1]! - zoneStart[z]!);
+  let maxCells = 0;
+  for (let z = 0; z < nZones; z++) maxCells = Math.max(maxCells, nRa[z]!);
+  const count = new Int32Array(maxCells + 1);
+  const c2 = cellIn.subarray(0, maxRun);
+  const r2 = zoneIn.subarray(0, maxRun);
+  const ra2 = new Float64Array(maxRun);
+  const de2 = new Float64Array(maxRun);
+  for (let z = 0; z < nZones; z++) {
+    const lo = zoneStart[z]!;
+    const hi = zoneStart[z + 1]!;
+    if (hi - lo < 2) continue;
+    const base = zoneBase[z]!;
+    const m = nRa[z]!;
+    count.fill(0, 0, m + 1);
+    for (let k = lo; k < hi; k++) count[cell[k]! - base + 1]!++;
+    for (let c = 0; c < m; c++) count[c + 1]! += count[c]!;
+    for (let k = lo; k < hi; k++) {
+      const cc = cell[k]!;
+      const t = count[cc - base]!++;
+      c2[t] = cc;
+      r2[t] = rowOut[k]!;
+      ra2[t] = raOut[k]!;
+      de2[t] = decOut[k]!;
+    }
+    const len = hi - lo;
+    cell.set(c2.subarray(0, len), lo);
+    rowOut.set(r2.subarray(0, len), lo);
+    raOut.set(ra2.subarray(0, len), lo);
+    decOut.set(de2.subarray(0, len), lo);
+  }
+  return out;
 }
 
-/** Query points gathered into cell order, so that a sweep over them reads memory in order. */
+/** Builds the index of a block on `grid`: rows sorted into cell order, unit vectors computed in that order. */
+export function buildZoneIndex(grid: ZoneGrid, blk: PositionBlock): ZoneIndex {
+  const s = zoneSort(grid, blk, true);
+  const n = blk.length;
+  const nCells = grid.zoneBase[grid.nZones]!;
+  const xyz = new Float64Array(3 * n);
+  for (let k = 0; k < n; k++) {
+    const r = s.ra[k]!;
+    const d = s.dec[k]!;
+    const c = Math.cos(d);
+    xyz[3 * k] = c * Math.cos(r);
+    xyz[3 * k + 1] = c * Math.sin(r);
+    xyz[3 * k + 2] = Math.sin(d);
+  }
+  const cellStart = new Int32Array(nCells + 1);
+  const cs = s.cell;
+  let k = 0;
+  for (let c = 0; c < nCells; c++) {
+    cellStart[c] = k;
+    while (k < n && cs[k] === c) k++;
+  }
+  cellStart[nCells] = n;
+  return { grid, rowOf: s.row, cellStart, xyz, length: n };
+}
+
+/** Query points gathered into zone order, so that consecutive queries read the same few zones of the index. */
 export interface SortedQueries {
   /** sorted position -> query row */
   rowOf: Int32Array;
@@ -222,22 +376,23 @@ export interface SortedQueries {
   length: number;
 }
 
-/** Gathers the query rows (all, or `rows`) with finite positions into the grid's cell order. */
-export function sortQueries(grid: ZoneGrid, q: SkyPoints, rows?: Int32Array): SortedQueries {
-  const { order } = cellOrder(grid, q, rows);
-  const n = order.length;
+/** The query block in the grid's zone order, with unit vectors computed in that order. */
+export function sortQueries(grid: ZoneGrid, blk: PositionBlock): SortedQueries {
+  const s = zoneSort(grid, blk, false);
+  const n = blk.length;
   const p = new Float64Array(5 * n);
-  const src = q.p;
   for (let k = 0; k < n; k++) {
-    const i = 5 * order[k]!;
+    const r = s.ra[k]!;
+    const d = s.dec[k]!;
+    const c = Math.cos(d);
     const o = 5 * k;
-    p[o] = src[i]!;
-    p[o + 1] = src[i + 1]!;
-    p[o + 2] = src[i + 2]!;
-    p[o + 3] = src[i + 3]!;
-    p[o + 4] = src[i + 4]!;
+    p[o] = r;
+    p[o + 1] = d;
+    p[o + 2] = c * Math.cos(r);
+    p[o + 3] = c * Math.sin(r);
+    p[o + 4] = Math.sin(d);
   }
-  return { rowOf: order, p, length: n };
+  return { rowOf: s.row, p, length: n };
 }
 
 /** Pairs found by a query: parallel arrays, `length` of them used. */
@@ -402,46 +557,64 @@ export function queryZoneIndex(index: ZoneIndex, q: SortedQueries, radiusRad: nu
 }
 
 /**
- * Sorts pairs by query row, then separation, then indexed row (counting sort on the query row,
- * insertion sort inside each row's short run). Returns a new PairList.
+ * Sorts pairs by query row, then separation, then indexed row: a stable radix sort on the query row
+ * (one counting pass below 2^12 rows, two above; pairs arrive in cell order, so a single counting
+ * sort over all rows would write at random), then an insertion sort inside each row's short run.
+ * Returns a new PairList.
  */
 export function sortPairs(p: PairList, nQueryRows: number): PairList {
   const n = p.length;
-  const start = new Int32Array(nQueryRows + 1);
-  for (let k = 0; k < n; k++) start[p.a[k]! + 1]!++;
-  for (let i = 0; i < nQueryRows; i++) start[i + 1]! += start[i]!;
-  const fill = start.slice(0, nQueryRows);
+  let bits = 1;
+  while (bits < 31 && 1 << bits < nQueryRows) bits++;
   const a = new Int32Array(n);
   const b = new Int32Array(n);
   const s = new Float64Array(n);
-  for (let k = 0; k < n; k++) {
-    const i = p.a[k]!;
-    const t = fill[i]!++;
-    a[t] = i;
-    b[t] = p.b[k]!;
-    s[t] = p.sepRad[k]!;
+  if (bits <= 12) pairScatter(0, (1 << bits) - 1, p.a, p.b, p.sepRad, a, b, s, n);
+  else {
+    const lo = bits >> 1;
+    const ta = new Int32Array(n);
+    const tb = new Int32Array(n);
+    const ts = new Float64Array(n);
+    pairScatter(0, (1 << lo) - 1, p.a, p.b, p.sepRad, ta, tb, ts, n);
+    pairScatter(lo, (1 << (bits - lo)) - 1, ta, tb, ts, a, b, s, n);
   }
-  for (let i = 0; i < nQueryRows; i++) {
-    const lo = start[i]!;
-    const hi = start[i + 1]!;
-    if (hi - lo > 32) {
-      sortRunBySep(b, s, lo, hi);
-      continue;
-    }
-    for (let t = lo + 1; t < hi; t++) {
-      const bt = b[t]!;
-      const st = s[t]!;
-      let u = t - 1;
-      while (u >= lo && (s[u]! > st || (s[u] === st && b[u]! > bt))) {
-        b[u + 1] = b[u]!;
-        s[u + 1] = s[u]!;
-        u--;
+  let lo = 0;
+  while (lo < n) {
+    const ai = a[lo]!;
+    let hi = lo + 1;
+    while (hi < n && a[hi] === ai) hi++;
+    if (hi - lo > 32) sortRunBySep(b, s, lo, hi);
+    else {
+      for (let t = lo + 1; t < hi; t++) {
+        const bt = b[t]!;
+        const st = s[t]!;
+        let u = t - 1;
+        while (u >= lo && (s[u]! > st || (s[u] === st && b[u]! > bt))) {
+          b[u + 1] = b[u]!;
+          s[u + 1] = s[u]!;
+          u--;
+        }
+        b[u + 1] = bt;
+        s[u + 1] = st;
       }
-      b[u + 1] = bt;
-      s[u + 1] = st;
     }
+    lo = hi;
   }
   return { a, b, sepRad: s, length: n };
+}
+
+/** One stable counting pass of pairs on digit (a >> shift) & mask. */
+function pairScatter(shift: number, mask: number, sa: Int32Array, sb: Int32Array, ss: Float64Array, da: Int32Array, db: Int32Array, ds: Float64Array, n: number): void {
+  const count = new Int32Array(mask + 2);
+  for (let k = 0; k < n; k++) count[((sa[k]! >> shift) & mask) + 1]!++;
+  for (let d = 0; d <= mask; d++) count[d + 1]! += count[d]!;
+  for (let k = 0; k < n; k++) {
+    const x = sa[k]!;
+    const t = count[(x >> shift) & mask]!++;
+    da[t] = x;
+    db[t] = sb[k]!;
+    ds[t] = ss[k]!;
+  }
 }
 
 /** Sorts b[lo..hi) and s[lo..hi) together by (s, b): for the long runs of crowded fields. */

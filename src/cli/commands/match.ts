@@ -9,11 +9,18 @@ import { usageError } from "../../errors.js";
 import { CATALOGUE_FLAGS, CATALOGUE_FLAGS_HELP, loadForCommand, parseCatalogueFlags } from "../catalogue-flags.js";
 import { assertNotSameFile, writeFileAtomic, writeTable } from "../../catalogue/io.js";
 import { parseAngleArcsec } from "../../crossmatch/radius.js";
-import { crossMatch, joinRows, matchCounts, JOIN_MODES, type JoinMode, type MatchOptions } from "../../crossmatch/match.js";
+import { availableParallelism } from "node:os";
+import { crossMatchBanded, joinRows, matchCounts, JOIN_MODES, type JoinMode, type MatchOptions } from "../../crossmatch/match.js";
+import { BandPool } from "../../crossmatch/threads.js";
 import { AMBIGUITY_DELTA, SELECT_MODES, type SelectMode } from "../../crossmatch/select.js";
 import { sideExtras } from "../../crossmatch/inputs.js";
 import { matchTable } from "../../crossmatch/output.js";
 import { chancePairs, separationHistogram, suggestRadius } from "../../crossmatch/diagnostics.js";
+
+/** Most threads used when --threads is not given. */
+const MAX_DEFAULT_THREADS = 2;
+/** Below this many rows (A + B) the bands run on this thread: a worker's start-up costs more than it saves. */
+const THREADS_MIN_ROWS = 100_000;
 
 const help = `usage: peculiar match A B -o OUT (--radius R | --sigma K) [options]
 
@@ -43,7 +50,9 @@ options:
   --report FILE.json     write counts, the separation histogram, the expected chance pairs and a
                          suggested radius (Rayleigh core plus flat background fit) to FILE.json;
                          the chance estimate and the suggestion also go to stderr
-  --partitions N         process the sky as N declination bands one after another (default 1)
+  --partitions N         process the sky as N declination bands (default: one per thread)
+  --threads N            threads to match on, this one included (default: the cores, at most ${MAX_DEFAULT_THREADS});
+                         catalogues under ${THREADS_MIN_ROWS} rows in all are matched on one thread
 ${CATALOGUE_FLAGS_HELP}
   -q, --quiet            no summary on stderr
 
@@ -86,6 +95,7 @@ const command: Command = {
         ambiguity: { type: "string" },
         report: { type: "string" },
         partitions: { type: "string" },
+        threads: { type: "string" },
       },
       "match",
     );
@@ -107,6 +117,9 @@ const command: Command = {
     const join = oneOf<JoinMode>(values.join, JOIN_MODES, "join", "inner");
     const ambiguityDelta = numberFlag(values.ambiguity, "ambiguity", AMBIGUITY_DELTA, (x) => x >= 0, "a number >= 0");
     const partitions = numberFlag(values.partitions, "partitions", 1, (x) => Number.isInteger(x) && x >= 1 && x <= 4096, "an integer 1..4096");
+    const threads = numberFlag(values.threads, "threads", Math.min(MAX_DEFAULT_THREADS, availableParallelism()), (x) => Number.isInteger(x) && x >= 1 && x <= 256, "an integer 1..256");
+    // workers start now, so that their start-up overlaps the reading of the catalogues
+    const pool = threads > 1 ? new BandPool(threads) : undefined;
     let aliasA = stem(pathA);
     let aliasB = stem(pathB);
     if (values.alias !== undefined) {
@@ -162,9 +175,12 @@ const command: Command = {
     const sideB = { raDeg: catB.raDeg, decDeg: catB.decDeg, posErrArcsec: xb.posErrArcsec, velocityKmS: xb.velocityKmS };
     let result;
     try {
-      result = crossMatch(sideA, sideB, opts);
+      const useThreads = pool !== undefined && pool.size > 0 && catA.raDeg.length + catB.raDeg.length >= THREADS_MIN_ROWS;
+      result = await crossMatchBanded(sideA, sideB, opts, useThreads ? threads : 1, useThreads ? pool.run : undefined);
     } catch (e) {
       throw usageError(e instanceof Error ? e.message : String(e));
+    } finally {
+      void pool?.close();
     }
     if (radiusArcsec === undefined) io.note(`match: search radius ${result.searchRadiusArcsec.toPrecision(4)} arcsec (--sigma ${sigmaK} times the largest combined error)`);
     const rows = joinRows(result, join);
