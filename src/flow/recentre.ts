@@ -16,7 +16,7 @@
  * cos lambda = n_B . e_AB, which assumes B moves relative to A only along e_AB; rows with
  * |cos lambda| < minCosLambda are not used.
  * Both give v_AB = H0 s exactly in a pure Hubble flow. The Hubble law is fitted as seen from the origin
- * jointly with a dipole (fitHubbleFlow): the origin's own peculiar velocity u_A appears as a dipole -u_A,
+ * jointly with a dipole (the normal equations of fitHubbleFlow, HubbleSums): the origin's own peculiar velocity u_A appears as a dipole -u_A,
  * and a fit of H0 alone would alias it into H0 because a survey is lopsided as seen from anywhere but us.
  * Errors: a distance error of B moves s by delta D cos lambda while v_AB stays (to first order), so the
  * per-row error is vrErr |cos lambda| (minor form) or vrErr (major form), plus sigmaStar in quadrature.
@@ -27,7 +27,7 @@
  * Browser-safe.
  */
 import { quickselect } from "d3-array";
-import { fitHubbleFlow, HubbleSums, invertSymmetric } from "./hubble.js";
+import { HubbleSums, invertSymmetric } from "./hubble.js";
 
 export interface RecentrePoints {
   x: Float64Array;
@@ -145,11 +145,14 @@ export function recentre(points: RecentrePoints, origin: RecentreOrigin, opts: R
   const s = new Float64Array(n);
   const vAB = new Float64Array(n);
   const cosL = new Float64Array(n);
-  const ex = new Float64Array(n);
-  const ey = new Float64Array(n);
-  const ez = new Float64Array(n);
-  const sig = new Float64Array(n);
   const used = new Uint8Array(n);
+  const fitH0 = opts.fitH0 ?? true;
+  const sigmaStar = opts.sigmaStar ?? 250;
+  const fitDipole = opts.fitDipole ?? true;
+  const ss2 = sigmaStar * sigmaStar;
+  // the linear fit's normal equations (fitHubbleFlow's, with the slope held at h0 when fitH0 is false),
+  // summed as the rows are made: v_AB = H s + d . e_AB, error sigma_i and sigmaStar in quadrature
+  const sums = new HubbleSums();
   for (let i = 0; i < n; i++) {
     const dx = x[i]! - ox;
     const dy = y[i]! - oy;
@@ -158,10 +161,6 @@ export function recentre(points: RecentrePoints, origin: RecentreOrigin, opts: R
     s[i] = si;
     vAB[i] = NaN;
     cosL[i] = NaN;
-    ex[i] = NaN;
-    ey[i] = NaN;
-    ez[i] = NaN;
-    sig[i] = NaN;
     if (i === o.index || !(si > 0) || !Number.isFinite(vr[i]!)) continue;
     if (use && !use[i]) continue;
     const ux = dx / si;
@@ -189,27 +188,21 @@ export function recentre(points: RecentrePoints, origin: RecentreOrigin, opts: R
     const sg = form === "major" ? e : e * Math.abs(cl);
     if (!Number.isFinite(v) || !Number.isFinite(sg)) continue;
     vAB[i] = v;
-    ex[i] = ux;
-    ey[i] = uy;
-    ez[i] = uz;
-    sig[i] = sg;
-    if (si <= maxD && si >= minD) used[i] = 1;
+    if (!(si <= maxD && si >= minD)) continue;
+    used[i] = 1;
+    const v2 = sg * sg + ss2;
+    sums.add(si, v - (fitH0 ? 0 : opts.h0 * si), ux, uy, uz, v2 > 0 ? 1 / v2 : 1);
   }
-  const fitH0 = opts.fitH0 ?? true;
-  const sigmaStar = opts.sigmaStar ?? 250;
-  const fitDipole = opts.fitDipole ?? true;
-  const linearFit = fitHubbleFlow(
-    { x: s, y: vAB, ex, ey, ez, sigma: sig, use: used },
-    { sigmaStar, fitDipole, ...(fitH0 ? {} : { fixedSlope: opts.h0 }) },
-  );
-  let h = linearFit.slope;
-  let d: [number, number, number] = linearFit.dipole;
+  const linearFit = sums.solve(fitH0, fitDipole);
+  const errOf = (k: number) => (linearFit.ok ? Math.sqrt(linearFit.cov[k * 5]!) : NaN);
+  let h = fitH0 ? linearFit.params[0]! : opts.h0;
+  let d: [number, number, number] = [linearFit.params[1]!, linearFit.params[2]!, linearFit.params[3]!];
   let cov = linearFit.cov;
-  let hErr = linearFit.slopeErr;
-  let dErr = linearFit.dipoleErr;
+  let hErr = fitH0 ? errOf(0) : 0;
+  let dErr: [number, number, number] = fitDipole ? [errOf(1), errOf(2), errOf(3)] : [0, 0, 0];
   let chi2 = linearFit.chi2;
-  let dof = linearFit.dof;
-  let nUsed = linearFit.nUsed;
+  let dof = sums.rows - linearFit.nParams;
+  let nUsed = sums.rows;
   let fitSteps = 0;
   const estimator = form === "minor" ? chooseEstimator(opts.estimator ?? "auto", vrErr, used, sigmaStar) : "linear";
   if (estimator === "log" && linearFit.ok) {
@@ -231,7 +224,11 @@ export function recentre(points: RecentrePoints, origin: RecentreOrigin, opts: R
   let nR = 0;
   for (let i = 0; i < n; i++) {
     if (!used[i]) continue;
-    const r = vAB[i]! - h * s[i]! - d[0] * ex[i]! - d[1] * ey[i]! - d[2] * ez[i]!;
+    const si = s[i]!;
+    const ux = (x[i]! - ox) / si;
+    const uy = (y[i]! - oy) / si;
+    const uz = (z[i]! - oz) / si;
+    const r = vAB[i]! - h * si - d[0] * ux - d[1] * uy - d[2] * uz;
     if (!Number.isFinite(r)) continue;
     sumR2 += r * r;
     nR++;
