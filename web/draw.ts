@@ -15,16 +15,21 @@ interface Layer {
   img: ImageData;
   buf: Uint32Array;
 }
-let layer: Layer | null = null;
+/** One layer per canvas size in use (the panels differ in size; re-making a layer per draw is slow). */
+const layers = new Map<string, Layer>();
 
 function layerFor(w: number, h: number): Layer {
-  if (layer && layer.img.width === w && layer.img.height === h) return layer;
+  const key = `${w}x${h}`;
+  let layer = layers.get(key);
+  if (layer) return layer;
+  if (layers.size >= 8) layers.clear(); // sizes left behind by window resizes
   const canvas = document.createElement("canvas");
   canvas.width = w;
   canvas.height = h;
   const ctx = canvas.getContext("2d")!;
   const img = ctx.createImageData(w, h);
   layer = { canvas, ctx, img, buf: new Uint32Array(img.data.buffer) };
+  layers.set(key, layer);
   return layer;
 }
 
@@ -43,8 +48,8 @@ function pixelOf(colour: string): number {
 /**
  * Draws the rows of `bins` at (px, py) as squares of half-size r (CSS px); returns how many had a
  * position. The squares are written into a pixel buffer and composited onto the canvas in one
- * drawImage (honouring its clip and `alpha`): one fillRect per point is ten times slower in a
- * software-rendered canvas at 1e5 points.
+ * drawImage (honouring its clip and `alpha`) of the rectangle they cover: one fillRect per point is
+ * ten times slower in a software-rendered canvas at 1e5 points.
  */
 export function drawBinnedPoints(
   ctx: CanvasRenderingContext2D,
@@ -61,7 +66,14 @@ export function drawBinnedPoints(
   const L = layerFor(W, H);
   const buf = L.buf;
   const size = Math.max(1, Math.round(2 * r * k));
+  const ox = t.e - r * k;
+  const oy = t.f - r * k;
   let drawn = 0;
+  // the pixel rows and columns written, so that only they are cleared, uploaded and composited
+  let bx0 = W;
+  let by0 = H;
+  let bx1 = 0;
+  let by1 = 0;
   // Unknown values (bin N_BINS) first, so galaxies with a measured velocity are drawn over them.
   for (let j = 0; j <= N_BINS; j++) {
     const b = j === 0 ? N_BINS : j - 1;
@@ -75,20 +87,32 @@ export function drawBinnedPoints(
       const y = py[i]!;
       if (x !== x || y !== y) continue;
       drawn++;
-      const x0 = Math.max(0, Math.round((x - r) * k + t.e));
-      const y0 = Math.max(0, Math.round((y - r) * k + t.f));
+      const x0 = Math.max(0, Math.round(x * k + ox));
+      const y0 = Math.max(0, Math.round(y * k + oy));
       const x1 = Math.min(W, x0 + size);
       const y1 = Math.min(H, y0 + size);
-      for (let yy = y0; yy < y1; yy++) buf.fill(colour, yy * W + x0, yy * W + x1);
+      if (x0 >= x1 || y0 >= y1) continue;
+      if (x0 < bx0) bx0 = x0;
+      if (x1 > bx1) bx1 = x1;
+      if (y0 < by0) by0 = y0;
+      if (y1 > by1) by1 = y1;
+      for (let yy = y0; yy < y1; yy++) {
+        const row = yy * W;
+        for (let xx = row + x0, end = row + x1; xx < end; xx++) buf[xx] = colour;
+      }
     }
   }
-  L.ctx.putImageData(L.img, 0, 0);
-  buf.fill(0);
-  ctx.save();
-  ctx.setTransform(1, 0, 0, 1, 0, 0);
-  ctx.globalAlpha = alpha;
-  ctx.drawImage(L.canvas, 0, 0);
-  ctx.restore();
+  if (bx1 > bx0 && by1 > by0) {
+    const w = bx1 - bx0;
+    const h = by1 - by0;
+    L.ctx.putImageData(L.img, 0, 0, bx0, by0, w, h);
+    for (let yy = by0; yy < by1; yy++) buf.fill(0, yy * W + bx0, yy * W + bx1);
+    ctx.save();
+    ctx.setTransform(1, 0, 0, 1, 0, 0);
+    ctx.globalAlpha = alpha;
+    ctx.drawImage(L.canvas, bx0, by0, w, h, bx0, by0, w, h);
+    ctx.restore();
+  }
   return drawn;
 }
 

@@ -7,7 +7,7 @@
 import * as d3 from "d3";
 import { CanvasPanel, type PanelActions } from "./panel.js";
 import type { ViewState } from "./state.js";
-import { BACKGROUND, binAll, FAINT_INK, INK, N_BINS, ORIGIN_MARK, type VelocityScale } from "./colour.js";
+import { BACKGROUND, binAll, FAINT_INK, INK, N_BINS, ORIGIN_MARK, type BinnedColours, type VelocityScale } from "./colour.js";
 import { drawMarks, drawPointsWithSelection } from "./draw.js";
 import { originLimits } from "./limits.js";
 
@@ -25,11 +25,47 @@ export class SlicePanel extends CanvasPanel {
   private centre: [number, number] = [0, 0];
   private pxPerMpc = 1;
 
-  /** Velocity lines of the last draw, one SVG path per colour bin (vector export). */
-  private lineSvg = "";
+  /** px per km/s of the last draw's velocity lines (the vector export redraws them from it). */
+  private lineK = NaN;
 
+  /** Velocity lines of the last draw, one SVG path per colour bin, when at most 20 000 are drawn. */
   override vectorExtras(): string {
-    return this.lineSvg + super.vectorExtras();
+    const bins = this.bins;
+    if (!bins || bins.order.length > 20_000) return super.vectorExtras();
+    let lineSvg = "";
+    this.eachLine(bins, this.lineK, (bn, x, y, dx, dy, first) => {
+      if (first) lineSvg += `${lineSvg ? '"/>' : ""}<path fill="none" stroke="${bins.colours[bn]}" stroke-opacity="0.9" d="`;
+      lineSvg += `M${x.toFixed(1)},${y.toFixed(1)}l${dx.toFixed(1)},${dy.toFixed(1)}`;
+    });
+    if (lineSvg) lineSvg += '"/>';
+    return lineSvg + super.vectorExtras();
+  }
+
+  /**
+   * Each velocity line of the drawn rows, bin by bin: from (x, y) by (dx, dy) CSS px, u / H Mpc along
+   * the direction from the origin; `first` marks the first line of a bin.
+   */
+  private eachLine(bins: BinnedColours, k: number, fn: (bin: number, x: number, y: number, dx: number, dy: number, first: boolean) => void): void {
+    const o = this.state.origin;
+    const [ia, ib] = AXES[this.plane];
+    const cols = [o.x, o.y, o.z];
+    const A = cols[ia]!;
+    const B = cols[ib]!;
+    const px = this.px;
+    const py = this.py;
+    for (let bn = 0; bn < N_BINS; bn++) {
+      let first = true;
+      for (let q = bins.start[bn]!, e = bins.start[bn + 1]!; q < e; q++) {
+        const i = bins.order[q]!;
+        if (px[i] !== px[i]) continue; // not in the slab
+        const s = o.s[i]!;
+        const u = o.u[i]!;
+        if (!(s > 0) || !Number.isFinite(u)) continue;
+        const L = (u * k) / s;
+        fn(bn, px[i]!, py[i]!, A[i]! * L, -B[i]! * L, first);
+        first = false;
+      }
+    }
   }
 
   protected override zoomAt(x: number, y: number, factor: number): boolean {
@@ -118,31 +154,20 @@ export class SlicePanel extends CanvasPanel {
     const k = side / (2 * R) / H; // px per km/s: u / H Mpc times px per Mpc
     ctx.lineWidth = 1;
     ctx.globalAlpha = st.nSelected > 0 ? 0.35 : 0.9;
-    const vector = bins.order.length <= 20_000;
-    let lineSvg = "";
-    for (let bn = 0; bn < N_BINS; bn++) {
-      const s0 = bins.start[bn]!;
-      const s1 = bins.start[bn + 1]!;
-      if (s0 === s1) continue;
-      ctx.strokeStyle = bins.colours[bn]!;
-      ctx.beginPath();
-      let dPath = "";
-      for (let q = s0; q < s1; q++) {
-        const i = bins.order[q]!;
-        if (px[i] !== px[i]) continue; // not in the slab
-        const s = o.s[i]!;
-        const u = o.u[i]!;
-        if (!(s > 0) || !Number.isFinite(u)) continue;
-        const L = (u * k) / s;
-        ctx.moveTo(px[i]!, py[i]!);
-        ctx.lineTo(px[i]! + A[i]! * L, py[i]! - B[i]! * L);
-        if (vector) dPath += `M${px[i]!.toFixed(1)},${py[i]!.toFixed(1)}l${(A[i]! * L).toFixed(1)},${(-B[i]! * L).toFixed(1)}`;
+    this.lineK = k;
+    let bin = -1;
+    this.eachLine(bins, k, (bn, x, y, dx, dy) => {
+      if (bn !== bin) {
+        if (bin >= 0) ctx.stroke();
+        bin = bn;
+        ctx.strokeStyle = bins.colours[bn]!;
+        ctx.beginPath();
       }
-      ctx.stroke();
-      if (dPath) lineSvg += `<path fill="none" stroke="${bins.colours[bn]}" stroke-opacity="0.9" d="${dPath}"/>`;
-    }
+      ctx.moveTo(x, y);
+      ctx.lineTo(x + dx, y + dy);
+    });
+    if (bin >= 0) ctx.stroke();
     ctx.globalAlpha = 1;
-    this.lineSvg = lineSvg;
     const { drawn } = drawPointsWithSelection(ctx, st, px, py, o.u, this.scale, this.pointRadius);
     this.bins = bins;
     drawMarks(ctx, st, px, py, this.pointRadius);
