@@ -10,8 +10,8 @@ import type { Table } from "apache-arrow";
 import { PeculiarError } from "../errors.js";
 import { assertNotSameFile, writeFileAtomic } from "./atomic.js";
 import { arrowFromTable, parseArrowColumns } from "./formats/arrow.js";
-import { parseCsvColumns } from "./formats/csv.js";
-import { csvFromTable } from "./formats/csv-write.js";
+import { parseCsvBytes } from "./formats/csv.js";
+import { csvBytes, csvChunks } from "./formats/csv-write.js";
 import { parseFitsColumns } from "./formats/fits.js";
 import { fitsFromTable } from "./formats/fits-write.js";
 import { finishTable, type ParsedColumns, type SourceInfo } from "./formats/table.js";
@@ -124,14 +124,29 @@ function gunzip(raw: Uint8Array, path: string): Uint8Array {
   return out;
 }
 
-/** Text of a CSV/TSV file: UTF-8, or UTF-16 with its byte-order mark; NUL bytes mean binary data. */
-function decodeText(bytes: Uint8Array, file: string): string {
-  if (bytes[0] === 0xff && bytes[1] === 0xfe) return new TextDecoder("utf-16le").decode(bytes.subarray(2));
-  if (bytes[0] === 0xfe && bytes[1] === 0xff) return new TextDecoder("utf-16be").decode(bytes.subarray(2));
-  if (bytes.subarray(0, 65536).includes(0)) {
+/**
+ * UTF-8 bytes of a CSV/TSV file, byte-order mark dropped: UTF-8 as it is, UTF-16 with its
+ * byte-order mark re-encoded; NUL bytes mean binary data, only blanks an empty file.
+ */
+function textBytes(bytes: Uint8Array, file: string): Uint8Array {
+  let out: Uint8Array;
+  if (bytes[0] === 0xff && bytes[1] === 0xfe) out = new TextEncoder().encode(new TextDecoder("utf-16le").decode(bytes.subarray(2)));
+  else if (bytes[0] === 0xfe && bytes[1] === 0xff) out = new TextEncoder().encode(new TextDecoder("utf-16be").decode(bytes.subarray(2)));
+  else if (bytes.subarray(0, 65536).includes(0)) {
     throw new PeculiarError("format", "binary data, not a text table (a FITS or Arrow file? give its extension or --format)", { file });
+  } else out = bytes[0] === 0xef && bytes[1] === 0xbb && bytes[2] === 0xbf ? bytes.subarray(3) : bytes;
+  if (onlyBlank(out)) throw new PeculiarError("format", "empty file (only blank space)", { file });
+  return out;
+}
+
+/** True when the UTF-8 bytes hold nothing but blank space (String.prototype.trim's blanks). */
+function onlyBlank(b: Uint8Array): boolean {
+  for (let i = 0; i < b.length; i++) {
+    const c = b[i]!;
+    if (c >= 0x80) return new TextDecoder("utf-8").decode(b).trim() === "";
+    if (c !== 32 && (c < 9 || c > 13)) return false;
   }
-  return new TextDecoder("utf-8").decode(bytes);
+  return true;
 }
 
 /** Parses bytes already in memory as `format`; `file` names the source in messages and metadata. */
@@ -142,9 +157,7 @@ export function parseTable(bytes: Uint8Array, format: FormatName, options: { fil
   switch (format) {
     case "csv":
     case "tsv": {
-      const text = decodeText(bytes, file);
-      if (text.trim() === "") throw new PeculiarError("format", "empty file (only blank space)", { file });
-      parsed = parseCsvColumns(text, { file, delimiter: options.delimiter ?? (format === "tsv" ? "\t" : ",") });
+      parsed = parseCsvBytes(textBytes(bytes, file), { file, delimiter: options.delimiter ?? (format === "tsv" ? "\t" : ",") });
       break;
     }
     case "arrow":
@@ -191,9 +204,9 @@ export async function readTable(path: string, options: ReadOptions = {}): Promis
 export function encodeTable(table: Table, format: FormatName, options: { stream?: boolean } = {}): Uint8Array | string {
   switch (format) {
     case "csv":
-      return csvFromTable(table);
+      return csvBytes(table);
     case "tsv":
-      return csvFromTable(table, { delimiter: "\t" });
+      return csvBytes(table, { delimiter: "\t" });
     case "arrow":
       return arrowFromTable(table, { stream: options.stream ?? false });
     case "fits":
@@ -207,12 +220,14 @@ export async function writeTable(table: Table, path: string, options: WriteOptio
   if (options.input !== undefined) assertNotSameFile(options.input, path);
   const format = options.format ?? formatFromPath(path);
   const stream = options.stream ?? formatExtension(path) === ".arrows";
-  let data: Uint8Array | string;
+  let data: Uint8Array | string | Iterable<Uint8Array>;
   try {
-    data = encodeTable(table, format, { stream });
+    // CSV/TSV goes to the file chunk by chunk as it is encoded (never the whole text at once).
+    const text = format === "csv" || format === "tsv";
+    data = text && !isGzipPath(path) ? csvChunks(table, format === "tsv" ? { delimiter: "\t" } : {}) : encodeTable(table, format, { stream });
   } catch (e) {
     if (e instanceof PeculiarError && e.place.file === undefined) throw new PeculiarError(e.code, e.message, { file: path }, { cause: e });
     throw e;
   }
-  await writeFileAtomic(path, isGzipPath(path) ? gzipSync(typeof data === "string" ? new TextEncoder().encode(data) : data) : data);
+  await writeFileAtomic(path, isGzipPath(path) ? gzipSync(typeof data === "string" ? new TextEncoder().encode(data) : (data as Uint8Array)) : data);
 }

@@ -1,9 +1,13 @@
 /**
- * Writes a table as CSV/TSV text (rules in csv.ts and DEVELOPERS.md, "Catalogue formats").
+ * Writes a table as CSV/TSV (rules in csv.ts and DEVELOPERS.md, "Catalogue formats"): straight
+ * from the Arrow buffers into byte chunks, numbers formatted into the bytes (decimal.ts), text
+ * copied as UTF-8 bytes; no string per cell and never the whole file as one string.
  */
-import type { Table } from "apache-arrow";
-import { columnsOf } from "../columns.js";
+import { Utf8, type Data, type Table } from "apache-arrow";
+import { PeculiarError } from "../../errors.js";
+import { kindOf } from "../columns.js";
 import { NULL_TOKENS, UNITS_MARKER } from "./csv.js";
+import { writeShortest } from "./decimal.js";
 import { formatFloat } from "./table.js";
 
 export interface CsvWriteOptions {
@@ -17,54 +21,276 @@ function quote(s: string, delim: string, text: boolean): string {
   return s;
 }
 
-/**
- * Writes a table as CSV/TSV text: header, a units row (after the marker comment) when any column
- * has a unit, booleans as true/false, nulls as empty fields, empty strings as `""`, numbers in
- * their shortest round-trip form.
- */
-export function csvFromTable(table: Table, options: CsvWriteOptions = {}): string {
-  const delim = options.delimiter ?? ",";
-  const cols = columnsOf(table);
-  const n = table.numRows;
-  // A one-column table would write a null as a blank line, which reads as no row: write NaN there.
-  const nullText = cols.length === 1 ? "NaN" : "";
-  const cellText: string[][] = cols.map((c) => {
-    const out = new Array<string>(n);
-    const nulls = c.nulls;
-    const v = c.values;
-    for (let i = 0; i < n; i++) {
-      if (nulls?.[i]) {
-        out[i] = nullText;
-        continue;
+/** Bytes per chunk handed out (a row that does not fit grows its chunk). */
+const CHUNK = 1 << 20;
+const ROOM = 1 << 14;
+
+const encoder = new TextEncoder();
+const decoder = new TextDecoder();
+
+/** NULL_TOKENS as bytes, by length (a text cell equal to one is quoted). */
+const NULL_BYTES: Uint8Array[][] = [];
+for (const t of NULL_TOKENS) (NULL_BYTES[t.length] ??= []).push(encoder.encode(t));
+
+function isNullToken(b: Uint8Array, s: number, e: number): boolean {
+  const list = NULL_BYTES[e - s];
+  if (!list) return false;
+  outer: for (const t of list) {
+    for (let i = 0; i < t.length; i++) if (b[s + i] !== t[i]) continue outer;
+    return true;
+  }
+  return false;
+}
+
+/** ASCII characters of JavaScript's \s. */
+function isBlank(c: number): boolean {
+  return c === 32 || (c >= 9 && c <= 13);
+}
+
+// How a column is written.
+const W_F64 = 0;
+const W_F32 = 1;
+const W_INT = 2;
+const W_BIG = 3;
+const W_BOOL = 4;
+const W_UTF8 = 5;
+const W_OTHER = 6;
+
+function writerKind(data: Data): number {
+  switch (kindOf(data.type)) {
+    case "float64":
+      return data.values instanceof Float64Array ? W_F64 : W_OTHER;
+    case "float32":
+      return data.values instanceof Float32Array ? W_F32 : W_OTHER;
+    case "int64":
+    case "uint64":
+      return W_BIG;
+    case "int8":
+    case "int16":
+    case "int32":
+    case "uint8":
+    case "uint16":
+    case "uint32":
+      return W_INT;
+    case "bool":
+      return W_BOOL;
+    case "utf8":
+      return data.type instanceof Utf8 && data.valueOffsets instanceof Int32Array ? W_UTF8 : W_OTHER;
+    default:
+      return W_OTHER;
+  }
+}
+
+const TRUE = encoder.encode("true");
+
+/** A growable byte buffer handed out in chunks. */
+class Sink {
+  buf = new Uint8Array(CHUNK);
+  pos = 0;
+
+  ensure(n: number): void {
+    if (this.pos + n <= this.buf.length) return;
+    const b = new Uint8Array(Math.max(this.buf.length * 2, this.pos + n));
+    b.set(this.buf.subarray(0, this.pos));
+    this.buf = b;
+  }
+
+  take(): Uint8Array {
+    const out = this.buf.subarray(0, this.pos);
+    this.buf = new Uint8Array(CHUNK);
+    this.pos = 0;
+    return out;
+  }
+
+  ascii(s: string): void {
+    this.ensure(s.length);
+    if (s.length === 4 && s === "true") {
+      this.buf.set(TRUE, this.pos);
+      this.pos += 4;
+      return;
+    }
+    const b = this.buf;
+    let p = this.pos;
+    for (let i = 0; i < s.length; i++) b[p++] = s.charCodeAt(i);
+    this.pos = p;
+  }
+
+  text(s: string): void {
+    this.ensure(s.length * 3);
+    this.pos += encoder.encodeInto(s, this.buf.subarray(this.pos)).written;
+  }
+
+  int(v: number): void {
+    if (v > 2147483647 || v < -2147483647) {
+      this.ascii(String(v));
+      return;
+    }
+    this.ensure(12);
+    const b = this.buf;
+    let p = this.pos;
+    if (v < 0) {
+      b[p++] = 45;
+      v = -v;
+    }
+    let digits = 1;
+    for (let t = v; t >= 10; t = (t / 10) | 0) digits++;
+    p += digits;
+    for (let q = p; q > p - digits; ) {
+      const t = (v / 10) | 0;
+      b[--q] = 48 + v - t * 10;
+      v = t;
+    }
+    this.pos = p;
+  }
+
+  float64(x: number): void {
+    if (x !== x || x === Infinity || x === -Infinity || x === 0) {
+      this.ascii(formatFloat(x));
+      return;
+    }
+    this.ensure(32);
+    const p = writeShortest(x, this.buf, this.pos);
+    if (p >= 0) this.pos = p;
+    else this.ascii(String(x));
+  }
+
+  /** A UTF-8 text cell bytes[a, b), quoted when the CSV rules need it. */
+  cell(bytes: Uint8Array, a: number, e: number, delim: number, delimText: string): void {
+    let needs = a === e;
+    if (!needs) {
+      const c0 = bytes[a]!;
+      const c1 = bytes[e - 1]!;
+      if (c0 >= 0x80 || c1 >= 0x80) {
+        // A Unicode blank at an edge needs the regular expression's view.
+        this.text(quote(decoder.decode(bytes.subarray(a, e)), delimText, true));
+        return;
       }
-      switch (c.kind) {
-        case "utf8":
-          out[i] = quote((v as string[])[i]!, delim, true);
-          break;
-        case "bool":
-          out[i] = (v as Uint8Array)[i] ? "true" : "false";
-          break;
-        case "float64":
-          out[i] = formatFloat((v as Float64Array)[i]!);
-          break;
-        case "float32":
-          out[i] = formatFloat((v as Float32Array)[i]!, true);
-          break;
-        default:
-          out[i] = String((v as ArrayLike<number | bigint>)[i]);
+      needs = c0 === 35 || isBlank(c0) || isBlank(c1) || isNullToken(bytes, a, e);
+      for (let i = a; !needs && i < e; i++) {
+        const c = bytes[i]!;
+        needs = c === 34 || c === 10 || c === 13 || c === delim;
       }
     }
-    return out;
-  });
-  const lines: string[] = [];
-  const anyUnit = cols.some((c) => c.meta?.unit);
-  if (anyUnit) lines.push(UNITS_MARKER);
-  lines.push(cols.map((c) => quote(c.name, delim, false)).join(delim));
-  if (anyUnit) lines.push(cols.map((c) => (c.meta?.unit ? quote(c.meta.unit, delim, false) : "")).join(delim));
-  const row = new Array<string>(cols.length);
-  for (let i = 0; i < n; i++) {
-    for (let j = 0; j < cols.length; j++) row[j] = cellText[j]![i]!;
-    lines.push(row.join(delim));
+    if (!needs) {
+      this.ensure(e - a);
+      this.buf.set(bytes.subarray(a, e), this.pos);
+      this.pos += e - a;
+      return;
+    }
+    this.ensure(2 * (e - a) + 2);
+    const b = this.buf;
+    let p = this.pos;
+    b[p++] = 34;
+    for (let i = a; i < e; i++) {
+      const c = bytes[i]!;
+      if (c === 34) b[p++] = 34;
+      b[p++] = c;
+    }
+    b[p++] = 34;
+    this.pos = p;
   }
-  return lines.join("\n") + "\n";
+}
+
+/**
+ * The CSV/TSV text of a table in chunks of about 1 MiB: header, a units row (after the marker
+ * comment) when any column has a unit, booleans as true/false, nulls as empty fields, empty
+ * strings as `""`, numbers in their shortest round-trip form (ECMAScript Number::toString).
+ */
+export function csvChunks(table: Table, options: CsvWriteOptions = {}): Generator<Uint8Array> {
+  const delimText = options.delimiter ?? ",";
+  if (delimText.length !== 1 || delimText.charCodeAt(0) > 127) throw new PeculiarError("usage", "delimiter must be one ASCII character", { value: delimText });
+  return chunks(table, delimText);
+}
+
+function* chunks(table: Table, delimText: string): Generator<Uint8Array> {
+  const delim = delimText.charCodeAt(0);
+  const fields = table.schema.fields;
+  const width = fields.length;
+  // A one-column table would write a null as a blank line, which reads as no row: write NaN there.
+  const nullText = width === 1 ? "NaN" : "";
+  const sink = new Sink();
+  const units = fields.map((f) => f.metadata.get("unit") ?? "");
+  const anyUnit = units.some((u) => u !== "");
+  const lines: string[] = [];
+  if (anyUnit) lines.push(UNITS_MARKER);
+  lines.push(fields.map((f) => quote(f.name, delimText, false)).join(delimText));
+  if (anyUnit) lines.push(units.map((u) => (u ? quote(u, delimText, false) : "")).join(delimText));
+  sink.text(lines.join("\n") + "\n");
+  let row0 = 0;
+  for (const batch of table.batches) {
+    const n = batch.numRows;
+    const datas = fields.map((_, j) => batch.data.children[j]!);
+    const kinds = datas.map(writerKind);
+    const other = kinds.map((k, j) => (k === W_OTHER ? table.getChildAt(j) : null));
+    // Per column, read once: values, validity bitmap (null when every value is valid), bit offset.
+    const values = datas.map((d) => d.values as ArrayLike<number>);
+    const valid = datas.map((d) => (d.nullCount > 0 ? d.nullBitmap! : null));
+    const offsets = datas.map((d) => d.offset);
+    const valueOffsets = datas.map((d) => d.valueOffsets as Int32Array);
+    for (let i = 0; i < n; i++) {
+      if (sink.pos > CHUNK - ROOM) yield sink.take();
+      for (let j = 0; j < width; j++) {
+        if (j > 0) {
+          sink.ensure(1);
+          sink.buf[sink.pos++] = delim;
+        }
+        const bits = valid[j];
+        if (bits) {
+          const bit = offsets[j]! + i;
+          if (!((bits[bit >> 3]! >> (bit & 7)) & 1)) {
+            if (nullText) sink.ascii(nullText);
+            continue;
+          }
+        }
+        const v = values[j]!;
+        switch (kinds[j]) {
+          case W_F64:
+            sink.float64(v[i]!);
+            break;
+          case W_F32:
+            sink.ascii(formatFloat(v[i]!, true));
+            break;
+          case W_INT:
+            sink.int(v[i]!);
+            break;
+          case W_BIG:
+            sink.ascii(String((v as unknown as BigInt64Array)[i]));
+            break;
+          case W_BOOL: {
+            const bit = offsets[j]! + i;
+            sink.ascii(((v as unknown as Uint8Array)[bit >> 3]! >> (bit & 7)) & 1 ? "true" : "false");
+            break;
+          }
+          case W_UTF8: {
+            const offs = valueOffsets[j]!;
+            sink.cell(v as unknown as Uint8Array, offs[i]!, offs[i + 1]!, delim, delimText);
+            break;
+          }
+          default:
+            sink.text(quote(String(other[j]!.get(row0 + i) ?? ""), delimText, true));
+        }
+      }
+      sink.ensure(1);
+      sink.buf[sink.pos++] = 10;
+    }
+    row0 += n;
+  }
+  if (sink.pos > 0) yield sink.take();
+}
+
+/** The CSV/TSV bytes of a table (csvChunks joined). */
+export function csvBytes(table: Table, options: CsvWriteOptions = {}): Uint8Array {
+  const chunks = [...csvChunks(table, options)];
+  const out = new Uint8Array(chunks.reduce((s, c) => s + c.length, 0));
+  let p = 0;
+  for (const c of chunks) {
+    out.set(c, p);
+    p += c.length;
+  }
+  return out;
+}
+
+/** The CSV/TSV text of a table (csvChunks as one string). */
+export function csvFromTable(table: Table, options: CsvWriteOptions = {}): string {
+  return decoder.decode(csvBytes(table, options));
 }

@@ -24,6 +24,8 @@
 import type { Table } from "apache-arrow";
 import type { ColumnData, ColumnKind, ColumnMeta } from "../columns.js";
 import { PeculiarError } from "../../errors.js";
+import { CsvRecords, decodeSpan, QUOTED, SPECIAL, splitRecords } from "./csv-records.js";
+import { DECIMAL, INTEGER, NOT_NUMBER, scanNumber, scanned } from "./decimal.js";
 import { ecsvKind, isEcsv, parseEcsvHeader } from "./ecsv.js";
 import { addReason, finishTable, type ParsedColumns } from "./table.js";
 
@@ -39,120 +41,6 @@ export interface CsvOptions {
   delimiter?: string;
   /** Recorded in peculiar.source (csv or tsv). */
   format?: string;
-}
-
-/** Records as flat arrays, no object per row: record r holds cells[start[r] .. start[r] + count[r]). */
-interface Records {
-  cells: string[];
-  quoted: number[];
-  start: number[];
-  count: number[];
-  line: number[];
-  /** 1 when the record ends inside an unclosed quote. */
-  unterminated: number[];
-}
-
-function cellsOf(R: Records, r: number): string[] {
-  return R.cells.slice(R.start[r]!, R.start[r]! + R.count[r]!);
-}
-function cellAt(R: Records, r: number, j: number): string | undefined {
-  return j < R.count[r]! ? R.cells[R.start[r]! + j] : undefined;
-}
-function quotedAt(R: Records, r: number, j: number): boolean {
-  return j < R.count[r]! && R.quoted[R.start[r]! + j] === 1;
-}
-
-/** Splits text into records, skipping comments and blank lines; returns whether the units marker was seen. */
-function splitRecords(text: string, delim: string): { recs: Records; marker: boolean } {
-  const recs: Records = { cells: [], quoted: [], start: [], count: [], line: [], unterminated: [] };
-  let marker = false;
-  let i = 0;
-  let line = 1;
-  const n = text.length;
-  const d = delim.charCodeAt(0);
-  while (i < n) {
-    // Start of a line: comment or blank?
-    let j = i;
-    while (j < n && (text.charCodeAt(j) === 32 || text.charCodeAt(j) === 9)) j++;
-    const c0 = text.charCodeAt(j);
-    if (j >= n || c0 === 10 || c0 === 13 || c0 === 35 /* # */) {
-      let e = j;
-      while (e < n && text.charCodeAt(e) !== 10 && text.charCodeAt(e) !== 13) e++;
-      if (c0 === 35 && recs.start.length === 0 && text.slice(i, e).trim() === UNITS_MARKER) marker = true;
-      if (e < n && text.charCodeAt(e) === 13 && text.charCodeAt(e + 1) === 10) e++;
-      i = e + 1;
-      line++;
-      continue;
-    }
-    const first = recs.cells.length;
-    recs.line.push(line);
-    let unterminated = 0;
-    if (d === 32) i = j; // space-separated: leading blanks are not a field
-    // Cells of one record.
-    for (;;) {
-      let k = i;
-      while (k < n && text.charCodeAt(k) === 32 && d !== 32) k++;
-      if (text.charCodeAt(k) === 34 /* " */) {
-        let s = "";
-        let p = k + 1;
-        let closed = false;
-        while (p < n) {
-          const q = text.indexOf('"', p);
-          if (q < 0) {
-            s += text.slice(p);
-            p = n;
-            break;
-          }
-          s += text.slice(p, q);
-          if (text.charCodeAt(q + 1) === 34) {
-            s += '"';
-            p = q + 2;
-          } else {
-            p = q + 1;
-            closed = true;
-            break;
-          }
-        }
-        // Count newlines inside the quoted part.
-        for (let t = k; t < p; t++) {
-          const ch = text.charCodeAt(t);
-          if (ch === 10 || (ch === 13 && text.charCodeAt(t + 1) !== 10)) line++;
-        }
-        if (!closed) unterminated = 1;
-        // Anything between the closing quote and the delimiter is appended (lenient).
-        let e = p;
-        while (e < n && text.charCodeAt(e) !== d && text.charCodeAt(e) !== 10 && text.charCodeAt(e) !== 13) e++;
-        const tail = text.slice(p, e).trim();
-        recs.cells.push(s + tail);
-        recs.quoted.push(1);
-        i = e;
-      } else {
-        let e = i;
-        while (e < n && text.charCodeAt(e) !== d && text.charCodeAt(e) !== 10 && text.charCodeAt(e) !== 13) e++;
-        recs.cells.push(text.slice(i, e).trim());
-        recs.quoted.push(0);
-        i = e;
-      }
-      if (i < n && text.charCodeAt(i) === d) {
-        i++;
-        if (d === 32) {
-          // space-separated: a run of blanks is one separator; blanks before the line end are none
-          while (i < n && (text.charCodeAt(i) === 32 || text.charCodeAt(i) === 9)) i++;
-          if (i >= n || text.charCodeAt(i) === 10 || text.charCodeAt(i) === 13) break;
-        }
-        continue;
-      }
-      break;
-    }
-    // End of record.
-    if (i < n && text.charCodeAt(i) === 13 && text.charCodeAt(i + 1) === 10) i++;
-    i++;
-    line++;
-    recs.start.push(first);
-    recs.count.push(recs.cells.length - first);
-    recs.unterminated.push(unterminated);
-  }
-  return { recs, marker };
 }
 
 const INT_RE = /^[+-]?\d+$/;
@@ -196,21 +84,23 @@ function unitCell(cell: string): "none" | "unit" | "no" {
   return "unit";
 }
 
-function looksNumeric(recs: Records, from: number, col: number): boolean {
+function looksNumeric(recs: CsvRecords, from: number, col: number): boolean {
   let num = 0;
   let other = 0;
-  for (let r = from; r < recs.start.length && num + other < 200; r++) {
-    const cell = cellAt(recs, r, col);
-    if (cell === undefined || (!quotedAt(recs, r, col) && NULL_TOKENS.has(cell)) || cell === "") continue;
+  for (let r = from; r < recs.records && num + other < 200; r++) {
+    const k = recs.cellAt(r, col);
+    if (k < 0) continue;
+    const cell = recs.cellString(k);
+    if ((!recs.quoted(k) && NULL_TOKENS.has(cell)) || cell === "") continue;
     if (isNumber(cell.trim())) num++;
     else other++;
   }
   return num > 0 && num >= 3 * other;
 }
 
-function isUnitsRow(recs: Records, width: number): boolean {
-  if (recs.start.length < 2 || recs.count[1]! > width) return false;
-  const row = cellsOf(recs, 1);
+function isUnitsRow(recs: CsvRecords, width: number): boolean {
+  if (recs.records < 2 || recs.recCount[1]! > width) return false;
+  const row = recs.recordCells(1);
   let units = 0;
   let evidence = false;
   for (let j = 0; j < row.length; j++) {
@@ -243,67 +133,186 @@ const INT32_MAX = 2147483647;
 const INT64_MIN = -(2n ** 63n);
 const INT64_MAX = 2n ** 63n - 1n;
 
+// Cell classes found by the column builder.
+const C_NULL = 0;
+const C_QUOTED_EMPTY = 1;
+const C_TRUE = 2;
+const C_FALSE = 3;
+const C_INT = 4;
+const C_FLOAT = 5;
+const C_OTHER = 6;
+
+/** NULL_TOKENS as bytes, by length. */
+const NULL_BYTES: Uint8Array[][] = [];
+for (const t of NULL_TOKENS) (NULL_BYTES[t.length] ??= []).push(new TextEncoder().encode(t));
+
+function isNullToken(b: Uint8Array, s: number, e: number): boolean {
+  const list = NULL_BYTES[e - s];
+  if (!list) return false;
+  outer: for (const t of list) {
+    for (let i = 0; i < t.length; i++) if (b[s + i] !== t[i]) continue outer;
+    return true;
+  }
+  return false;
+}
+
+function isBlank(c: number): boolean {
+  return c === 32 || (c >= 9 && c <= 13);
+}
+
+/** "true"/"false" in any case at bytes[s, e)? C_TRUE, C_FALSE or -1. */
+function boolBytes(b: Uint8Array, s: number, e: number): number {
+  const len = e - s;
+  const word = len === 4 ? "true" : len === 5 ? "false" : "";
+  if (word === "") return -1;
+  for (let i = 0; i < len; i++) if ((b[s + i]! | 32) !== word.charCodeAt(i)) return -1;
+  return len === 4 ? C_TRUE : C_FALSE;
+}
+
+/** Class and value of a trimmed cell given as text (the rare cells that are not plain spans). */
+function classifyText(t: string, val: Float64Array, i: number): number {
+  if (BOOL_RE.test(t)) return t.toLowerCase() === "true" ? C_TRUE : C_FALSE;
+  if (INT_RE.test(t)) {
+    val[i] = Number(t);
+    return C_INT;
+  }
+  if (isNumber(t)) {
+    val[i] = parseNumber(t);
+    return C_FLOAT;
+  }
+  return C_OTHER;
+}
+
+/**
+ * Class of every cell of column j (rows first.. of recs) into cls, numbers into val: the same
+ * decisions as the string rules (NULL_TOKENS for unquoted cells, a quoted "" apart, then the
+ * trimmed text as bool, integer, number or other), read from the bytes.
+ */
+function classifyColumn(recs: CsvRecords, first: number, j: number, cls: Uint8Array, val: Float64Array): void {
+  const b = recs.bytes;
+  const rows = cls.length;
+  const starts = recs.cellStart;
+  const ends = recs.cellEnd;
+  const flags = recs.cellFlags;
+  for (let i = 0; i < rows; i++) {
+    const k = recs.cellAt(first + i, j);
+    if (k < 0) {
+      cls[i] = C_NULL;
+      continue;
+    }
+    const f = flags[k]!;
+    if (f & SPECIAL) {
+      const c = recs.special.get(k)!;
+      if (!(f & QUOTED) && NULL_TOKENS.has(c)) cls[i] = C_NULL;
+      else if (c === "") cls[i] = C_QUOTED_EMPTY;
+      else cls[i] = classifyText(c.trim(), val, i);
+      continue;
+    }
+    let s = starts[k]!;
+    let e = ends[k]!;
+    if (!(f & QUOTED)) {
+      if (isNullToken(b, s, e)) {
+        cls[i] = C_NULL;
+        continue;
+      }
+    } else {
+      if (s === e) {
+        cls[i] = C_QUOTED_EMPTY;
+        continue;
+      }
+      while (s < e && isBlank(b[s]!)) s++;
+      while (e > s && isBlank(b[e - 1]!)) e--;
+      if (s < e && (b[s]! >= 0x80 || b[e - 1]! >= 0x80)) {
+        cls[i] = classifyText(recs.cellString(k).trim(), val, i);
+        continue;
+      }
+    }
+    const kind = scanNumber(b, s, e);
+    if (kind === NOT_NUMBER) {
+      const bool = boolBytes(b, s, e);
+      cls[i] = bool < 0 ? C_OTHER : bool;
+      continue;
+    }
+    let x = scanned[0]!;
+    if (x !== x) {
+      // A number the byte reader leaves to Number() (many digits, far exponent, a close call).
+      const t = decodeSpan(b, s, e);
+      x = kind === INTEGER ? Number(t) : parseNumber(t);
+    }
+    val[i] = x;
+    cls[i] = kind === DECIMAL ? C_FLOAT : C_INT;
+  }
+}
+
+/** The trimmed text of cell i of column j. */
+function trimmedCell(recs: CsvRecords, first: number, j: number, i: number): string {
+  return recs.cellString(recs.cellAt(first + i, j)).trim();
+}
+
 /** One column from its cells: infers the type, fills nulls, flags bad cells in `reasons`. */
-function buildColumn(name: string, cells: (string | undefined)[], quoted: Uint8Array, reasons: string[], meta: ColumnMeta): ColumnData {
-  const n = cells.length;
+function buildColumn(name: string, recs: CsvRecords, first: number, j: number, rows: number, reasons: string[], meta: ColumnMeta): ColumnData {
+  const n = rows;
+  const cls = new Uint8Array(n);
+  const val = new Float64Array(n);
+  classifyColumn(recs, first, j, cls, val);
   const isNull = new Uint8Array(n);
-  // Quoted empty cells: null unless the column turns out to be text.
-  const quotedEmpty = new Uint8Array(n);
   let nonNull = 0;
+  let quotedEmpty = 0;
   let bools = 0;
   let nums = 0;
   let floats = 0;
   let int32ok = true;
   let int64ok = true;
   for (let i = 0; i < n; i++) {
-    const c = cells[i];
-    if (c === undefined || (!quoted[i] && NULL_TOKENS.has(c))) {
+    const c = cls[i]!;
+    if (c === C_NULL) {
       isNull[i] = 1;
       continue;
     }
-    if (c === "") {
+    if (c === C_QUOTED_EMPTY) {
       isNull[i] = 1;
-      quotedEmpty[i] = 1;
+      quotedEmpty++;
       continue;
     }
     nonNull++;
-    const t = c.trim();
-    if (BOOL_RE.test(t)) bools++;
-    else if (INT_RE.test(t)) {
+    if (c === C_TRUE || c === C_FALSE) bools++;
+    else if (c === C_INT) {
       nums++;
-      const x = Number(t);
+      const x = val[i]!;
       if (x < INT32_MIN || x > INT32_MAX) {
         int32ok = false;
-        const b = BigInt(t);
-        if (b < INT64_MIN || b > INT64_MAX) int64ok = false;
+        // Below 9.2e18 (< 2^63) the integer fits int64 whatever its last digits.
+        if (!(Math.abs(x) < 9.2e18)) {
+          const bi = BigInt(trimmedCell(recs, first, j, i));
+          if (bi < INT64_MIN || bi > INT64_MAX) int64ok = false;
+        }
       }
-    } else if (isNumber(t)) {
+    } else if (c === C_FLOAT) {
       nums++;
       floats++;
     }
   }
   const withMeta = (c: ColumnData): ColumnData => {
     if (meta.unit) c.meta = meta;
-    if (isNull.some((x) => x === 1)) c.nulls = isNull;
+    if (isNull.includes(1)) c.nulls = isNull;
     return c;
   };
-  if (nonNull === 0 && !quotedEmpty.includes(1)) return withMeta({ name, kind: "float64", values: new Float64Array(n).fill(NaN) });
+  if (nonNull === 0 && quotedEmpty === 0) return withMeta({ name, kind: "float64", values: val.fill(NaN) });
   if (nonNull > 0 && bools === nonNull) {
     const v = new Uint8Array(n);
-    for (let i = 0; i < n; i++) if (!isNull[i] && cells[i]!.trim().toLowerCase() === "true") v[i] = 1;
+    for (let i = 0; i < n; i++) if (cls[i] === C_TRUE) v[i] = 1;
     return withMeta({ name, kind: "bool", values: v });
   }
   if (nums > 0 && nums >= 3 * (nonNull - nums)) {
     const bad = (i: number) => {
       isNull[i] = 1;
-      addReason(reasons, i, `column ${name}: ${JSON.stringify(cells[i])} is not a number`);
+      addReason(reasons, i, `column ${name}: ${JSON.stringify(recs.cellString(recs.cellAt(first + i, j)))} is not a number`);
     };
     if (floats === 0 && int32ok) {
       const v = new Int32Array(n);
       for (let i = 0; i < n; i++) {
         if (isNull[i]) continue;
-        const t = cells[i]!.trim();
-        if (INT_RE.test(t)) v[i] = Number(t);
+        if (cls[i] === C_INT) v[i] = val[i]!;
         else bad(i);
       }
       return withMeta({ name, kind: "int32", values: v });
@@ -312,25 +321,30 @@ function buildColumn(name: string, cells: (string | undefined)[], quoted: Uint8A
       const v = new BigInt64Array(n);
       for (let i = 0; i < n; i++) {
         if (isNull[i]) continue;
-        const t = cells[i]!.trim();
-        if (INT_RE.test(t)) v[i] = BigInt(t);
-        else bad(i);
+        const x = val[i]!;
+        if (cls[i] !== C_INT) bad(i);
+        else v[i] = Math.abs(x) < 9007199254740992 ? BigInt(x) : BigInt(trimmedCell(recs, first, j, i));
       }
       return withMeta({ name, kind: "int64", values: v });
     }
-    const v = new Float64Array(n);
     for (let i = 0; i < n; i++) {
       if (isNull[i]) continue;
-      const t = cells[i]!.trim();
-      if (isNumber(t)) v[i] = parseNumber(t);
-      else bad(i);
+      if (cls[i] !== C_INT && cls[i] !== C_FLOAT) {
+        bad(i);
+        val[i] = 0;
+      }
     }
-    return withMeta({ name, kind: "float64", values: v });
+    return withMeta({ name, kind: "float64", values: val });
   }
   // Text: quoted empty cells are empty strings, the rest as read.
-  for (let i = 0; i < n; i++) if (quotedEmpty[i]) isNull[i] = 0;
   const v = new Array<string>(n);
-  for (let i = 0; i < n; i++) v[i] = isNull[i] ? "" : cells[i]!;
+  for (let i = 0; i < n; i++) {
+    const c = cls[i]!;
+    if (c === C_QUOTED_EMPTY) {
+      isNull[i] = 0;
+      v[i] = "";
+    } else v[i] = isNull[i] ? "" : recs.cellString(recs.cellAt(first + i, j));
+  }
   return withMeta({ name, kind: "utf8", values: v });
 }
 
@@ -410,54 +424,71 @@ export function parseCsv(text: string, options: CsvOptions): Table {
   return finishTable(parseCsvColumns(text, options), { file: options.file, format: options.format ?? (options.delimiter === "\t" ? "tsv" : "csv") });
 }
 
+/** parseCsvBytes on the UTF-8 bytes of `text`. */
 export function parseCsvColumns(text: string, options: CsvOptions): ParsedColumns {
-  const delim = options.delimiter ?? ",";
-  if (delim.length !== 1 || delim === '"' || delim === "\n" || delim === "\r") {
-    throw new PeculiarError("usage", "delimiter must be one character other than a quote or newline", { value: delim });
+  return parseCsvBytes(new TextEncoder().encode(text), options);
+}
+
+/** The first lines of the bytes from `from` while they start with `#`, plus the line after them, as text. */
+function headText(b: Uint8Array, from: number): string {
+  let i = from;
+  for (;;) {
+    let e = i;
+    while (e < b.length && b[e] !== 10 && b[e] !== 13) e++;
+    if (b[i] !== 35 || e >= b.length) return new TextDecoder().decode(b.subarray(from, e));
+    i = e + 1;
   }
-  const body = text.charCodeAt(0) === 0xfeff ? text.slice(1) : text;
-  const ecsv = isEcsv(body) ? parseEcsvHeader(leadingComments(body), options.file) : undefined;
-  const { recs, marker } = splitRecords(body, ecsv ? ecsv.delimiter : delim);
-  if (recs.start.length === 0) throw new PeculiarError("format", "no header row (the file has only comments or blank lines)", { file: options.file });
-  const headerCells = cellsOf(recs, 0);
+}
+
+/**
+ * Reads CSV/TSV from UTF-8 bytes (a leading byte-order mark is skipped). Numbers are read
+ * straight from the bytes; only text cells become strings.
+ */
+export function parseCsvBytes(bytes: Uint8Array, options: CsvOptions): ParsedColumns {
+  const delim = options.delimiter ?? ",";
+  if (delim.length !== 1 || delim === '"' || delim === "\n" || delim === "\r" || delim.charCodeAt(0) > 127) {
+    throw new PeculiarError("usage", "delimiter must be one ASCII character other than a quote or newline", { value: delim });
+  }
+  const from = bytes[0] === 0xef && bytes[1] === 0xbb && bytes[2] === 0xbf ? 3 : 0;
+  const head = bytes[from] === 35 || bytes[from] === 0xef ? headText(bytes, from) : "";
+  const ecsv = isEcsv(head) ? parseEcsvHeader(leadingComments(head), options.file) : undefined;
+  const recs = splitRecords(bytes, from, (ecsv ? ecsv.delimiter : delim).charCodeAt(0), UNITS_MARKER);
+  if (recs.records === 0) throw new PeculiarError("format", "no header row (the file has only comments or blank lines)", { file: options.file });
+  const headerCells = recs.recordCells(0);
   const names = headerNames(headerCells);
   const width = names.length;
   if (ecsv) {
     const listed = ecsv.columns.map((c) => c.name);
     if (listed.join("\u0000") !== headerCells.map((c) => c.trim()).join("\u0000")) {
-      throw new PeculiarError("format", `ECSV header lists columns ${listed.join(", ")} but the header row has ${headerCells.join(", ")}`, { file: options.file, row: recs.line[0]! });
+      throw new PeculiarError("format", `ECSV header lists columns ${listed.join(", ")} but the header row has ${headerCells.join(", ")}`, { file: options.file, row: recs.recLine[0]! });
     }
   }
-  const hasUnits = !ecsv && (marker || isUnitsRow(recs, width));
-  const units = hasUnits ? cellsOf(recs, 1) : [];
+  const hasUnits = !ecsv && (recs.marker || isUnitsRow(recs, width));
+  const units = hasUnits ? recs.recordCells(1) : [];
   const first = hasUnits ? 2 : 1;
-  const rows = recs.start.length - first;
+  const rows = Math.max(0, recs.records - first);
   const reasons = new Array<string>(rows).fill("");
   const sourceRows = new Int32Array(rows);
   for (let r = 0; r < rows; r++) {
-    const line = recs.line[first + r]!;
-    const count = recs.count[first + r]!;
+    const line = recs.recLine[first + r]!;
+    const count = recs.recCount[first + r]!;
     sourceRows[r] = line;
-    if (recs.unterminated[first + r]) addReason(reasons, r, `line ${line}: quote not closed before the end of the file`);
+    if (recs.recUnterminated[first + r]) addReason(reasons, r, `line ${line}: quote not closed before the end of the file`);
     if (count !== width) {
       let text = `line ${line}: ${count} ${count === 1 ? "field" : "fields"}, expected ${width}`;
-      if (count > width) text += ` (extra: ${cellsOf(recs, first + r).slice(width).map((c) => JSON.stringify(c)).join(", ")})`;
+      if (count > width) text += ` (extra: ${recs.recordCells(first + r).slice(width).map((c) => JSON.stringify(c)).join(", ")})`;
       addReason(reasons, r, text);
     }
   }
   const columns: ColumnData[] = [];
   for (let j = 0; j < width; j++) {
-    const cells = new Array<string | undefined>(rows);
-    const quoted = new Uint8Array(rows);
-    for (let r = 0; r < rows; r++) {
-      const at = first + r;
-      if (j < recs.count[at]!) {
-        cells[r] = recs.cells[recs.start[at]! + j];
-        quoted[r] = recs.quoted[recs.start[at]! + j]!;
-      }
-    }
     const declared = ecsv?.columns[j];
     if (declared) {
+      const cells = new Array<string | undefined>(rows);
+      for (let r = 0; r < rows; r++) {
+        const k = recs.cellAt(first + r, j);
+        if (k >= 0) cells[r] = recs.cellString(k);
+      }
       const meta: ColumnMeta = {};
       if (declared.unit) meta.unit = declared.unit;
       if (declared.description) meta.description = declared.description;
@@ -466,7 +497,7 @@ export function parseCsvColumns(text: string, options: CsvOptions): ParsedColumn
     }
     const u = units[j]?.trim() ?? "";
     const meta: ColumnMeta = unitCell(u) === "none" ? {} : { unit: u };
-    columns.push(buildColumn(names[j]!, cells, quoted, reasons, meta));
+    columns.push(buildColumn(names[j]!, recs, first, j, rows, reasons, meta));
   }
   const metadata = new Map<string, string>();
   if (ecsv?.meta) metadata.set(ECSV_META, ecsv.meta);

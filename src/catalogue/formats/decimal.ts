@@ -1,0 +1,407 @@
+/**
+ * Decimal text <-> float64 straight from and into bytes, for the CSV reader and writer: no JS
+ * string per number. Both directions give exactly what ECMAScript gives (ECMA-262 StringToNumber:
+ * the correctly rounded double, ties to even; Number::toString: the shortest digits that read
+ * back to the same double, the closest of them) or say they cannot decide, and the caller then
+ * asks Number() / String() itself.
+ *
+ * Method: the value is computed in double-double arithmetic (Dekker's exact product, Knuth's exact
+ * sum; Dekker 1971, "A floating-point technique for extending the available precision") against
+ * powers of ten kept as double-doubles, to about 2^-100 relative. A result is accepted only when
+ * it lies farther than 2^-95 relative from the nearest rounding boundary; closer cases (true ties
+ * among them) go to the fallback. Handled range: up to 18 significant digits and decimal exponents
+ * within +-64 (reading); |x| in about [1e-48, 1e64] (writing). Everything else falls back.
+ */
+
+const P_MIN = -64;
+const P_MAX = 64;
+/** 10^p = POW_HI[p - P_MIN] + POW_LO[p - P_MIN] to ~2^-106 relative (filled on first use). */
+let POW_HI: Float64Array | undefined;
+let POW_LO = new Float64Array(0);
+/** Exact doubles 10^0 .. 10^22 (5^22 < 2^53). */
+const EXACT = new Float64Array(23);
+for (let k = 0, p = 1; k <= 22; k++, p *= 10) EXACT[k] = p;
+
+const F64 = new Float64Array(1);
+const U32 = new Uint32Array(F64.buffer);
+const HI = new Uint8Array(new Uint16Array([1]).buffer)[0] === 1 ? 1 : 0; // index of the high word
+const LO = 1 - HI;
+const TWO_M95 = 2 ** -95;
+const TWO_M40 = 2 ** -40;
+const TWO_M30 = 2 ** -30;
+const SPLIT = 134217729; // 2^27 + 1 (Dekker's splitter)
+/** Half the spacing of doubles with biased exponent e (normal numbers): 2^(e - 1076). */
+const HALF_ULP = new Float64Array(2048);
+for (let e = 1; e < 2047; e++) HALF_ULP[e] = 2 ** (e - 1076);
+
+/** The double x as x = m * 2^e with integer m (BigInt), x > 0 and finite. */
+function bigOfDouble(x: number, scaleBits: bigint): bigint {
+  F64[0] = x;
+  const hi = U32[HI]!;
+  const lo = U32[LO]!;
+  const be = (hi >>> 20) & 0x7ff;
+  let m = (BigInt(hi & 0xfffff) << 32n) | BigInt(lo);
+  let e = be - 1075;
+  if (be === 0) e = -1074;
+  else m |= 1n << 52n;
+  const shift = BigInt(e) + scaleBits;
+  return shift >= 0n ? m << shift : m >> -shift;
+}
+
+function powers(): Float64Array {
+  if (POW_HI) return POW_HI;
+  const hi = new Float64Array(P_MAX - P_MIN + 1);
+  const lo = new Float64Array(P_MAX - P_MIN + 1);
+  const S = 600n; // fixed-point bits: 10^-64 * 2^600 still has ~390 bits
+  for (let p = P_MIN; p <= P_MAX; p++) {
+    const h = Number(`1e${p}`); // correctly rounded (ECMA-262 StringToNumber)
+    const exact = p >= 0 ? 10n ** BigInt(p) << S : (1n << S) / 10n ** BigInt(-p);
+    const diff = exact - bigOfDouble(h, S);
+    hi[p - P_MIN] = h;
+    // Number(bigint) rounds to nearest; the scaling by 2^-600 is exact (no underflow here).
+    lo[p - P_MIN] = Number(diff) * 2 ** -600;
+  }
+  POW_LO = lo;
+  POW_HI = hi;
+  return hi;
+}
+
+/** The rounding error of a * b (a * b = p + error exactly; Dekker's product, no overflow assumed). */
+function productError(a: number, b: number, p: number): number {
+  let t = SPLIT * a;
+  const ah = t - (t - a);
+  const al = a - ah;
+  t = SPLIT * b;
+  const bh = t - (t - b);
+  const bl = b - bh;
+  return ah * bh - p + ah * bl + al * bh + al * bl;
+}
+
+/**
+ * The double nearest to (wh + wl) * 10^q, where wh + wl > 0 is an integer held exactly by the two
+ * doubles (|wl| <= ulp(wh) / 2) and |q| <= 64; NaN when too close to a rounding boundary to tell.
+ */
+export function scaleDecimal(wh: number, wl: number, q: number): number {
+  if (wl === 0 && wh <= 9007199254740992 && q >= -22 && q <= 22) {
+    // Clinger's fast path: both operands exact, one correctly rounded operation.
+    return q >= 0 ? wh * EXACT[q]! : wh / EXACT[-q]!;
+  }
+  if (q < P_MIN || q > P_MAX) return NaN;
+  const ph = powers();
+  const ch = ph[q - P_MIN]!;
+  const cl = POW_LO[q - P_MIN]!;
+  const hi = wh * ch;
+  const t = productError(wh, ch, hi) + (wh * cl + wl * ch);
+  const x = hi + t;
+  const err = t - (x - hi); // x + err = hi + t exactly
+  F64[0] = x;
+  const hw = U32[HI]!;
+  const half = HALF_ULP[(hw >>> 20) & 0x7ff]!;
+  const margin = x * TWO_M95;
+  if (err >= 0) return err + margin < half ? x : NaN;
+  // Below a power of two the gap to the next double down is half as wide.
+  const below = (hw & 0xfffff) === 0 && U32[LO] === 0 ? half / 2 : half;
+  return margin - err < below ? x : NaN;
+}
+
+
+/** scanned[0] is the value left by scanNumber: the number, or NaN when the text must go to Number(). */
+export const scanned = new Float64Array(1);
+
+export const NOT_NUMBER = 0;
+export const INTEGER = 1;
+export const DECIMAL = 2;
+
+/**
+ * Classifies bytes[s, e) (already trimmed) as the CSV reader's number syntax and reads its value:
+ * INTEGER for /^[+-]?\d+$/, DECIMAL for /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eEdD][+-]?\d+)?$/ or
+ * [+-]inf / infinity (any case), NOT_NUMBER otherwise. The value goes to `scanned[0]`; NaN there
+ * means "a number, but ask Number() for its value" (too many digits, exponent out of range, a
+ * rounding boundary too close to call).
+ */
+export function scanNumber(b: Uint8Array, s: number, e: number): number {
+  let i = s;
+  if (i >= e) return NOT_NUMBER;
+  let neg = false;
+  let c = b[i]!;
+  if (c === 43 || c === 45) {
+    neg = c === 45;
+    if (++i >= e) return NOT_NUMBER;
+    c = b[i]!;
+  }
+  if ((c | 32) === 105) return scanInfinity(b, i, e, neg);
+  // Significant digits go into two int32 parts: the first 9 in `hi9`, the next up to 9 in `lo9`.
+  let hi9 = 0;
+  let lo9 = 0;
+  let nlo = 0;
+  let nd = 0; // significant digits seen
+  let q = 0; // decimal exponent of the last digit kept
+  let digits = 0;
+  let kind = INTEGER;
+  // Integer part: leading zeros, then digits.
+  while (i < e && b[i] === 48) {
+    i++;
+    digits++;
+  }
+  for (; i < e; i++) {
+    const d = b[i]! - 48;
+    if (d < 0 || d > 9) break;
+    digits++;
+    if (nd < 9) hi9 = hi9 * 10 + d;
+    else if (nd < 18) {
+      lo9 = lo9 * 10 + d;
+      nlo++;
+    } else q++;
+    nd++;
+  }
+  if (i < e && b[i] === 46) {
+    kind = DECIMAL;
+    i++;
+    if (nd === 0) {
+      while (i < e && b[i] === 48) {
+        i++;
+        digits++;
+        q--;
+      }
+    }
+    for (; i < e; i++) {
+      const d = b[i]! - 48;
+      if (d < 0 || d > 9) break;
+      digits++;
+      if (nd < 9) {
+        hi9 = hi9 * 10 + d;
+        q--;
+      } else if (nd < 18) {
+        lo9 = lo9 * 10 + d;
+        nlo++;
+        q--;
+      }
+      nd++;
+    }
+  }
+  if (digits === 0) return NOT_NUMBER;
+  if (i < e) {
+    c = b[i]!;
+    if (c !== 101 && c !== 69 && c !== 100 && c !== 68) return NOT_NUMBER; // e E d D
+    kind = DECIMAL;
+    if (++i >= e) return NOT_NUMBER;
+    c = b[i]!;
+    let eneg = false;
+    if (c === 43 || c === 45) {
+      eneg = c === 45;
+      if (++i >= e) return NOT_NUMBER;
+    }
+    let x = 0;
+    const from = i;
+    for (; i < e; i++) {
+      const d = b[i]! - 48;
+      if (d < 0 || d > 9) return NOT_NUMBER;
+      if (x < 100000) x = x * 10 + d;
+    }
+    if (i === from) return NOT_NUMBER;
+    q += eneg ? -x : x;
+  }
+  if (nd === 0) {
+    scanned[0] = neg ? -0 : 0;
+    return kind;
+  }
+  if (nd > 18) {
+    scanned[0] = NaN; // more digits than two int32 parts hold: Number() decides
+    return kind;
+  }
+  // w = hi9 * 10^nlo + lo9 exactly as wh + wl (hi9 * 5^nlo < 2^51, so the product is exact).
+  let wh = hi9;
+  let wl = 0;
+  if (nlo > 0) {
+    const p = hi9 * EXACT[nlo]!;
+    wh = p + lo9;
+    const bb = wh - p;
+    wl = p - (wh - bb) + (lo9 - bb);
+  }
+  const v = scaleDecimal(wh, wl, q);
+  scanned[0] = neg ? -v : v;
+  return kind;
+}
+
+function scanInfinity(b: Uint8Array, i: number, e: number, neg: boolean): number {
+  const len = e - i;
+  if (len !== 3 && len !== 8) return NOT_NUMBER;
+  const word = "infinity";
+  for (let k = 0; k < len; k++) if ((b[i + k]! | 32) !== word.charCodeAt(k)) return NOT_NUMBER;
+  scanned[0] = neg ? -Infinity : Infinity;
+  return DECIMAL;
+}
+
+/** UNIT[k] = 10^(17 - k) for k = 15..17; UNIT[26 - k] = 10^(k - 9). */
+const UNIT = new Int32Array(27);
+UNIT[15] = 100;
+UNIT[16] = 10;
+UNIT[17] = 1;
+UNIT[11] = 1000000;
+UNIT[10] = 10000000;
+UNIT[9] = 100000000;
+
+/**
+ * Writes the ECMAScript Number::toString text of x (finite, non-zero) into out at pos and returns
+ * the position after it, or -1 when it cannot decide (then use String(x)). Needs 25 free bytes.
+ */
+export function writeShortest(x: number, out: Uint8Array, pos: number): number {
+  const ax = x < 0 ? -x : x;
+  if (!(ax >= 1e-48 && ax < 1e64)) return -1;
+  const ph = powers();
+  // floor(log10 ax) from the binary exponent and the top of the mantissa (a guess the loop below corrects).
+  F64[0] = ax;
+  const w = U32[HI]!;
+  let e10 = Math.floor((((w >>> 20) & 0x7ff) - 1023 + (w & 0xfffff) / 1048576) * 0.3010299956639812);
+  if (e10 >= P_MIN && e10 < P_MAX) {
+    if (ax < ph[e10 - P_MIN]!) e10--;
+    else if (ax >= ph[e10 + 1 - P_MIN]!) e10++;
+  }
+  // V = ax * 10^(16 - e10) in [1e16, 1e17) as a double-double (hi, lo).
+  let hi = 0;
+  let lo = 0;
+  let ch = 0;
+  for (let tries = 0; ; tries++) {
+    const p = 16 - e10;
+    if (p < P_MIN || p > P_MAX || tries > 2) return -1;
+    ch = ph[p - P_MIN]!;
+    const h = ax * ch;
+    const l = productError(ax, ch, h) + ax * POW_LO[p - P_MIN]!;
+    hi = h + l;
+    lo = l - (hi - h);
+    if (hi < 1e16 || (hi === 1e16 && lo < 0)) e10--;
+    else if (hi >= 1e17) e10++;
+    else break;
+  }
+  // floor(V) = A * 1e8 + B, exactly (hi is an integer: its ulp is >= 2 here).
+  const fl = Math.floor(lo);
+  const frac = lo - fl;
+  let A = Math.floor(hi / 1e8);
+  let B = hi - A * 1e8 + fl; // A * 1e8 = (A * 390625) * 2^8 has <= 49 bits: exact
+  while (B < 0) {
+    B += 1e8;
+    A--;
+  }
+  while (B >= 1e8) {
+    B -= 1e8;
+    A++;
+  }
+  F64[0] = ax;
+  // At a power of two the interval is lopsided and the nearest 16-digit decimal may not be the one that fits.
+  const pow2 = (U32[HI]! & 0xfffff) === 0 && U32[LO] === 0;
+  // The decimals that read back as x lie within half a gap of it: in units of V, above and below.
+  const gapUp = HALF_ULP[(U32[HI]! >>> 20) & 0x7ff]! * ch;
+  const gapDown = pow2 ? gapUp / 2 : gapUp;
+  // k = 15, 16, 17 significant digits: the nearest k-digit decimal, tried in turn.
+  const Bi = B | 0; // < 1e8: integer arithmetic from here on
+  for (let k = 15; k <= 17; k++) {
+    const unit = UNIT[k]!;
+    const tail = (Bi % unit) + frac; // V minus floor(V / unit) * unit
+    const halfUnit = unit / 2;
+    if (Math.abs(tail - halfUnit) < 1e-6) {
+      // A near tie at 15 digits lies far outside the interval (both neighbours fail); later ones need the exact rule.
+      if (k === 15 && !pow2) continue;
+      return -1;
+    }
+    const up = tail > halfUnit;
+    const dist = up ? unit - tail : tail;
+    // dist is good to ~2^-43 and the gap to 2^-51 relative: decide here unless too close to call.
+    const gap = up ? gapUp : gapDown;
+    let fits = 0; // 1 fits, -1 does not, 0 read it back to know
+    if (dist < gap * (1 - TWO_M40) - TWO_M30) fits = 1;
+    else if (dist > gap * (1 + TWO_M40) + TWO_M30) fits = -1;
+    if (fits < 0) {
+      if (k === 15 && pow2) return -1;
+      continue;
+    }
+    let a = A | 0;
+    let bk = ((Bi / unit) | 0) + (up ? 1 : 0);
+    const bMax = UNIT[26 - k]!; // 10^(k - 9)
+    if (bk >= bMax) {
+      bk -= bMax;
+      a++;
+    }
+    let n = e10 + 1; // value = digits * 10^(n - k)
+    if (a >= 1000000000) {
+      // 999...9 rounded up to 10^k: one digit "1" a place higher.
+      a = 100000000;
+      bk = 0;
+      n++;
+    }
+    if (fits === 0) {
+      // Read the candidate back exactly: a * 10^(k-9) + bk as wh + wl.
+      const ah = a * bMax; // <= 30 + 17 bits: exact
+      const s1 = ah + bk;
+      const bb = s1 - ah;
+      const wl = ah - (s1 - bb) + (bk - bb);
+      const v = scaleDecimal(s1, wl, n - k);
+      if (v !== v) return -1;
+      if (v !== ax) {
+        if (k === 15 && pow2) return -1;
+        continue;
+      }
+    }
+    // Digits: a (9 digits) then bk (k - 9 digits, zero padded); trailing zeros dropped.
+    let m = k;
+    if (bk === 0) {
+      m = 9;
+      for (let t = a; t % 10 === 0; t = (t / 10) | 0) m--;
+    } else for (let t = bk; t % 10 === 0; t = (t / 10) | 0) m--;
+    return layout(x < 0, a, bk, k, m, n, out, pos);
+  }
+  return -1;
+}
+
+/**
+ * Writes digit t (0-based from the left) of the k-digit decimal a * 10^(k-9) + bk at out[at + t]
+ * (plus one past the point at `dot`) for t < m, right to left.
+ */
+function digits(a: number, bk: number, k: number, m: number, out: Uint8Array, at: number, dot: number): void {
+  let t = k - 1;
+  let v = bk;
+  for (; t >= 9; t--) {
+    const q = (v / 10) | 0;
+    if (t < m) out[at + t + (t >= dot ? 1 : 0)] = 48 + v - q * 10;
+    v = q;
+  }
+  v = a;
+  for (; t >= 0; t--) {
+    const q = (v / 10) | 0;
+    if (t < m) out[at + t + (t >= dot ? 1 : 0)] = 48 + v - q * 10;
+    v = q;
+  }
+}
+
+/** ECMA-262 Number::toString layout of the first m of k digits (see digits) with the point after n digits. */
+function layout(neg: boolean, a: number, bk: number, k: number, m: number, n: number, out: Uint8Array, pos: number): number {
+  if (neg) out[pos++] = 45;
+  if (m <= n && n <= 21) {
+    digits(a, bk, k, m, out, pos, 99);
+    pos += m;
+    for (let t = m; t < n; t++) out[pos++] = 48;
+  } else if (0 < n && n <= 21) {
+    digits(a, bk, k, m, out, pos, n);
+    out[pos + n] = 46;
+    pos += m + 1;
+  } else if (-6 < n && n <= 0) {
+    out[pos++] = 48;
+    out[pos++] = 46;
+    for (let t = n; t < 0; t++) out[pos++] = 48;
+    digits(a, bk, k, m, out, pos, 99);
+    pos += m;
+  } else {
+    digits(a, bk, k, m, out, pos, 1);
+    if (m > 1) {
+      out[pos + 1] = 46;
+      pos += m + 1;
+    } else pos += 1;
+    out[pos++] = 101;
+    let ex = n - 1;
+    out[pos++] = ex < 0 ? 45 : 43;
+    if (ex < 0) ex = -ex;
+    if (ex >= 100) out[pos++] = 48 + Math.floor(ex / 100);
+    if (ex >= 10) out[pos++] = 48 + (Math.floor(ex / 10) % 10);
+    out[pos++] = 48 + (ex % 10);
+  }
+  return pos;
+}
