@@ -7,13 +7,19 @@
  */
 /** Cell flag: the cell was quoted. */
 export const QUOTED = 1;
+/** Cell flags: an unquoted integer / other number, read while splitting; its value is in cellValue
+ *  (NaN: ask Number()). */
+export const NUMBER_INT = 4;
+export const NUMBER_DEC = 8;
 /** Cell flag: the value is not its span (doubled quotes, text after the closing quote, a non-ASCII
  *  blank at an edge) and lives in `special`. */
 export const SPECIAL = 2;
 
+import { DECIMAL, scanKind, scanNumberPrefix, scanned } from "./decimal.js";
+
 const decoder = new TextDecoder("utf-8");
 
-function grow<T extends Uint32Array | Int32Array | Uint8Array>(a: T, size: number): T {
+function grow<T extends Uint32Array | Int32Array | Uint8Array | Float64Array>(a: T, size: number): T {
   if (size <= a.length) return a;
   const b = new (a.constructor as new (n: number) => T)(Math.max(size, a.length * 2));
   b.set(a);
@@ -44,6 +50,7 @@ export class CsvRecords {
   cellStart = new Uint32Array(1024);
   cellEnd = new Uint32Array(1024);
   cellFlags = new Uint8Array(1024);
+  cellValue = new Float64Array(1024);
   cells = 0;
   readonly special = new Map<number, string>();
   recFirst = new Uint32Array(256);
@@ -86,6 +93,7 @@ export class CsvRecords {
       this.cellStart = grow(this.cellStart, k + 1);
       this.cellEnd = grow(this.cellEnd, k + 1);
       this.cellFlags = grow(this.cellFlags, k + 1);
+      this.cellValue = grow(this.cellValue, k + 1);
     }
     this.cellStart[k] = s;
     this.cellEnd[k] = e;
@@ -124,7 +132,10 @@ export function splitRecords(b: Uint8Array, from: number, delim: number, marker:
   R.cellStart = new Uint32Array(guess);
   R.cellEnd = new Uint32Array(guess);
   R.cellFlags = new Uint8Array(guess);
+  R.cellValue = new Float64Array(guess);
   const d = delim;
+  // Numbers are read while splitting unless the delimiter could be part of one.
+  const numbersHere = !/[0-9+\-.eEdD]/.test(String.fromCharCode(d));
   let i = from;
   let line = 1;
   while (i < n) {
@@ -193,6 +204,40 @@ export function splitRecords(b: Uint8Array, from: number, delim: number, marker:
         }
         i = e;
       } else {
+        // A number is read here and then: it ends the cell when only blanks follow before the delimiter or line end.
+        let ns = i;
+        while (ns < n) {
+          const c = b[ns]!;
+          if ((c === 32 && d !== 32) || ((c === 9 || c === 11 || c === 12) && c !== d)) ns++;
+          else break;
+        }
+        const c = ns < n ? b[ns]! : 0;
+        if (numbersHere && ((c >= 48 && c <= 57) || c === 45 || c === 43 || c === 46)) {
+          const t = scanNumberPrefix(b, ns, n);
+          if (t >= 0) {
+            let u = t;
+            while (u < n) {
+              const c2 = b[u]!;
+              if ((c2 === 32 && d !== 32) || ((c2 === 9 || c2 === 11 || c2 === 12) && c2 !== d)) u++;
+              else break;
+            }
+            if (u >= n || b[u] === d || b[u] === 10 || b[u] === 13) {
+              const k2 = R.cells;
+              R.addCell(ns, t, scanKind[0] === DECIMAL ? NUMBER_DEC : NUMBER_INT);
+              R.cellValue[k2] = scanned[0]!;
+              i = u;
+              if (i < n && b[i] === d) {
+                i++;
+                if (d === 32) {
+                  while (i < n && (b[i] === 32 || b[i] === 9)) i++;
+                  if (i >= n || b[i] === 10 || b[i] === 13) break;
+                }
+                continue;
+              }
+              break;
+            }
+          }
+        }
         let e = i;
         while (e < n) {
           const c = b[e]!;

@@ -24,7 +24,7 @@
 import type { Table } from "apache-arrow";
 import type { ColumnData, ColumnKind, ColumnMeta } from "../columns.js";
 import { PeculiarError } from "../../errors.js";
-import { CsvRecords, decodeSpan, QUOTED, SPECIAL, splitRecords } from "./csv-records.js";
+import { CsvRecords, decodeSpan, NUMBER_DEC, NUMBER_INT, QUOTED, SPECIAL, splitRecords } from "./csv-records.js";
 import { DECIMAL, INTEGER, NOT_NUMBER, scanNumber, scanned } from "./decimal.js";
 import { ecsvKind, isEcsv, parseEcsvHeader } from "./ecsv.js";
 import { addReason, finishTable, type ParsedColumns } from "./table.js";
@@ -194,6 +194,7 @@ function classifyColumn(recs: CsvRecords, first: number, j: number, cls: Uint8Ar
   const starts = recs.cellStart;
   const ends = recs.cellEnd;
   const flags = recs.cellFlags;
+  const values = recs.cellValue;
   for (let i = 0; i < rows; i++) {
     const k = recs.cellAt(first + i, j);
     if (k < 0) {
@@ -201,6 +202,17 @@ function classifyColumn(recs: CsvRecords, first: number, j: number, cls: Uint8Ar
       continue;
     }
     const f = flags[k]!;
+    if (f & (NUMBER_INT | NUMBER_DEC)) {
+      let x = values[k]!;
+      if (x !== x) {
+        // A number the byte reader leaves to Number() (many digits, far exponent, a close call).
+        const t = decodeSpan(b, starts[k]!, ends[k]!);
+        x = f & NUMBER_INT ? Number(t) : parseNumber(t);
+      }
+      val[i] = x;
+      cls[i] = f & NUMBER_INT ? C_INT : C_FLOAT;
+      continue;
+    }
     if (f & SPECIAL) {
       const c = recs.special.get(k)!;
       if (!(f & QUOTED) && NULL_TOKENS.has(c)) cls[i] = C_NULL;

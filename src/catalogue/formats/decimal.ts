@@ -107,6 +107,8 @@ export function scaleDecimal(wh: number, wl: number, q: number): number {
 
 /** scanned[0] is the value left by scanNumber: the number, or NaN when the text must go to Number(). */
 export const scanned = new Float64Array(1);
+/** scanKind[0] is the kind (INTEGER or DECIMAL) of the number scanNumberPrefix read. */
+export const scanKind = new Int32Array(1);
 
 export const NOT_NUMBER = 0;
 export const INTEGER = 1;
@@ -120,16 +122,26 @@ export const DECIMAL = 2;
  * rounding boundary too close to call).
  */
 export function scanNumber(b: Uint8Array, s: number, e: number): number {
+  if (s < e && (b[s]! | 32) === 105) return scanInfinity(b, s, e, false);
+  if (s + 1 < e && (b[s]! === 43 || b[s]! === 45) && (b[s + 1]! | 32) === 105) return scanInfinity(b, s + 1, e, b[s] === 45);
+  return scanNumberPrefix(b, s, e) === e ? scanKind[0]! : NOT_NUMBER;
+}
+
+/**
+ * Reads the longest number at the start of bytes[s, e) (same syntax as scanNumber, without inf):
+ * returns where it ends, its kind in scanKind[0] and its value in scanned[0]; -1 when none
+ * starts there (including "1e" with no exponent digits).
+ */
+export function scanNumberPrefix(b: Uint8Array, s: number, e: number): number {
   let i = s;
-  if (i >= e) return NOT_NUMBER;
+  if (i >= e) return -1;
   let neg = false;
   let c = b[i]!;
   if (c === 43 || c === 45) {
     neg = c === 45;
-    if (++i >= e) return NOT_NUMBER;
+    if (++i >= e) return -1;
     c = b[i]!;
   }
-  if ((c | 32) === 105) return scanInfinity(b, i, e, neg);
   // Significant digits go into two int32 parts: the first 9 in `hi9`, the next up to 9 in `lo9`.
   let hi9 = 0;
   let lo9 = 0;
@@ -179,35 +191,36 @@ export function scanNumber(b: Uint8Array, s: number, e: number): number {
       nd++;
     }
   }
-  if (digits === 0) return NOT_NUMBER;
-  if (i < e) {
-    c = b[i]!;
-    if (c !== 101 && c !== 69 && c !== 100 && c !== 68) return NOT_NUMBER; // e E d D
+  if (digits === 0) return -1;
+  c = i < e ? b[i]! : 0;
+  if (c === 101 || c === 69 || c === 100 || c === 68) {
+    // e E d D
     kind = DECIMAL;
-    if (++i >= e) return NOT_NUMBER;
+    if (++i >= e) return -1;
     c = b[i]!;
     let eneg = false;
     if (c === 43 || c === 45) {
       eneg = c === 45;
-      if (++i >= e) return NOT_NUMBER;
+      if (++i >= e) return -1;
     }
     let x = 0;
     const from = i;
     for (; i < e; i++) {
       const d = b[i]! - 48;
-      if (d < 0 || d > 9) return NOT_NUMBER;
+      if (d < 0 || d > 9) break;
       if (x < 100000) x = x * 10 + d;
     }
-    if (i === from) return NOT_NUMBER;
+    if (i === from) return -1;
     q += eneg ? -x : x;
   }
+  scanKind[0] = kind;
   if (nd === 0) {
     scanned[0] = neg ? -0 : 0;
-    return kind;
+    return i;
   }
   if (nd > 18) {
     scanned[0] = NaN; // more digits than two int32 parts hold: Number() decides
-    return kind;
+    return i;
   }
   // w = hi9 * 10^nlo + lo9 exactly as wh + wl (hi9 * 5^nlo < 2^51, so the product is exact).
   let wh = hi9;
@@ -220,10 +233,11 @@ export function scanNumber(b: Uint8Array, s: number, e: number): number {
   }
   const v = scaleDecimal(wh, wl, q);
   scanned[0] = neg ? -v : v;
-  return kind;
+  return i;
 }
 
 function scanInfinity(b: Uint8Array, i: number, e: number, neg: boolean): number {
+  scanKind[0] = DECIMAL;
   const len = e - i;
   if (len !== 3 && len !== 8) return NOT_NUMBER;
   const word = "infinity";
