@@ -30,7 +30,7 @@ import {
   distanceDerivativeMpc,
   hubbleDistanceMpc,
   efunc,
-  redshiftAtDistance,
+  redshiftsAtDistances,
   type Cosmology,
   type DistanceKind,
 } from "./distances.js";
@@ -73,9 +73,8 @@ function velocity(estimator: Estimator, zObs: number, zCos: number, dC: number, 
   return czm * Math.log(czm / (c.h0 * dL));
 }
 
-/** [v, D_L] at one distance of `kind` (for the bounds). */
-function velocityAtDistance(estimator: Estimator, zObs: number, d: number, kind: DistanceKind, c: Cosmology): [number, number] {
-  const zc = redshiftAtDistance(d, kind, c);
+/** [v, D_L] at the cosmological redshift zc of one distance (for the bounds). */
+function velocityAtRedshift(estimator: Estimator, zObs: number, zc: number, c: Cosmology): [number, number] {
   if (!Number.isFinite(zc)) return [NaN, NaN];
   const dC = comovingDistanceMpc(zc, c);
   return [velocity(estimator, zObs, zc, dC, (1 + zc) * dC, c), (1 + zc) * dC];
@@ -107,11 +106,15 @@ export function peculiarVelocities(
     distLHiMpc: new Float64Array(n),
   };
   const dh = hubbleDistanceMpc(c);
+  // the cosmological redshifts of the distances and of their far and near bounds, in three batches
+  const zCos = redshiftsAtDistances(dist.distMpc, dist.kind, c);
+  const zFar = redshiftsAtDistances(dist.distHiMpc, dist.kind, c);
+  const zNear = redshiftsAtDistances(dist.distLoMpc, dist.kind, c);
   for (let i = 0; i < n; i++) {
     const z = zObs[i]!;
     const ez = zObsErr ? zObsErr[i]! : 0;
     const sz = Number.isFinite(ez) && ez > 0 ? ez : 0;
-    const zc = redshiftAtDistance(dist.distMpc[i]!, dist.kind, c);
+    const zc = zCos[i]!;
     const dC = Number.isFinite(zc) ? comovingDistanceMpc(zc, c) : NaN;
     const dL = (1 + zc) * dC;
     // sigma of z_cos from the distance error of its own kind.
@@ -139,8 +142,8 @@ export function peculiarVelocities(
       sv = Math.hypot((czm * sDL) / dL, C_KMS * (Math.log(czm / (c.h0 * dL)) + 1) * dzm * sz);
     }
     out.vPecErrKmS[i] = Number.isFinite(v) ? sv : NaN;
-    const [vFar, dFar] = velocityAtDistance(estimator, z, dist.distHiMpc[i]!, dist.kind, c);
-    const [vNear, dNear] = velocityAtDistance(estimator, z, dist.distLoMpc[i]!, dist.kind, c);
+    const [vFar, dFar] = velocityAtRedshift(estimator, z, zFar[i]!, c);
+    const [vNear, dNear] = velocityAtRedshift(estimator, z, zNear[i]!, c);
     out.vPecLoKmS[i] = Number.isFinite(v) ? vFar : NaN;
     out.vPecHiKmS[i] = Number.isFinite(v) ? vNear : NaN;
     out.distLLoMpc[i] = dNear;

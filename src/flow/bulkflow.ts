@@ -14,7 +14,7 @@
  * (a cut on a noisy distance biases the fit).
  */
 import { C_KMS } from "../cosmology/constants.js";
-import { comovingDistanceMpc, redshiftAtDistance, type Cosmology } from "../cosmology/distances.js";
+import { comovingDistanceMpc, redshiftsAtDistances, type Cosmology } from "../cosmology/distances.js";
 import { rotation, rotate } from "../sky/frames.js";
 import { lonLatOf } from "../sky/vectors.js";
 import { DEG } from "../sky/angles.js";
@@ -89,6 +89,7 @@ export function flowPoints(rows: FlowRows, c: Cosmology): { x: Float64Array; y: 
   const z = new Float64Array(n);
   const vr = new Float64Array(n);
   const vrErr = new Float64Array(n);
+  const zCosOf = redshiftsAtDistances(rows.distCMpc, "comoving", c);
   for (let i = 0; i < n; i++) {
     const l = rows.lDeg[i]! * DEG;
     const b = rows.bDeg[i]! * DEG;
@@ -98,7 +99,7 @@ export function flowPoints(rows: FlowRows, c: Cosmology): { x: Float64Array; y: 
     y[i] = d * cb * Math.sin(l);
     z[i] = d * Math.sin(b);
     const zObs = rows.czCmbKmS[i]! / C_KMS;
-    const zCos = d > 0 ? redshiftAtDistance(d, "comoving", c) : NaN;
+    const zCos = d > 0 ? zCosOf[i]! : NaN;
     vr[i] = c.h0 * d + (C_KMS * (zObs - zCos)) / (1 + zCos);
     vrErr[i] = c.h0 * d * rows.distFracErr[i]!;
   }

@@ -8,6 +8,7 @@ import {
   luminosityDistanceFromModulus,
   luminosityDistanceMpc,
   redshiftAtDistance,
+  redshiftsAtDistances,
   seriesDistanceMpc,
   checkCosmology,
   type DistanceKind,
@@ -158,3 +159,51 @@ describe("edges", () => {
     expect(() => checkCosmology({ h0: 70, omegaM: 1.5 })).toThrow(/Omega_m/);
   });
 });
+
+describe("redshiftsAtDistances (the batch inverse)", () => {
+  // Twin of the one-at-a-time solve: same root to round-off (common practice for a faster twin).
+  const TWIN_TOL = 1e-13;
+  it("gives the roots of redshiftAtDistance for every kind, model and range, NaN where it gives NaN", () => {
+    let seed = 99;
+    const rnd = () => ((seed = (seed * 1103515245 + 12345) % 2147483648) / 2147483648);
+    for (const c of [{ h0: 70, omegaM: 0.3 }, { h0: 67.4, omegaM: 0.315 }, { h0: 50, omegaM: 1 }, { h0: 73, omegaM: 0 }]) {
+      for (const kind of ["comoving", "luminosity", "angular"] as const) {
+        for (const dTop of [5, 300, 4000, 30000]) {
+          const d = new Float64Array(3000);
+          for (let i = 0; i < d.length; i++) d[i] = dTop * rnd() ** 2;
+          d[0] = 0;
+          d[1] = -1;
+          d[2] = NaN;
+          d[3] = 1e9;
+          d[4] = dTop;
+          const z = redshiftsAtDistances(d, kind, c);
+          for (let i = 0; i < d.length; i++) {
+            const one = redshiftAtDistance(d[i]!, kind, c);
+            if (Number.isNaN(one)) expect(z[i], `d ${d[i]} ${kind}`).toBeNaN();
+            else expect(Math.abs(z[i]! - one), `d ${d[i]} ${kind} ${c.omegaM}`).toBeLessThanOrEqual(TWIN_TOL * Math.max(1, one));
+          }
+        }
+      }
+    }
+  });
+
+  it("inverts D_L and D_C like astropy's z_at_value (astropy 5.2.1 fixture)", () => {
+    for (const m of fixture.models) {
+      const c = { h0: m.h0, omegaM: m.omegaM };
+      const d = Float64Array.from(m.inverse.map((v) => v.d));
+      const zl = redshiftsAtDistances(d, "luminosity", c);
+      const zc = redshiftsAtDistances(d, "comoving", c);
+      m.inverse.forEach((v, i) => {
+        expect(rel(zl[i]!, v.z_dl)).toBeLessThan(REL_TOL_FIXTURE_INVERSE);
+        expect(rel(zc[i]!, v.z_dc)).toBeLessThan(REL_TOL_FIXTURE_INVERSE);
+      });
+    }
+  });
+
+  it("handles an empty batch and a batch of zeros", () => {
+    const c = { h0: 70, omegaM: 0.3 };
+    expect(redshiftsAtDistances(new Float64Array(0), "comoving", c).length).toBe(0);
+    expect(Array.from(redshiftsAtDistances(new Float64Array(3), "luminosity", c))).toEqual([0, 0, 0]);
+  });
+});
+
