@@ -3,6 +3,7 @@
  * stride sample of at most MAX_SAMPLE finite values (limits only decide the axes, never a result),
  * and cached per origin view: re-centring computes them once for all panels.
  */
+import { quickselect } from "d3-array";
 import type { OriginView } from "./origin.js";
 
 export const MAX_SAMPLE = 20_000;
@@ -17,12 +18,19 @@ export function sampledQuantiles(a: ArrayLike<number>, qs: number[], f: (x: numb
     const v = f(a[i]!, i);
     if (Number.isFinite(v)) buf[m++] = v;
   }
-  const s = buf.subarray(0, m).sort();
+  const s = buf.subarray(0, m);
+  // order statistics by quickselect (linear time; the sample is partly ordered by each call)
   return qs.map((q) => {
     if (m === 0) return NaN;
     const h = (m - 1) * q;
     const lo = Math.floor(h);
-    return s[lo]! + (s[Math.min(m - 1, lo + 1)]! - s[lo]!) * (h - lo);
+    quickselect(s, lo);
+    let next = s[lo]!;
+    if (lo + 1 < m) {
+      next = Infinity;
+      for (let k = lo + 1; k < m; k++) if (s[k]! < next) next = s[k]!;
+    }
+    return s[lo]! + (next - s[lo]!) * (h - lo);
   });
 }
 

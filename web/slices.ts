@@ -16,6 +16,12 @@ const AXES: Record<Plane, [0 | 1 | 2, 0 | 1 | 2, 0 | 1 | 2]> = { xy: [0, 1, 2], 
 const NAMES = ["SGX", "SGY", "SGZ"];
 const M = { left: 44, right: 10, top: 22, bottom: 34 };
 
+/** Line segments by colour bin: bin b's lines are q in [start[b], start[b+1]), xy[4q..4q+3] = x, y, dx, dy. */
+interface SliceLines {
+  start: Int32Array;
+  xy: Float64Array;
+}
+
 export class SlicePanel extends CanvasPanel {
   readonly plane: Plane;
   readonly scale: VelocityScale;
@@ -25,27 +31,32 @@ export class SlicePanel extends CanvasPanel {
   private centre: [number, number] = [0, 0];
   private pxPerMpc = 1;
 
-  /** px per km/s of the last draw's velocity lines (the vector export redraws them from it). */
-  private lineK = NaN;
+  /** Velocity lines of the last draw (the vector export writes them out). */
+  private lines: SliceLines | null = null;
 
-  /** Velocity lines of the last draw, one SVG path per colour bin, when at most 20 000 are drawn. */
+  /** Velocity lines of the last draw, one SVG path per colour bin, when there are at most 20 000 rows. */
   override vectorExtras(): string {
     const bins = this.bins;
-    if (!bins || bins.order.length > 20_000) return super.vectorExtras();
+    const L = this.lines;
+    if (!bins || !L || bins.order.length > 20_000) return super.vectorExtras();
     let lineSvg = "";
-    this.eachLine(bins, this.lineK, (bn, x, y, dx, dy, first) => {
-      if (first) lineSvg += `${lineSvg ? '"/>' : ""}<path fill="none" stroke="${bins.colours[bn]}" stroke-opacity="0.9" d="`;
-      lineSvg += `M${x.toFixed(1)},${y.toFixed(1)}l${dx.toFixed(1)},${dy.toFixed(1)}`;
-    });
-    if (lineSvg) lineSvg += '"/>';
+    for (let bn = 0; bn < N_BINS; bn++) {
+      if (L.start[bn] === L.start[bn + 1]) continue;
+      let d = "";
+      for (let q = L.start[bn]!; q < L.start[bn + 1]!; q++) {
+        const [x, y, dx, dy] = L.xy.subarray(4 * q, 4 * q + 4);
+        d += `M${x!.toFixed(1)},${y!.toFixed(1)}l${dx!.toFixed(1)},${dy!.toFixed(1)}`;
+      }
+      lineSvg += `<path fill="none" stroke="${bins.colours[bn]}" stroke-opacity="0.9" d="${d}"/>`;
+    }
     return lineSvg + super.vectorExtras();
   }
 
   /**
-   * Each velocity line of the drawn rows, bin by bin: from (x, y) by (dx, dy) CSS px, u / H Mpc along
-   * the direction from the origin; `first` marks the first line of a bin.
+   * The velocity lines of the drawn rows, bin by bin: each from (x, y) by (dx, dy) CSS px, u / H Mpc
+   * along the direction from the origin (k = px per km/s).
    */
-  private eachLine(bins: BinnedColours, k: number, fn: (bin: number, x: number, y: number, dx: number, dy: number, first: boolean) => void): void {
+  private velocityLines(bins: BinnedColours, k: number): SliceLines {
     const o = this.state.origin;
     const [ia, ib] = AXES[this.plane];
     const cols = [o.x, o.y, o.z];
@@ -53,8 +64,11 @@ export class SlicePanel extends CanvasPanel {
     const B = cols[ib]!;
     const px = this.px;
     const py = this.py;
+    const start = new Int32Array(N_BINS + 1);
+    const xy = new Float64Array(4 * bins.order.length);
+    let m = 0;
     for (let bn = 0; bn < N_BINS; bn++) {
-      let first = true;
+      start[bn] = m;
       for (let q = bins.start[bn]!, e = bins.start[bn + 1]!; q < e; q++) {
         const i = bins.order[q]!;
         if (px[i] !== px[i]) continue; // not in the slab
@@ -62,10 +76,15 @@ export class SlicePanel extends CanvasPanel {
         const u = o.u[i]!;
         if (!(s > 0) || !Number.isFinite(u)) continue;
         const L = (u * k) / s;
-        fn(bn, px[i]!, py[i]!, A[i]! * L, -B[i]! * L, first);
-        first = false;
+        xy[4 * m] = px[i]!;
+        xy[4 * m + 1] = py[i]!;
+        xy[4 * m + 2] = A[i]! * L;
+        xy[4 * m + 3] = -B[i]! * L;
+        m++;
       }
     }
+    start[N_BINS] = m;
+    return { start, xy };
   }
 
   protected override zoomAt(x: number, y: number, factor: number): boolean {
@@ -154,19 +173,22 @@ export class SlicePanel extends CanvasPanel {
     const k = side / (2 * R) / H; // px per km/s: u / H Mpc times px per Mpc
     ctx.lineWidth = 1;
     ctx.globalAlpha = st.nSelected > 0 ? 0.35 : 0.9;
-    this.lineK = k;
-    let bin = -1;
-    this.eachLine(bins, k, (bn, x, y, dx, dy) => {
-      if (bn !== bin) {
-        if (bin >= 0) ctx.stroke();
-        bin = bn;
-        ctx.strokeStyle = bins.colours[bn]!;
-        ctx.beginPath();
+    const lines = this.velocityLines(bins, k);
+    this.lines = lines;
+    for (let bn = 0; bn < N_BINS; bn++) {
+      const e = lines.start[bn + 1]!;
+      if (lines.start[bn] === e) continue;
+      ctx.strokeStyle = bins.colours[bn]!;
+      ctx.beginPath();
+      const xy = lines.xy;
+      for (let q = lines.start[bn]!; q < e; q++) {
+        const x = xy[4 * q]!;
+        const y = xy[4 * q + 1]!;
+        ctx.moveTo(x, y);
+        ctx.lineTo(x + xy[4 * q + 2]!, y + xy[4 * q + 3]!);
       }
-      ctx.moveTo(x, y);
-      ctx.lineTo(x + dx, y + dy);
-    });
-    if (bin >= 0) ctx.stroke();
+      ctx.stroke();
+    }
     ctx.globalAlpha = 1;
     const { drawn } = drawPointsWithSelection(ctx, st, px, py, o.u, this.scale, this.pointRadius);
     this.bins = bins;
