@@ -81,7 +81,31 @@ function writerKind(data: Data): number {
   }
 }
 
-const TRUE = encoder.encode("true");
+/** Writes ASCII text (at most 32 characters: room is made per row) and returns the new position. */
+function writeAscii(b: Uint8Array, p: number, s: string): number {
+  for (let i = 0; i < s.length; i++) b[p++] = s.charCodeAt(i);
+  return p;
+}
+
+const POW10 = new Int32Array([1, 10, 100, 1000, 10000, 100000, 1000000, 10000000, 100000000, 1000000000]);
+
+/** Writes an integer (the text of String(v)) and returns the new position. */
+function writeInt(b: Uint8Array, p: number, v: number): number {
+  if (v > 2147483647 || v < -2147483647) return writeAscii(b, p, String(v));
+  if (v < 0) {
+    b[p++] = 45;
+    v = -v;
+  }
+  let digits = 1;
+  while (digits < 10 && v >= POW10[digits]!) digits++;
+  p += digits;
+  for (let q = p; q > p - digits; ) {
+    const t = (v / 10) | 0;
+    b[--q] = 48 + v - t * 10;
+    v = t;
+  }
+  return p;
+}
 
 /** A growable byte buffer handed out in chunks. */
 class Sink {
@@ -104,11 +128,6 @@ class Sink {
 
   ascii(s: string): void {
     this.ensure(s.length);
-    if (s.length === 4 && s === "true") {
-      this.buf.set(TRUE, this.pos);
-      this.pos += 4;
-      return;
-    }
     const b = this.buf;
     let p = this.pos;
     for (let i = 0; i < s.length; i++) b[p++] = s.charCodeAt(i);
@@ -118,40 +137,6 @@ class Sink {
   text(s: string): void {
     this.ensure(s.length * 3);
     this.pos += encoder.encodeInto(s, this.buf.subarray(this.pos)).written;
-  }
-
-  int(v: number): void {
-    if (v > 2147483647 || v < -2147483647) {
-      this.ascii(String(v));
-      return;
-    }
-    this.ensure(12);
-    const b = this.buf;
-    let p = this.pos;
-    if (v < 0) {
-      b[p++] = 45;
-      v = -v;
-    }
-    let digits = 1;
-    for (let t = v; t >= 10; t = (t / 10) | 0) digits++;
-    p += digits;
-    for (let q = p; q > p - digits; ) {
-      const t = (v / 10) | 0;
-      b[--q] = 48 + v - t * 10;
-      v = t;
-    }
-    this.pos = p;
-  }
-
-  float64(x: number): void {
-    if (x !== x || x === Infinity || x === -Infinity || x === 0) {
-      this.ascii(formatFloat(x));
-      return;
-    }
-    this.ensure(32);
-    const p = writeShortest(x, this.buf, this.pos);
-    if (p >= 0) this.pos = p;
-    else this.ascii(String(x));
   }
 
   /** A UTF-8 text cell bytes[a, b), quoted when the CSV rules need it. */
@@ -191,6 +176,93 @@ class Sink {
   }
 }
 
+/** Writes rows of one record batch into the sink until a chunk is full (a plain loop, outside the generator). */
+class RowWriter {
+  readonly fixed: number;
+  constructor(
+    readonly sink: Sink,
+    readonly delim: number,
+    readonly delimText: string,
+    readonly nullText: string,
+    readonly kinds: number[],
+    readonly values: ArrayLike<number>[],
+    readonly valid: (Uint8Array | null)[],
+    readonly offsets: number[],
+    readonly valueOffsets: Int32Array[],
+    readonly other: ({ get(i: number): unknown } | null)[],
+    readonly row0: number,
+  ) {
+    // Bytes a row of numbers and booleans can take; text cells make room for themselves.
+    this.fixed = 1 + kinds.reduce((sum, k) => sum + (k === W_UTF8 || k === W_OTHER ? 1 : 32), 0);
+  }
+
+  /** Writes rows from..to-1 and returns the next row to write (to, or earlier when a chunk is full). */
+  write(from: number, to: number): number {
+    const { sink, delim, delimText, nullText, kinds, values, valid, offsets, valueOffsets, other, row0, fixed } = this;
+    const width = kinds.length;
+    let buf = sink.buf;
+    let pos = sink.pos;
+    for (let i = from; i < to; i++) {
+      if (pos > CHUNK - ROOM) {
+        sink.pos = pos;
+        return i;
+      }
+      if (pos + fixed > buf.length) {
+        sink.pos = pos;
+        sink.ensure(fixed);
+        buf = sink.buf;
+      }
+      for (let j = 0; j < width; j++) {
+        if (j > 0) buf[pos++] = delim;
+        const bits = valid[j];
+        if (bits) {
+          const bit = offsets[j]! + i;
+          if (!((bits[bit >> 3]! >> (bit & 7)) & 1)) {
+            if (nullText) {
+              buf[pos++] = 78; // NaN
+              buf[pos++] = 97;
+              buf[pos++] = 78;
+            }
+            continue;
+          }
+        }
+        const v = values[j]!;
+        const kind = kinds[j]!;
+        if (kind === W_F64) {
+          const x = v[i]!;
+          if (x === x && x !== 0 && x !== Infinity && x !== -Infinity) {
+            const p = writeShortest(x, buf, pos);
+            if (p >= 0) {
+              pos = p;
+              continue;
+            }
+          }
+          pos = writeAscii(buf, pos, formatFloat(x));
+        } else if (kind === W_INT) pos = writeInt(buf, pos, v[i]!);
+        else if (kind === W_BOOL) {
+          const bit = offsets[j]! + i;
+          pos = writeAscii(buf, pos, ((v as unknown as Uint8Array)[bit >> 3]! >> (bit & 7)) & 1 ? "true" : "false");
+        } else if (kind === W_F32) pos = writeAscii(buf, pos, formatFloat(v[i]!, true));
+        else if (kind === W_BIG) pos = writeAscii(buf, pos, String((v as unknown as BigInt64Array)[i]));
+        else {
+          sink.pos = pos;
+          if (kind === W_UTF8) {
+            const offs = valueOffsets[j]!;
+            sink.cell(v as unknown as Uint8Array, offs[i]!, offs[i + 1]!, delim, delimText);
+          } else sink.text(quote(String(other[j]!.get(row0 + i) ?? ""), delimText, true));
+          // the rest of the row still needs its fixed room
+          sink.ensure(fixed);
+          buf = sink.buf;
+          pos = sink.pos;
+        }
+      }
+      buf[pos++] = 10;
+    }
+    sink.pos = pos;
+    return to;
+  }
+}
+
 /**
  * The CSV/TSV text of a table in chunks of about 1 MiB: header, a units row (after the marker
  * comment) when any column has a unit, booleans as true/false, nulls as empty fields, empty
@@ -227,51 +299,10 @@ function* chunks(table: Table, delimText: string): Generator<Uint8Array> {
     const valid = datas.map((d) => (d.nullCount > 0 ? d.nullBitmap! : null));
     const offsets = datas.map((d) => d.offset);
     const valueOffsets = datas.map((d) => d.valueOffsets as Int32Array);
-    for (let i = 0; i < n; i++) {
-      if (sink.pos > CHUNK - ROOM) yield sink.take();
-      for (let j = 0; j < width; j++) {
-        if (j > 0) {
-          sink.ensure(1);
-          sink.buf[sink.pos++] = delim;
-        }
-        const bits = valid[j];
-        if (bits) {
-          const bit = offsets[j]! + i;
-          if (!((bits[bit >> 3]! >> (bit & 7)) & 1)) {
-            if (nullText) sink.ascii(nullText);
-            continue;
-          }
-        }
-        const v = values[j]!;
-        switch (kinds[j]) {
-          case W_F64:
-            sink.float64(v[i]!);
-            break;
-          case W_F32:
-            sink.ascii(formatFloat(v[i]!, true));
-            break;
-          case W_INT:
-            sink.int(v[i]!);
-            break;
-          case W_BIG:
-            sink.ascii(String((v as unknown as BigInt64Array)[i]));
-            break;
-          case W_BOOL: {
-            const bit = offsets[j]! + i;
-            sink.ascii(((v as unknown as Uint8Array)[bit >> 3]! >> (bit & 7)) & 1 ? "true" : "false");
-            break;
-          }
-          case W_UTF8: {
-            const offs = valueOffsets[j]!;
-            sink.cell(v as unknown as Uint8Array, offs[i]!, offs[i + 1]!, delim, delimText);
-            break;
-          }
-          default:
-            sink.text(quote(String(other[j]!.get(row0 + i) ?? ""), delimText, true));
-        }
-      }
-      sink.ensure(1);
-      sink.buf[sink.pos++] = 10;
+    const rows = new RowWriter(sink, delim, delimText, nullText, kinds, values, valid, offsets, valueOffsets, other, row0);
+    for (let i = 0; i < n; ) {
+      i = rows.write(i, n);
+      if (i < n) yield sink.take();
     }
     row0 += n;
   }
