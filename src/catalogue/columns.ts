@@ -220,6 +220,22 @@ export function float64Column(table: Table, name: string): Float64Array {
   return out;
 }
 
+/**
+ * The values of a one-chunk float64 or int32 column without nulls as a view of the Arrow buffer (no
+ * copy, so read only), or undefined for any other column (which float64Column then copies).
+ */
+export function valuesView(table: Table, name: string, kind: "float64"): Float64Array | undefined;
+export function valuesView(table: Table, name: string, kind: "int32"): Int32Array | undefined;
+export function valuesView(table: Table, name: string, kind: "float64" | "int32"): Float64Array | Int32Array | undefined {
+  const v = table.getChild(name);
+  if (!v || v.data.length !== 1 || v.nullCount !== 0) return undefined;
+  const chunk = v.data[0]!;
+  const want = kind === "float64" ? Float64Array : Int32Array;
+  if (!(chunk.values instanceof want)) return undefined;
+  // Arrow slices `values` already (chunk.offset only indexes the validity bitmap).
+  return (chunk.values as Float64Array | Int32Array).subarray(0, chunk.length);
+}
+
 function getValue(chunk: Data, k: number): unknown {
   // Data has no public get(); go through a one-chunk vector view.
   return tableCell(chunk, k);
@@ -253,8 +269,9 @@ export function stringColumn(table: Table, name: string): (string | null)[] {
           out[i + k] = null;
           continue;
         }
-        const a = offs[chunk.offset + k]!;
-        const b = offs[chunk.offset + k + 1]!;
+        // Arrow slices the offsets with the data (chunk.offset only indexes the validity bitmap)
+        const a = offs[k]!;
+        const b = offs[k + 1]!;
         out[i + k] = decodeAscii(bytes, a, b) ?? decoder.decode(bytes.subarray(a, b));
       }
     } else {
@@ -343,16 +360,33 @@ export function columnDataOf(table: Table, name: string): ColumnData {
   const field = table.schema.fields.find((f) => f.name === name)!;
   const kind = kindOf(field.type) ?? "utf8";
   const n = table.numRows;
-  const nulls = nullMask(table, name);
-  const hasNulls = nulls.some((x) => x === 1);
+  const hasNulls = v.nullCount > 0;
+  const nulls = hasNulls ? nullMask(table, name) : undefined;
   const meta = columnMeta(table, name);
   let values: NumericArray | string[];
   if (kind === "utf8") {
+    // decoded from the offsets (stringColumn), not one Vector.get per row
+    const text = stringColumn(table, name);
     values = new Array<string>(n);
-    for (let i = 0; i < n; i++) (values as string[])[i] = nulls[i] ? "" : String(v.get(i) ?? "");
+    for (let i = 0; i < n; i++) (values as string[])[i] = text[i] ?? "";
+  } else if (kind === "bool" && field.type instanceof Bool) {
+    // the packed bits read directly (Arrow: bit offset + k of `values`); a null reads as false
+    const b = new Uint8Array(n);
+    let i = 0;
+    for (const chunk of v.data) {
+      const bits = chunk.values as Uint8Array;
+      const off = chunk.offset;
+      for (let k = 0; k < chunk.length; k++) {
+        const x = off + k;
+        b[i + k] = (bits[x >> 3]! >> (x & 7)) & 1;
+      }
+      i += chunk.length;
+    }
+    if (nulls) for (let r = 0; r < n; r++) if (nulls[r]) b[r] = 0;
+    values = b;
   } else if (kind === "bool") {
     const b = new Uint8Array(n);
-    for (let i = 0; i < n; i++) b[i] = !nulls[i] && v.get(i) ? 1 : 0;
+    for (let i = 0; i < n; i++) b[i] = !nulls?.[i] && v.get(i) ? 1 : 0;
     values = b;
   } else {
     const arr = new TYPED[kind](n);

@@ -13,6 +13,7 @@
 import { Schema, Table } from "apache-arrow";
 import { PeculiarError } from "../errors.js";
 import {
+  angleFromNumber,
   anglesFromNumbers,
   convertPositions,
   parseAngleUnit,
@@ -21,7 +22,7 @@ import {
   type AngleKind,
   type AngleUnit,
 } from "../sky/index.js";
-import { columnMeta, float64Column, kindOf, nullMask, stringColumn } from "./columns.js";
+import { columnMeta, float64Column, kindOf, nullMask, stringColumn, valuesView } from "./columns.js";
 import { readTable, type FormatName } from "./io.js";
 import { META, ROLES, SOURCE_ROW, getRoles, readJsonMeta, setJsonMeta, type Role, type RoleMap } from "./meta.js";
 import { detectRoles } from "./roles.js";
@@ -73,6 +74,8 @@ function rowWord(table: Table): string {
 function sourceRows(table: Table): Int32Array {
   const n = table.numRows;
   if (!table.getChild(SOURCE_ROW)) return Int32Array.from({ length: n }, (_, i) => i + 1);
+  const view = valuesView(table, SOURCE_ROW, "int32");
+  if (view) return view; // read only
   const f = float64Column(table, SOURCE_ROW);
   const out = new Int32Array(n);
   for (let i = 0; i < n; i++) out[i] = Number.isNaN(f[i]!) ? i + 1 : f[i]!;
@@ -119,11 +122,39 @@ function readAngles(table: Table, column: string, kind: AngleKind, unit: AngleUn
   }
   if (type === "float32") notes.push(`${role} <- ${column} is float32: RA above 256 deg carries up to 0.055 arcsec of rounding (half a float32 step, 2^-15 deg)`);
   if (unit === undefined) notes.push(`${role} <- ${column}: no unit; read as degrees (common practice; --unit ${role}=h or rad to change)`);
-  const col = anglesFromNumbers(float64Column(table, column), kind, unit ?? "deg");
+  const values = valuesView(table, column, "float64") ?? float64Column(table, column);
+  const col = (unit ?? "deg") === "deg" ? degreesChecked(values, kind) : anglesFromNumbers(values, kind, unit);
+  if (col.invalid === 0) return { col, unitLabel: unit ?? "deg" };
   // Nulls and NaN are "missing" rather than "not a number".
   const nulls = nullMask(table, column);
   for (let i = 0; i < col.reasons.length; i++) if (col.reasons[i] === "is not a number") col.reasons[i] = nulls[i] ? "is empty" : "is NaN";
   return { col, unitLabel: unit ?? "deg" };
+}
+
+/**
+ * anglesFromNumbers for degrees, with the rows in range taken as they are in one typed loop (no
+ * result object per row); a row out of range or not a number gets angleFromNumber's value and reason.
+ */
+function degreesChecked(values: ArrayLike<number>, kind: AngleKind): AngleColumn {
+  const n = values.length;
+  const deg = new Float64Array(n);
+  const reasons: (string | undefined)[] = new Array(n);
+  let invalid = 0;
+  const lo = kind === "ra" ? 0 : -90;
+  for (let i = 0; i < n; i++) {
+    const x = values[i]!;
+    if (x >= lo && (kind === "ra" ? x < 360 : x <= 90)) {
+      deg[i] = x;
+      continue;
+    }
+    const r = angleFromNumber(x, kind, "deg");
+    deg[i] = r.deg;
+    if (r.reason !== undefined) {
+      reasons[i] = r.reason;
+      invalid++;
+    }
+  }
+  return { deg, reasons, invalid };
 }
 
 /** The text of a cell for a reason: strings quoted, numbers as written. */
@@ -140,6 +171,7 @@ function cellText(table: Table, column: string, row: number): string {
  * reported twice.
  */
 function collect(table: Table, column: string, col: AngleColumn, word: string, rows: Int32Array, prior: Prior, bad: Uint8Array, reasons: (string | undefined)[]): void {
+  if (col.invalid === 0) return;
   for (let i = 0; i < col.reasons.length; i++) {
     const r = col.reasons[i];
     if (r === undefined) continue;

@@ -255,8 +255,10 @@ export function matchCounts(r: MatchResult): MatchCounts {
     usedB[c.b[k]!] = 1;
     amb += r.ambiguous[t]!;
   }
-  const matchedA = usedA.reduce((s, x) => s + x, 0);
-  const matchedB = usedB.reduce((s, x) => s + x, 0);
+  let matchedA = 0;
+  for (let i = 0; i < usedA.length; i++) matchedA += usedA[i]!;
+  let matchedB = 0;
+  for (let j = 0; j < usedB.length; j++) matchedB += usedB[j]!;
   let multi = 0;
   for (let i = 0; i < r.nA; i++) if (r.nCandidates[i]! > 1) multi++;
   return {

@@ -11,7 +11,7 @@
  * row of this table (1-based). Each side's own source_row is what row_a/row_b carry.
  */
 import type { Table } from "apache-arrow";
-import { columnDataOf, columnMeta, float64Column, kindOf, tableFromColumns, takeColumn, type ColumnData } from "../catalogue/columns.js";
+import { columnDataOf, columnMeta, float64Column, kindOf, tableFromColumns, takeColumn, valuesView, type ColumnData } from "../catalogue/columns.js";
 import { getRoles, INVALID_REASON, META, recordStep, setJsonMeta, SOURCE_ROW, VALID, type RoleMap } from "../catalogue/meta.js";
 import { validMask } from "../catalogue/validity.js";
 import { PeculiarError } from "../errors.js";
@@ -27,6 +27,11 @@ export function sourceRows(table: Table): Int32Array {
   const out = new Int32Array(n);
   if (!table.getChild(SOURCE_ROW)) {
     for (let i = 0; i < n; i++) out[i] = i + 1;
+    return out;
+  }
+  const view = valuesView(table, SOURCE_ROW, "int32");
+  if (view) {
+    out.set(view);
     return out;
   }
   const f = float64Column(table, SOURCE_ROW);
@@ -85,19 +90,57 @@ function gatherColumn(table: Table, name: string, rows: Int32Array): ColumnData 
   const kind = kindOf(field.type);
   if (kind === undefined || !GATHER_KINDS.has(kind)) return undefined;
   const chunk = v.data[0]!;
+  // Arrow slices `values` already (chunk.offset only indexes the validity bitmap)
   const src = chunk.values as Float64Array;
-  const off = chunk.offset;
   const n = rows.length;
   const dst = new (src.constructor as Float64ArrayConstructor)(n);
   let nulls: Uint8Array | undefined;
   for (let t = 0; t < n; t++) {
     const r = rows[t]!;
     if (r < 0) (nulls ??= new Uint8Array(n))[t] = 1;
-    else dst[t] = src[off + r]!;
+    else dst[t] = src[r]!;
   }
   const out: ColumnData = { name, kind, values: dst, meta: columnMeta(table, name) };
   if (nulls) out.nulls = nulls;
   return out;
+}
+
+/**
+ * valid and invalid_reason of the joined rows: valid in A and in B (an absent side counts as valid);
+ * the reason joins "alias: reason" of each invalid side with "; ". When neither table has an invalid
+ * row, no row's reason is looked at.
+ */
+function joinedValidity(a: Table, b: Table, j: JoinedRows, aliasA: string, aliasB: string): { valid: Uint8Array; reason: string[] } {
+  const n = j.length;
+  const valid = new Uint8Array(n);
+  const reason = new Array<string>(n).fill("");
+  const validA = validMask(a);
+  const validB = validMask(b);
+  if (allOnes(validA) && allOnes(validB)) {
+    valid.fill(1);
+    return { valid, reason };
+  }
+  const reasonA = reasonsOfInvalid(a, validA);
+  const reasonB = reasonsOfInvalid(b, validB);
+  for (let t = 0; t < n; t++) {
+    const i = j.rowA[t]!;
+    const k = j.rowB[t]!;
+    const okA = i < 0 || validA[i] === 1;
+    const okB = k < 0 || validB[k] === 1;
+    if (okA && okB) {
+      valid[t] = 1;
+      continue;
+    }
+    const ra = okA ? "" : `${aliasA}: ${reasonA[i] || "invalid"}`;
+    const rb = okB ? "" : `${aliasB}: ${reasonB[k] || "invalid"}`;
+    reason[t] = ra && rb ? `${ra}; ${rb}` : ra || rb;
+  }
+  return { valid, reason };
+}
+
+function allOnes(x: Uint8Array): boolean {
+  for (let i = 0; i < x.length; i++) if (x[i] !== 1) return false;
+  return true;
 }
 
 export interface MatchTableOptions {
@@ -139,50 +182,57 @@ export function matchTable(a: Table, b: Table, r: MatchResult, j: JoinedRows, o:
   const nullN = new Uint8Array(n);
   const nullRA = new Uint8Array(n);
   const nullRB = new Uint8Array(n);
-  const srcA = sourceRows(a);
-  const srcB = sourceRows(b);
-  const validA = validMask(a);
-  const validB = validMask(b);
-  const reasonA = reasonsOfInvalid(a, validA);
-  const reasonB = reasonsOfInvalid(b, validB);
-  const valid = new Uint8Array(n);
-  const reason = new Array<string>(n);
-  const ownRow = new Int32Array(n);
+  let unmatched = 0;
+  let missingDv = 0;
+  let noA = 0;
+  let noB = 0;
+  // one typed loop per output column group; rows are (j.rowA, j.rowB, j.match), -1 where absent
+  const chosen = r.chosen;
+  const sepRad = cand.sepRad;
+  const dvKmS = cand.dvKmS;
   for (let t = 0; t < n; t++) {
-    const i = j.rowA[t]!;
-    const k = j.rowB[t]!;
     const m = j.match[t]!;
-    ownRow[t] = t + 1;
     if (m >= 0) {
-      const c = r.chosen[m]!;
-      sep[t] = cand.sepRad[c]! / ARCSEC;
-      const d = cand.dvKmS[c]!;
+      const c = chosen[m]!;
+      sep[t] = sepRad[c]! / ARCSEC;
+      const d = dvKmS[c]!;
       if (d === d) dv[t] = d;
-      else nullDv[t] = 1;
+      else {
+        nullDv[t] = 1;
+        missingDv++;
+      }
       amb[t] = r.ambiguous[m]!;
     } else {
       nullSep[t] = 1;
       nullDv[t] = 1;
+      unmatched++;
+      missingDv++;
     }
+  }
+  const srcA = sourceRows(a);
+  for (let t = 0; t < n; t++) {
+    const i = j.rowA[t]!;
     if (i >= 0) {
       ncand[t] = r.nCandidates[i]!;
       rowA[t] = srcA[i]!;
     } else {
       nullN[t] = 1;
       nullRA[t] = 1;
-    }
-    if (k >= 0) rowB[t] = srcB[k]!;
-    else nullRB[t] = 1;
-    const okA = i < 0 || validA[i] === 1;
-    const okB = k < 0 || validB[k] === 1;
-    valid[t] = okA && okB ? 1 : 0;
-    if (okA && okB) reason[t] = "";
-    else {
-      const ra = okA ? "" : `${o.aliasA}: ${reasonA[i] || "invalid"}`;
-      const rb = okB ? "" : `${o.aliasB}: ${reasonB[k] || "invalid"}`;
-      reason[t] = ra && rb ? `${ra}; ${rb}` : ra || rb;
+      noA++;
     }
   }
+  const srcB = sourceRows(b);
+  for (let t = 0; t < n; t++) {
+    const k = j.rowB[t]!;
+    if (k >= 0) rowB[t] = srcB[k]!;
+    else {
+      nullRB[t] = 1;
+      noB++;
+    }
+  }
+  const ownRow = new Int32Array(n);
+  for (let t = 0; t < n; t++) ownRow[t] = t + 1;
+  const { valid, reason } = joinedValidity(a, b, j, o.aliasA, o.aliasB);
   cols.push({ name: "sep_arcsec", kind: "float64", values: sep, nulls: nullSep, meta: { unit: "arcsec", ucd: "pos.angDistance", description: "separation of the matched pair (Vincenty/atan2 form)" } });
   if (o.withDv) cols.push({ name: "dv", kind: "float64", values: dv, nulls: nullDv, meta: { unit: "km/s", ucd: "spect.dopplerVeloc", description: `velocity of ${o.aliasB} minus velocity of ${o.aliasA}` } });
   cols.push({ name: "n_candidates", kind: "int32", values: ncand, nulls: nullN, meta: { description: `accepted candidates in ${o.aliasB} for the row of ${o.aliasA}` } });
@@ -192,7 +242,15 @@ export function matchTable(a: Table, b: Table, r: MatchResult, j: JoinedRows, o:
   cols.push({ name: VALID, kind: "bool", values: valid });
   cols.push({ name: INVALID_REASON, kind: "utf8", values: reason });
   cols.push({ name: SOURCE_ROW, kind: "int32", values: ownRow });
-  for (const c of cols) if (c.nulls && !c.nulls.some((x) => x === 1)) delete c.nulls;
+  // nulls masks only where a value is missing (the gathered columns set theirs only then)
+  const drop = new Map<Uint8Array, boolean>([
+    [nullSep, unmatched === 0],
+    [nullDv, missingDv === 0],
+    [nullN, noA === 0],
+    [nullRA, noA === 0],
+    [nullRB, noB === 0],
+  ]);
+  for (const c of cols) if (c.nulls && drop.get(c.nulls)) delete c.nulls;
   // roles: A's roles under their output names (positions of the match are A's), B's in the settings
   const roles: RoleMap = {};
   for (const [role, col] of Object.entries(o.rolesA ?? getRoles(a))) if (col && names.a.has(col)) roles[role as keyof RoleMap] = names.a.get(col)!;
