@@ -46,6 +46,24 @@ function pixelOf(colour: string): number {
 }
 
 /**
+ * Uploads the rectangle [x0, x1) x [y0, y1) of the layer, composites it onto ctx (device pixels,
+ * honouring ctx's clip, at `alpha`) and clears it in the layer for the next use.
+ */
+function composite(ctx: CanvasRenderingContext2D, L: Layer, x0: number, y0: number, x1: number, y1: number, alpha: number): void {
+  if (!(x1 > x0 && y1 > y0)) return;
+  const W = L.img.width;
+  const w = x1 - x0;
+  const h = y1 - y0;
+  L.ctx.putImageData(L.img, 0, 0, x0, y0, w, h);
+  for (let yy = y0; yy < y1; yy++) L.buf.fill(0, yy * W + x0, yy * W + x1);
+  ctx.save();
+  ctx.setTransform(1, 0, 0, 1, 0, 0);
+  ctx.globalAlpha = alpha;
+  ctx.drawImage(L.canvas, x0, y0, w, h, x0, y0, w, h);
+  ctx.restore();
+}
+
+/**
  * Draws the rows of `bins` at (px, py) as squares of half-size r (CSS px); returns how many had a
  * position. The squares are written into a pixel buffer and composited onto the canvas in one
  * drawImage (honouring its clip and `alpha`) of the rectangle they cover: one fillRect per point is
@@ -102,70 +120,96 @@ export function drawBinnedPoints(
       }
     }
   }
-  if (bx1 > bx0 && by1 > by0) {
-    const w = bx1 - bx0;
-    const h = by1 - by0;
-    L.ctx.putImageData(L.img, 0, 0, bx0, by0, w, h);
-    for (let yy = by0; yy < by1; yy++) buf.fill(0, yy * W + bx0, yy * W + bx1);
-    ctx.save();
-    ctx.setTransform(1, 0, 0, 1, 0, 0);
-    ctx.globalAlpha = alpha;
-    ctx.drawImage(L.canvas, bx0, by0, w, h, bx0, by0, w, h);
-    ctx.restore();
-  }
+  composite(ctx, L, bx0, by0, bx1, by1, alpha);
   return drawn;
 }
 
-/** Outlier crosses and group rings for drawn rows; the selection and hover on top. */
+/** The pixels of a mark at one device scale: offsets from the centre pixel and their alpha (0-255). */
+interface MarkMask {
+  dx: Int16Array;
+  dy: Int16Array;
+  alpha: Uint8Array;
+}
+const masks = new Map<string, MarkMask>();
+
+/**
+ * A ring of radius `radius`, or a cross of half-size `radius` (CSS px), as pixel coverage: 1 within
+ * half the line width of the curve, falling to 0 over one pixel (a box-filtered stroke).
+ */
+function maskFor(kind: "ring" | "cross", radius: number, lineWidth: number, alpha: number, scale: number): MarkMask {
+  const key = `${kind} ${radius} ${lineWidth} ${alpha} ${scale}`;
+  let m = masks.get(key);
+  if (m) return m;
+  const R = radius * scale;
+  const hw = (lineWidth * scale) / 2;
+  const ext = Math.ceil(R + hw + 1);
+  const dx: number[] = [];
+  const dy: number[] = [];
+  const a: number[] = [];
+  for (let y = -ext; y <= ext; y++) {
+    for (let x = -ext; x <= ext; x++) {
+      let dist: number;
+      if (kind === "ring") dist = Math.abs(Math.hypot(x, y) - R);
+      else dist = Math.max(Math.abs(Math.abs(x) - Math.abs(y)) / Math.SQRT2, Math.max(Math.abs(x), Math.abs(y)) - R);
+      const cover = Math.min(1, Math.max(0, hw + 0.5 - dist));
+      if (cover <= 0) continue;
+      dx.push(x);
+      dy.push(y);
+      a.push(Math.round(255 * alpha * cover));
+    }
+  }
+  m = { dx: Int16Array.from(dx), dy: Int16Array.from(dy), alpha: Uint8Array.from(a) };
+  if (masks.size > 64) masks.clear();
+  masks.set(key, m);
+  return m;
+}
+
+/**
+ * Outlier crosses and group rings for drawn rows, the selection rings on top: written into the pixel
+ * layer and composited once (a path of 1e4 arcs is slow in a software-rendered canvas).
+ */
 export function drawMarks(ctx: CanvasRenderingContext2D, state: ViewState, px: Float64Array, py: Float64Array, r: number): void {
   const d = state.data;
   const n = d.n;
-  if (d.has.group_id) {
-    ctx.strokeStyle = GROUP_RING;
-    ctx.lineWidth = 0.8;
-    ctx.globalAlpha = 0.7;
-    ctx.beginPath();
-    for (let i = 0; i < n; i++) {
-      if (d.groupId[i]! < 0 || d.groupSize[i]! < 2) continue;
+  const W = ctx.canvas.width;
+  const H = ctx.canvas.height;
+  const t = ctx.getTransform();
+  const k = t.a;
+  const L = layerFor(W, H);
+  const buf = L.buf;
+  let bx0 = W;
+  let by0 = H;
+  let bx1 = 0;
+  let by1 = 0;
+  const stampAll = (mask: MarkMask, colour: string, rows: Iterable<number> | number, pick: (i: number) => boolean) => {
+    const rgb = pixelOf(colour) & 0xffffff;
+    const one = (i: number) => {
       const x = px[i]!;
       const y = py[i]!;
-      if (x !== x || y !== y) continue;
-      ctx.moveTo(x + r + 1.5, y);
-      ctx.arc(x, y, r + 1.5, 0, 2 * Math.PI);
-    }
-    ctx.stroke();
-    ctx.globalAlpha = 1;
-  }
-  if (d.has.outlier) {
-    ctx.strokeStyle = OUTLIER_MARK;
-    ctx.lineWidth = 1.2;
-    ctx.beginPath();
-    const k = r + 2.5;
-    for (let i = 0; i < n; i++) {
-      if (!d.outlier[i]) continue;
-      const x = px[i]!;
-      const y = py[i]!;
-      if (x !== x || y !== y) continue;
-      ctx.moveTo(x - k, y - k);
-      ctx.lineTo(x + k, y + k);
-      ctx.moveTo(x - k, y + k);
-      ctx.lineTo(x + k, y - k);
-    }
-    ctx.stroke();
-  }
-  if (state.nSelected > 0) {
-    ctx.strokeStyle = SELECTED_RING;
-    ctx.lineWidth = 1;
-    ctx.beginPath();
-    for (const i of state.selectedRows) {
-      const x = px[i]!;
-      const y = py[i]!;
-      if (x !== x || y !== y) continue;
-      ctx.moveTo(x + r + 1, y);
-      ctx.arc(x, y, r + 1, 0, 2 * Math.PI);
-    }
-    ctx.stroke();
-  }
+      if (x !== x || y !== y || !pick(i)) return;
+      const cx = Math.floor(x * k + t.e);
+      const cy = Math.floor(y * k + t.f);
+      for (let q = 0; q < mask.alpha.length; q++) {
+        const X = cx + mask.dx[q]!;
+        const Y = cy + mask.dy[q]!;
+        if (X < 0 || Y < 0 || X >= W || Y >= H) continue;
+        const p = Y * W + X;
+        const a = mask.alpha[q]!;
+        // overlapping marks: the more opaque pixel wins
+        if (a > buf[p]! >>> 24) buf[p] = ((a << 24) | rgb) >>> 0;
+        if (X < bx0) bx0 = X;
+        if (X >= bx1) bx1 = X + 1;
+        if (Y < by0) by0 = Y;
+        if (Y >= by1) by1 = Y + 1;
+      }
+    };
+    if (typeof rows === "number") for (let i = 0; i < rows; i++) one(i);
+    else for (const i of rows) one(i);
+  };
+  if (d.has.group_id) stampAll(maskFor("ring", r + 1.5, 0.8, 0.7, k), GROUP_RING, n, (i) => d.groupId[i]! >= 0 && d.groupSize[i]! >= 2);
+  if (d.has.outlier) stampAll(maskFor("cross", r + 2.5, 1.2, 1, k), OUTLIER_MARK, n, (i) => d.outlier[i] !== 0);
+  if (state.nSelected > 0) stampAll(maskFor("ring", r + 1, 1, 1, k), SELECTED_RING, state.selectedRows, () => true);
+  composite(ctx, L, bx0, by0, bx1, by1, 1);
 }
 
 /** A ring around the hovered row and a marker for the origin. */
