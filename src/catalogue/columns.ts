@@ -127,7 +127,7 @@ function columnToData(col: ColumnData, length: number): Data {
 function utf8Data(strings: string[], nulls: Uint8Array | undefined, length: number, bitmap: Uint8Array | undefined, nullCount: number): Data {
   const enc = new TextEncoder();
   const offsets = new Int32Array(length + 1);
-  let buf = new Uint8Array(Math.max(64, length * 8));
+  let buf = new Uint8Array(Math.max(64, Math.min(length * 8, 1 << 16))); // grows by doubling: a column of empty strings stays small
   let pos = 0;
   for (let i = 0; i < length; i++) {
     if (!nulls?.[i] && strings[i]!.length !== 0) {

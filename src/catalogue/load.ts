@@ -134,27 +134,29 @@ function readAngles(table: Table, column: string, kind: AngleKind, unit: AngleUn
 /**
  * anglesFromNumbers for degrees, with the rows in range taken as they are in one typed loop (no
  * result object per row); a row out of range or not a number gets angleFromNumber's value and reason.
+ * Without a bad row, `reasons` is empty (and `invalid` 0).
  */
 function degreesChecked(values: ArrayLike<number>, kind: AngleKind): AngleColumn {
   const n = values.length;
   const deg = new Float64Array(n);
-  const reasons: (string | undefined)[] = new Array(n);
+  let reasons: (string | undefined)[] | undefined; // made at the first bad row
   let invalid = 0;
   const lo = kind === "ra" ? 0 : -90;
+  const hi = kind === "ra" ? 360 : 90;
   for (let i = 0; i < n; i++) {
     const x = values[i]!;
-    if (x >= lo && (kind === "ra" ? x < 360 : x <= 90)) {
+    if (x >= lo && (x < hi || (x === hi && kind === "dec"))) {
       deg[i] = x;
       continue;
     }
     const r = angleFromNumber(x, kind, "deg");
     deg[i] = r.deg;
     if (r.reason !== undefined) {
-      reasons[i] = r.reason;
+      (reasons ??= new Array<string | undefined>(n))[i] = r.reason;
       invalid++;
     }
   }
-  return { deg, reasons, invalid };
+  return { deg, reasons: reasons ?? [], invalid };
 }
 
 /** The text of a cell for a reason: strings quoted, numbers as written. */

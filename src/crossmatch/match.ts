@@ -170,17 +170,23 @@ export interface JoinedRows {
  * in B order.
  */
 export function joinRows(r: MatchResult, join: JoinMode): JoinedRows {
-  const c = r.candidates;
-  const m = r.chosen.length;
-  const usedB = new Uint8Array(r.nB);
-  const matchedA = new Uint8Array(r.nA);
+  // fields read once into locals: the hot loops then touch typed arrays only
+  const ca = r.candidates.a;
+  const cb = r.candidates.b;
+  const chosen = r.chosen;
+  const nA = r.nA;
+  const nB = r.nB;
+  const m = chosen.length;
+  const usedB = new Uint8Array(nB);
+  const matchedA = new Uint8Array(nA);
   for (let u = 0; u < m; u++) {
-    usedB[c.b[r.chosen[u]!]!] = 1;
-    matchedA[c.a[r.chosen[u]!]!] = 1;
+    const k = chosen[u]!;
+    usedB[cb[k]!] = 1;
+    matchedA[ca[k]!] = 1;
   }
   let n = m;
-  if (join !== "inner") for (let i = 0; i < r.nA; i++) if (!matchedA[i]) n++;
-  if (join === "outer") for (let j = 0; j < r.nB; j++) if (!usedB[j]) n++;
+  if (join !== "inner") for (let i = 0; i < nA; i++) if (!matchedA[i]) n++;
+  if (join === "outer") for (let j = 0; j < nB; j++) if (!usedB[j]) n++;
   const rowA = new Int32Array(n);
   const rowB = new Int32Array(n);
   const match = new Int32Array(n);
@@ -188,28 +194,28 @@ export function joinRows(r: MatchResult, join: JoinMode): JoinedRows {
   let t = 0;
   if (join === "inner") {
     for (; t < m; t++) {
-      const k = r.chosen[t]!;
-      rowA[o] = c.a[k]!;
-      rowB[o] = c.b[k]!;
+      const k = chosen[t]!;
+      rowA[o] = ca[k]!;
+      rowB[o] = cb[k]!;
       match[o++] = t;
     }
   } else {
-    for (let i = 0; i < r.nA; i++) {
+    for (let i = 0; i < nA; i++) {
       if (!matchedA[i]) {
         rowA[o] = i;
         rowB[o] = -1;
         match[o++] = -1;
         continue;
       }
-      while (t < m && c.a[r.chosen[t]!] === i) {
+      while (t < m && ca[chosen[t]!] === i) {
         rowA[o] = i;
-        rowB[o] = c.b[r.chosen[t]!]!;
+        rowB[o] = cb[chosen[t]!]!;
         match[o++] = t;
         t++;
       }
     }
     if (join === "outer") {
-      for (let j = 0; j < r.nB; j++) {
+      for (let j = 0; j < nB; j++) {
         if (usedB[j]) continue;
         rowA[o] = -1;
         rowB[o] = j;
@@ -246,21 +252,26 @@ export interface MatchCounts {
 
 export function matchCounts(r: MatchResult): MatchCounts {
   const c = r.candidates;
+  const ca = c.a;
+  const cb = c.b;
+  const chosen = r.chosen;
+  const ambiguous = r.ambiguous;
+  const nCandidates = r.nCandidates;
   const usedA = new Uint8Array(r.nA);
   const usedB = new Uint8Array(r.nB);
   let amb = 0;
-  for (let t = 0; t < r.chosen.length; t++) {
-    const k = r.chosen[t]!;
-    usedA[c.a[k]!] = 1;
-    usedB[c.b[k]!] = 1;
-    amb += r.ambiguous[t]!;
+  for (let t = 0; t < chosen.length; t++) {
+    const k = chosen[t]!;
+    usedA[ca[k]!] = 1;
+    usedB[cb[k]!] = 1;
+    amb += ambiguous[t]!;
   }
   let matchedA = 0;
   for (let i = 0; i < usedA.length; i++) matchedA += usedA[i]!;
   let matchedB = 0;
   for (let j = 0; j < usedB.length; j++) matchedB += usedB[j]!;
   let multi = 0;
-  for (let i = 0; i < r.nA; i++) if (r.nCandidates[i]! > 1) multi++;
+  for (let i = 0; i < nCandidates.length; i++) if (nCandidates[i]! > 1) multi++;
   return {
     rowsA: r.nA,
     rowsB: r.nB,

@@ -190,8 +190,13 @@ export function matchTable(a: Table, b: Table, r: MatchResult, j: JoinedRows, o:
   const chosen = r.chosen;
   const sepRad = cand.sepRad;
   const dvKmS = cand.dvKmS;
+  const ambiguous = r.ambiguous;
+  const nCandidates = r.nCandidates;
+  const match = j.match;
+  const jA = j.rowA;
+  const jB = j.rowB;
   for (let t = 0; t < n; t++) {
-    const m = j.match[t]!;
+    const m = match[t]!;
     if (m >= 0) {
       const c = chosen[m]!;
       sep[t] = sepRad[c]! / ARCSEC;
@@ -201,7 +206,7 @@ export function matchTable(a: Table, b: Table, r: MatchResult, j: JoinedRows, o:
         nullDv[t] = 1;
         missingDv++;
       }
-      amb[t] = r.ambiguous[m]!;
+      amb[t] = ambiguous[m]!;
     } else {
       nullSep[t] = 1;
       nullDv[t] = 1;
@@ -211,9 +216,9 @@ export function matchTable(a: Table, b: Table, r: MatchResult, j: JoinedRows, o:
   }
   const srcA = sourceRows(a);
   for (let t = 0; t < n; t++) {
-    const i = j.rowA[t]!;
+    const i = jA[t]!;
     if (i >= 0) {
-      ncand[t] = r.nCandidates[i]!;
+      ncand[t] = nCandidates[i]!;
       rowA[t] = srcA[i]!;
     } else {
       nullN[t] = 1;
@@ -223,7 +228,7 @@ export function matchTable(a: Table, b: Table, r: MatchResult, j: JoinedRows, o:
   }
   const srcB = sourceRows(b);
   for (let t = 0; t < n; t++) {
-    const k = j.rowB[t]!;
+    const k = jB[t]!;
     if (k >= 0) rowB[t] = srcB[k]!;
     else {
       nullRB[t] = 1;

@@ -62,6 +62,10 @@ export interface Candidates {
 /** Applies the acceptance tests and scores the pairs. */
 export function scoreCandidates(p: PairList, o: ScoreOptions): Candidates {
   const n = p.length;
+  if (o.sigmaK === undefined && o.maxDvKmS === undefined) {
+    const fast = radiusOnly(p, o);
+    if (fast) return fast;
+  }
   const keep = new Int32Array(n);
   const score = new Float64Array(n);
   const dv = new Float64Array(n);
@@ -154,6 +158,31 @@ export function scoreCandidates(p: PairList, o: ScoreOptions): Candidates {
     out.score[t] = score[u]!;
   }
   return out;
+}
+
+/**
+ * The radius-only case when every pair is within R (pairs from the engine at that radius): all are
+ * kept in their order, with the general path's score and dv; undefined when a pair lies beyond R.
+ */
+function radiusOnly(p: PairList, o: ScoreOptions): Candidates | undefined {
+  const n = p.length;
+  const R = o.radiusRad ?? Infinity;
+  const sep = p.sepRad;
+  for (let k = 0; k < n; k++) if (!(sep[k]! <= R)) return undefined;
+  const score = new Float64Array(n);
+  const dv = new Float64Array(n);
+  if (R > 0) {
+    for (let k = 0; k < n; k++) {
+      const x = sep[k]! / R;
+      score[k] = x * x;
+    }
+  }
+  const vA = o.vAKmS;
+  const vB = o.vBKmS;
+  if (vA !== undefined && vB !== undefined) {
+    for (let k = 0; k < n; k++) dv[k] = vB[p.b[k]!]! - vA[p.a[k]!]!;
+  } else dv.fill(NaN);
+  return { a: p.a, b: p.b, sepRad: p.sepRad, dvKmS: dv, score, length: n, rejectedBySigma: 0, rejectedByDv: 0, rejectedNoError: 0, uncheckedDv: 0 };
 }
 
 /** Candidates per A row (Int32Array of length nA). */

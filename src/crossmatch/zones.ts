@@ -199,22 +199,31 @@ export function positionBlock(raDeg: ArrayLike<number>, decDeg: ArrayLike<number
 export function bandBlock(raDeg: ArrayLike<number>, decDeg: ArrayLike<number>, loRad: number, hiRad: number, hiInclusive: boolean): PositionBlock {
   if (raDeg.length !== decDeg.length) throw new Error(`raDeg has ${raDeg.length} values but decDeg has ${decDeg.length}`);
   const n = raDeg.length;
-  const row = new Int32Array(n);
-  const ra = new Float64Array(n);
-  const dec = new Float64Array(n);
+  // the same test twice (count, then fill): one exact allocation instead of full-size arrays cut down
   let m = 0;
   for (let i = 0; i < n; i++) {
     const rd = raDeg[i]!;
     const dd = decDeg[i]!;
     if (!Number.isFinite(rd) || !(dd >= -90 && dd <= 90)) continue;
     const d = dd * DEG;
-    if (!(d >= loRad && (d < hiRad || (hiInclusive && d <= hiRad)))) continue;
-    row[m] = i;
-    ra[m] = raRadOfDeg(rd);
-    dec[m] = d;
-    m++;
+    if (d >= loRad && (d < hiRad || (hiInclusive && d <= hiRad))) m++;
   }
-  return m === n ? { row, raRad: ra, decRad: dec, length: m } : { row: row.slice(0, m), raRad: ra.slice(0, m), decRad: dec.slice(0, m), length: m };
+  const row = new Int32Array(m);
+  const ra = new Float64Array(m);
+  const dec = new Float64Array(m);
+  let t = 0;
+  for (let i = 0; i < n && t < m; i++) {
+    const rd = raDeg[i]!;
+    const dd = decDeg[i]!;
+    if (!Number.isFinite(rd) || !(dd >= -90 && dd <= 90)) continue;
+    const d = dd * DEG;
+    if (!(d >= loRad && (d < hiRad || (hiInclusive && d <= hiRad)))) continue;
+    row[t] = i;
+    ra[t] = raRadOfDeg(rd);
+    dec[t] = d;
+    t++;
+  }
+  return { row, raRad: ra, decRad: dec, length: m };
 }
 
 /** The usable rows of SkyPoints (all, or the subset `rows`) as a block, in the given order. */
@@ -250,121 +259,85 @@ export interface ZoneIndex {
   length: number;
 }
 
-/** Block entries in zone or cell order (stable): their cells, rows and positions, moved together. */
-interface CellSorted {
-  cell: Int32Array;
-  row: Int32Array;
-  ra: Float64Array;
-  dec: Float64Array;
-  /** zoneStart[z] .. zoneStart[z + 1]: the entries in zone z */
-  zoneStart: Int32Array;
+/** Zone of a usable declination (radians), as the grid arithmetic of cellSortedIndex and sortQueries computes it. */
+function zoneIndexOf(decRad: number, invH: number, nZones: number): number {
+  const z = Math.floor((decRad + Math.PI / 2) * invH);
+  return z < 0 ? 0 : z >= nZones ? nZones - 1 : z;
+}
+
+/** Entries per zone of a block, as prefix sums: zoneStart[z] .. zoneStart[z + 1] is zone z. */
+function zoneStarts(grid: ZoneGrid, dec: Float64Array, n: number): Int32Array {
+  const nZones = grid.nZones;
+  const invH = 1 / grid.zoneHeightRad;
+  const zoneStart = new Int32Array(nZones + 1);
+  for (let k = 0; k < n; k++) zoneStart[zoneIndexOf(dec[k]!, invH, nZones) + 1]!++;
+  for (let z = 0; z < nZones; z++) zoneStart[z + 1]! += zoneStart[z]!;
+  return zoneStart;
 }
 
 /**
- * Sorts a block by zone (a stable counting pass: it writes to one place per zone, where a counting
- * sort into ~1e5 cells writes at random), carrying cell, row and position along; with `cells`, each
- * zone's run is then counting-sorted by cell in place of its own, a few thousand entries that stay in
- * cache. Without `cells` the order within a zone is the block's (enough for queries: consecutive
- * queries then read the same few zones of the index).
+ * Builds the index of a block on `grid`. The rows are first moved into zone order (a stable counting
+ * pass that writes to one place per zone, where a counting sort into ~1e5 cells writes at random),
+ * then each zone's run, a few thousand entries that stay in cache, is counting-sorted by RA cell
+ * straight into the index, its unit vectors computed there.
  */
-function zoneSort(grid: ZoneGrid, blk: PositionBlock, cells: boolean): CellSorted {
+export function buildZoneIndex(grid: ZoneGrid, blk: PositionBlock): ZoneIndex {
   const n = blk.length;
   const { nZones, nRa, raScale, zoneBase, zoneHeightRad } = grid;
+  const nCells = zoneBase[nZones]!;
   const invH = 1 / zoneHeightRad;
-  const HALF_PI = Math.PI / 2;
   const ra = blk.raRad;
   const dec = blk.decRad;
-  const row = blk.row;
-  const cellIn = new Int32Array(n);
-  const zoneIn = new Int32Array(n);
-  const zoneStart = new Int32Array(nZones + 1);
+  const zoneStart = zoneStarts(grid, dec, n);
+  // zone order: cell, row and position moved together
+  const fill = zoneStart.slice(0, nZones);
+  const zCell = new Int32Array(n);
+  const zRow = new Int32Array(n);
+  const zRa = new Float64Array(n);
+  const zDec = new Float64Array(n);
   for (let k = 0; k < n; k++) {
-    // cellOf, inlined (the block holds usable positions only)
-    let z = Math.floor((dec[k]! + HALF_PI) * invH);
-    if (z < 0) z = 0;
-    else if (z >= nZones) z = nZones - 1;
+    const d = dec[k]!;
+    const r = ra[k]!;
+    const z = zoneIndexOf(d, invH, nZones);
     const m = nRa[z]!;
-    let c = Math.floor(ra[k]! * raScale[z]!);
+    let c = Math.floor(r * raScale[z]!);
     if (c < 0) c = 0;
     else if (c >= m) c = m - 1;
-    cellIn[k] = zoneBase[z]! + c;
-    zoneIn[k] = z;
-    zoneStart[z + 1]!++;
+    const t = fill[z]!++;
+    zCell[t] = zoneBase[z]! + c;
+    zRow[t] = blk.row[k]!;
+    zRa[t] = r;
+    zDec[t] = d;
   }
-  for (let z = 0; z < nZones; z++) zoneStart[z + 1]! += zoneStart[z]!;
-  const fill = zoneStart.slice(0, nZones);
-  const cell = new Int32Array(n);
-  const rowOut = new Int32Array(n);
-  const raOut = new Float64Array(n);
-  const decOut = new Float64Array(n);
-  for (let k = 0; k < n; k++) {
-    const t = fill[zoneIn[k]!]!++;
-    cell[t] = cellIn[k]!;
-    rowOut[t] = row[k]!;
-    raOut[t] = ra[k]!;
-    decOut[t] = dec[k]!;
-  }
-  const out: CellSorted = { cell, row: rowOut, ra: raOut, dec: decOut, zoneStart };
-  if (!cells) return out;
-  // within each zone, by cell: scatter the zone's run into the scratch arrays, then copy it back
-  let maxRun = 0;
-  for (let z = 0; z < nZones; z++) maxRun = Math.max(maxRun, zoneStart[z + 1]! - zoneStart[z]!);
+  // cell order inside each zone, written into the index
+  const rowOf = new Int32Array(n);
+  const xyz = new Float64Array(3 * n);
+  const cellStart = new Int32Array(nCells + 1);
   let maxCells = 0;
   for (let z = 0; z < nZones; z++) maxCells = Math.max(maxCells, nRa[z]!);
   const count = new Int32Array(maxCells + 1);
-  const c2 = cellIn.subarray(0, maxRun);
-  const r2 = zoneIn.subarray(0, maxRun);
-  const ra2 = new Float64Array(maxRun);
-  const de2 = new Float64Array(maxRun);
   for (let z = 0; z < nZones; z++) {
     const lo = zoneStart[z]!;
     const hi = zoneStart[z + 1]!;
-    if (hi - lo < 2) continue;
     const base = zoneBase[z]!;
     const m = nRa[z]!;
     count.fill(0, 0, m + 1);
-    for (let k = lo; k < hi; k++) count[cell[k]! - base + 1]!++;
+    for (let k = lo; k < hi; k++) count[zCell[k]! - base + 1]!++;
     for (let c = 0; c < m; c++) count[c + 1]! += count[c]!;
+    for (let c = 0; c < m; c++) cellStart[base + c] = lo + count[c]!;
     for (let k = lo; k < hi; k++) {
-      const cc = cell[k]!;
-      const t = count[cc - base]!++;
-      c2[t] = cc;
-      r2[t] = rowOut[k]!;
-      ra2[t] = raOut[k]!;
-      de2[t] = decOut[k]!;
+      const t = lo + count[zCell[k]! - base]!++;
+      rowOf[t] = zRow[k]!;
+      const r = zRa[k]!;
+      const d = zDec[k]!;
+      const cd = Math.cos(d);
+      xyz[3 * t] = cd * Math.cos(r);
+      xyz[3 * t + 1] = cd * Math.sin(r);
+      xyz[3 * t + 2] = Math.sin(d);
     }
-    const len = hi - lo;
-    cell.set(c2.subarray(0, len), lo);
-    rowOut.set(r2.subarray(0, len), lo);
-    raOut.set(ra2.subarray(0, len), lo);
-    decOut.set(de2.subarray(0, len), lo);
-  }
-  return out;
-}
-
-/** Builds the index of a block on `grid`: rows sorted into cell order, unit vectors computed in that order. */
-export function buildZoneIndex(grid: ZoneGrid, blk: PositionBlock): ZoneIndex {
-  const s = zoneSort(grid, blk, true);
-  const n = blk.length;
-  const nCells = grid.zoneBase[grid.nZones]!;
-  const xyz = new Float64Array(3 * n);
-  for (let k = 0; k < n; k++) {
-    const r = s.ra[k]!;
-    const d = s.dec[k]!;
-    const c = Math.cos(d);
-    xyz[3 * k] = c * Math.cos(r);
-    xyz[3 * k + 1] = c * Math.sin(r);
-    xyz[3 * k + 2] = Math.sin(d);
-  }
-  const cellStart = new Int32Array(nCells + 1);
-  const cs = s.cell;
-  let k = 0;
-  for (let c = 0; c < nCells; c++) {
-    cellStart[c] = k;
-    while (k < n && cs[k] === c) k++;
   }
   cellStart[nCells] = n;
-  return { grid, rowOf: s.row, cellStart, xyz, length: n };
+  return { grid, rowOf, cellStart, xyz, length: n };
 }
 
 /** Query points gathered into zone order, so that consecutive queries read the same few zones of the index. */
@@ -376,23 +349,36 @@ export interface SortedQueries {
   length: number;
 }
 
-/** The query block in the grid's zone order, with unit vectors computed in that order. */
+/**
+ * The query block in the grid's zone order (a stable counting pass, written straight into the
+ * stride-5 array), with unit vectors computed in that order. The order inside a zone is the block's:
+ * consecutive queries then read the same few zones of the index, which is what matters.
+ */
 export function sortQueries(grid: ZoneGrid, blk: PositionBlock): SortedQueries {
-  const s = zoneSort(grid, blk, false);
   const n = blk.length;
+  const nZones = grid.nZones;
+  const invH = 1 / grid.zoneHeightRad;
+  const ra = blk.raRad;
+  const dec = blk.decRad;
+  const fill = zoneStarts(grid, dec, n);
+  const rowOf = new Int32Array(n);
   const p = new Float64Array(5 * n);
   for (let k = 0; k < n; k++) {
-    const r = s.ra[k]!;
-    const d = s.dec[k]!;
+    const d = dec[k]!;
+    const t = fill[zoneIndexOf(d, invH, nZones)]!++;
+    rowOf[t] = blk.row[k]!;
+    p[5 * t] = ra[k]!;
+    p[5 * t + 1] = d;
+  }
+  for (let o = 0; o < 5 * n; o += 5) {
+    const r = p[o]!;
+    const d = p[o + 1]!;
     const c = Math.cos(d);
-    const o = 5 * k;
-    p[o] = r;
-    p[o + 1] = d;
     p[o + 2] = c * Math.cos(r);
     p[o + 3] = c * Math.sin(r);
     p[o + 4] = Math.sin(d);
   }
-  return { rowOf: s.row, p, length: n };
+  return { rowOf, p, length: n };
 }
 
 /** Pairs found by a query: parallel arrays, `length` of them used. */
