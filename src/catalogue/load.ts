@@ -277,9 +277,9 @@ export function prepareCatalogue(table: Table, options: PrepareOptions): Catalog
   const rows = sourceRows(table);
   const prior = new Prior(table);
   const bad = new Uint8Array(n);
-  const reasons: (string | undefined)[] = new Array(n).fill(undefined);
-  let raDeg: Float64Array = new Float64Array(n).fill(NaN);
-  let decDeg: Float64Array = new Float64Array(n).fill(NaN);
+  const reasons: (string | undefined)[] = []; // written only at flagged rows (flagRows reads those)
+  let raDeg: Float64Array | undefined;
+  let decDeg: Float64Array | undefined;
   let positions: Catalogue["positions"] = "none";
 
   const pairFrom = (lonRole: Role, latRole: Role) => {
@@ -349,6 +349,8 @@ export function prepareCatalogue(table: Table, options: PrepareOptions): Catalog
   for (let i = 0; i < n; i++) if (bad[i]) badPositions++;
   let out = flagRows(table, bad, reasons);
   out = withSchemaMetadata(out, setJsonMeta(out.schema.metadata, META.roles, roles));
+  raDeg ??= new Float64Array(n).fill(NaN);
+  decDeg ??= new Float64Array(n).fill(NaN);
   return { table: out, roles, raDeg, decDeg, units, positions, badPositions, notes, file };
 }
 

@@ -91,14 +91,15 @@ function gatherColumn(table: Table, name: string, rows: Int32Array): ColumnData 
   if (kind === undefined || !GATHER_KINDS.has(kind)) return undefined;
   const chunk = v.data[0]!;
   // Arrow slices `values` already (chunk.offset only indexes the validity bitmap)
-  const src = chunk.values as Float64Array;
+  const src = chunk.values as Float64Array | Int32Array | Float32Array | Int8Array | Int16Array | Uint8Array | Uint16Array | Uint32Array;
   const n = rows.length;
   const dst = new (src.constructor as Float64ArrayConstructor)(n);
+  // one loop per array type, so that each stays monomorphic (a shared loop over six types is not)
+  const missing = src instanceof Float64Array ? gatherF64(src, dst, rows) : src instanceof Int32Array ? gatherI32(src, dst as unknown as Int32Array, rows) : gatherAny(src, dst, rows);
   let nulls: Uint8Array | undefined;
-  for (let t = 0; t < n; t++) {
-    const r = rows[t]!;
-    if (r < 0) (nulls ??= new Uint8Array(n))[t] = 1;
-    else dst[t] = src[r]!;
+  if (missing > 0) {
+    nulls = new Uint8Array(n);
+    for (let t = 0; t < n; t++) if (rows[t]! < 0) nulls[t] = 1;
   }
   const out: ColumnData = { name, kind, values: dst, meta: columnMeta(table, name) };
   if (nulls) out.nulls = nulls;
@@ -141,6 +142,37 @@ function joinedValidity(a: Table, b: Table, j: JoinedRows, aliasA: string, alias
 function allOnes(x: Uint8Array): boolean {
   for (let i = 0; i < x.length; i++) if (x[i] !== 1) return false;
   return true;
+}
+
+/** dst[t] = src[rows[t]] where rows[t] >= 0; returns the number of rows < 0 (left as 0). */
+function gatherF64(src: Float64Array, dst: Float64Array, rows: Int32Array): number {
+  let missing = 0;
+  for (let t = 0; t < rows.length; t++) {
+    const r = rows[t]!;
+    if (r >= 0) dst[t] = src[r]!;
+    else missing++;
+  }
+  return missing;
+}
+
+function gatherI32(src: Int32Array, dst: Int32Array, rows: Int32Array): number {
+  let missing = 0;
+  for (let t = 0; t < rows.length; t++) {
+    const r = rows[t]!;
+    if (r >= 0) dst[t] = src[r]!;
+    else missing++;
+  }
+  return missing;
+}
+
+function gatherAny(src: ArrayLike<number>, dst: { [k: number]: number }, rows: Int32Array): number {
+  let missing = 0;
+  for (let t = 0; t < rows.length; t++) {
+    const r = rows[t]!;
+    if (r >= 0) dst[t] = src[r]!;
+    else missing++;
+  }
+  return missing;
 }
 
 export interface MatchTableOptions {
