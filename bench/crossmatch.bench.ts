@@ -7,7 +7,9 @@
  * into cell order), match (query, pair sort, scoring, nearest), the whole CLI run from Arrow and from
  * CSV files (output written), the CLI's peak memory, and astropy's match_to_catalog_sky (load + match)
  * on the same CSV files in the same run, with the ratio. Baselines side by side: the brute-force twin
- * (1e4 x 1e4) and one SkyIndex (geokdbush) nearest query per row (1e5).
+ * (3e3 x 3e3) and one SkyIndex (geokdbush) nearest query per row (1e5); the whole crossMatch on one
+ * thread beside the same in two declination bands, one on a worker thread (dist/crossmatch-worker.js);
+ * the CLI from Arrow with --threads 1 beside the default.
  * Kernels are warmed on a small odd-sized input first (V8 de-optimises a hot loop whose tail never ran).
  */
 import { spawnSync } from "node:child_process";
@@ -17,7 +19,8 @@ import { cpus } from "node:os";
 import { randomLcg, randomNormal, randomUniform } from "d3-random";
 import { tableFromColumns } from "../src/catalogue/columns.js";
 import { writeTable } from "../src/catalogue/io.js";
-import { crossMatch } from "../src/crossmatch/match.js";
+import { crossMatch, crossMatchBanded } from "../src/crossmatch/match.js";
+import { BandPool } from "../src/crossmatch/threads.js";
 import { buildZoneIndex, chooseCellRad, makeZoneGrid, occupiedAreaSr, PairBuffer, positionBlock, queryZoneIndex, skyPoints, sortPairs, sortQueries } from "../src/crossmatch/zones.js";
 import { scoreCandidates, selectMatches } from "../src/crossmatch/select.js";
 import { brutePairs } from "../src/crossmatch/brute.js";
@@ -181,6 +184,25 @@ async function main() {
     await writeTable(tA, files.aCsv);
     await writeTable(tB, files.bCsv);
 
+    // the whole match (positions to chosen pairs) on one thread and on two (a worker takes a band)
+    const one: number[] = [];
+    const two: number[] = [];
+    {
+      const pool = new BandPool(2, new URL("../../dist/crossmatch-worker.js", import.meta.url));
+      const A = { raDeg: p.raA, decDeg: p.decA };
+      const Bs = { raDeg: p.raB, decDeg: p.decB };
+      await crossMatchBanded(A, Bs, { radiusArcsec: RADIUS_ARCSEC }, 2, pool.run); // the worker's warm-up
+      for (let r = 0; r < RUNS; r++) {
+        let t = performance.now();
+        sink += crossMatch(A, Bs, { radiusArcsec: RADIUS_ARCSEC }).chosen.length;
+        one.push((performance.now() - t) / 1000);
+        t = performance.now();
+        sink += (await crossMatchBanded(A, Bs, { radiusArcsec: RADIUS_ARCSEC }, 2, pool.run)).chosen.length;
+        two.push((performance.now() - t) / 1000);
+      }
+      if (pool.size === 0) console.log("  (no worker script: npm run build first)");
+      await pool.close();
+    }
     const idx: number[] = [];
     const mat: number[] = [];
     const cidx: number[] = [];
@@ -196,6 +218,8 @@ async function main() {
       matched = k.matched;
     }
     const arrow: number[] = [];
+    const arrow1: number[] = [];
+    const carrow1: number[] = [];
     const csv: number[] = [];
     const carrow: number[] = [];
     const ccsv: number[] = [];
@@ -207,6 +231,9 @@ async function main() {
       arrow.push(x.seconds);
       carrow.push(x.cpu);
       rss.push(x.rssMiB);
+      const x1 = runCli(["match", files.aArrow, files.bArrow, "-o", join(OUT, `out-${n}.arrow`), "--radius", `${RADIUS_ARCSEC}arcsec`, "--threads", "1", "-q"]);
+      arrow1.push(x1.seconds);
+      carrow1.push(x1.cpu);
       const y = runCli(["match", files.aCsv, files.bCsv, "-o", join(OUT, `out-${n}.csv`), "--radius", `${RADIUS_ARCSEC}arcsec`, "-q"]);
       csv.push(y.seconds);
       ccsv.push(y.cpu);
@@ -224,6 +251,8 @@ async function main() {
     const ma = median(mat);
     console.log(`\n${n.toExponential(0)} x ${n.toExponential(0)} at ${RADIUS_ARCSEC}": ${matched} matched (nearest)`);
     console.log(`  wall: index build ${fmt(ia)}   match ${fmt(ma)}   index + match ${fmt(ia + ma)}   (CPU: ${fmt(median(cidx))} + ${fmt(median(cmat))})`);
+    console.log(`  wall: whole match (positions to chosen pairs) on 1 thread ${fmt(median(one))}, on 2 threads (worker bands) ${fmt(median(two))}`);
+    console.log(`  wall: CLI from Arrow on 1 thread (--threads 1) ${fmt(median(arrow1))} (CPU ${fmt(median(carrow1))})`);
     console.log(`  wall: CLI from Arrow ${fmt(median(arrow))}   CLI from CSV ${fmt(median(csv))}   (CPU: ${fmt(median(carrow))}, ${fmt(median(ccsv))})   peak RSS ${Math.max(...rss).toFixed(0)} MiB`);
     if (py.length) {
       const t = median(py);
