@@ -195,8 +195,11 @@ function classifyColumn(recs: CsvRecords, first: number, j: number, cls: Uint8Ar
   const ends = recs.cellEnd;
   const flags = recs.cellFlags;
   const values = recs.cellValue;
+  const recFirst = recs.recFirst;
+  const recCount = recs.recCount;
   for (let i = 0; i < rows; i++) {
-    const k = recs.cellAt(first + i, j);
+    const r = first + i;
+    const k = j < recCount[r]! ? recFirst[r]! + j : -1;
     if (k < 0) {
       cls[i] = C_NULL;
       continue;
@@ -480,12 +483,14 @@ export function parseCsvBytes(bytes: Uint8Array, options: CsvOptions): ParsedCol
   const first = hasUnits ? 2 : 1;
   const rows = Math.max(0, recs.records - first);
   const reasons = new Array<string>(rows).fill("");
-  const sourceRows = new Int32Array(rows);
+  const sourceRows = recs.recLine.slice(first, first + rows);
+  const counts = recs.recCount;
+  const unterminated = recs.recUnterminated;
   for (let r = 0; r < rows; r++) {
-    const line = recs.recLine[first + r]!;
-    const count = recs.recCount[first + r]!;
-    sourceRows[r] = line;
-    if (recs.recUnterminated[first + r]) addReason(reasons, r, `line ${line}: quote not closed before the end of the file`);
+    const count = counts[first + r]!;
+    if (count === width && !unterminated[first + r]) continue;
+    const line = sourceRows[r]!;
+    if (unterminated[first + r]) addReason(reasons, r, `line ${line}: quote not closed before the end of the file`);
     if (count !== width) {
       let text = `line ${line}: ${count} ${count === 1 ? "field" : "fields"}, expected ${width}`;
       if (count > width) text += ` (extra: ${recs.recordCells(first + r).slice(width).map((c) => JSON.stringify(c)).join(", ")})`;
