@@ -20,6 +20,9 @@
  *   `column cz: "abc" is not a number`. Everything else is text (sexagesimal angles stay text).
  * - A row with too few fields gets nulls, one with too many keeps the extra cells in its reason:
  *   `line 17: 5 fields, expected 7` / `line 17: 9 fields, expected 7 (extra: "a", "b")`.
+ * - The delimiter is one ASCII character other than a quote or a line end.
+ * The reader works on the UTF-8 bytes (csv-records.ts cuts them into records and cell spans, numbers
+ * are read from the bytes by decimal.ts with exactly Number()'s result); only text cells become strings.
  */
 import type { Table } from "apache-arrow";
 import type { ColumnData, ColumnKind, ColumnMeta } from "../columns.js";

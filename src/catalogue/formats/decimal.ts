@@ -5,8 +5,10 @@
  * back to the same double, the closest of them) or say they cannot decide, and the caller then
  * asks Number() / String() itself.
  *
- * Method: the value is computed in double-double arithmetic (Dekker's exact product, Knuth's exact
- * sum; Dekker 1971, "A floating-point technique for extending the available precision") against
+ * Method: the value is computed in double-double arithmetic (Dekker's exact product, Dekker 1971, "A
+ * floating-point technique for extending the available precision"; Knuth's exact sum, TAOCP vol. 2
+ * 4.2.2; Clinger's fast path for short inputs, Clinger 1990, "How to read floating point numbers
+ * accurately") against
  * powers of ten kept as double-doubles, to about 2^-100 relative. A result is accepted only when
  * it lies farther than 2^-95 relative from the nearest rounding boundary; closer cases (true ties
  * among them) go to the fallback. Handled range: up to 18 significant digits and decimal exponents
