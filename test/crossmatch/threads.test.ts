@@ -85,7 +85,7 @@ describe("peculiar match on threads", () => {
   it("writes the same file with --threads 2 as with --threads 1", async () => {
     const { dir, cleanup } = tempDir();
     try {
-      // 60 000 rows each (above the size at which the command uses its workers): uniform sky, and
+      // 60 000 rows each (an explicit --threads uses the workers at any size): uniform sky, and
       // B = A's first 40 000 rows moved by up to 1 arcsec plus 20 000 unrelated rows
       const n = 60_000;
       const u = randomUniform.source(randomLcg(33))(0, 1);
