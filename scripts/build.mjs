@@ -17,8 +17,9 @@ const node = {
 // Code splitting keeps each command's dependencies (arrow, d3, XML, ...) out of start-up: the command
 // table imports commands lazily, and with splitting each lands in its own chunk under dist/chunks/.
 rmSync("dist/chunks", { recursive: true, force: true });
-// dist/crossmatch-worker.js: the worker thread of the cross-match bands (src/crossmatch/threads.ts finds it next to the chunks).
-await build({ ...node, entryPoints: { cli: "src/cli/main.ts", index: "src/index.ts", "crossmatch-worker": "src/crossmatch/worker.ts" }, outdir: "dist", splitting: true, chunkNames: "chunks/[name]-[hash]" });
+// dist/crossmatch-worker.js: the worker thread of the cross-match bands (src/crossmatch/threads.ts finds it next to the chunks);
+// dist/read-worker.js reads a second input while the first is read (src/catalogue/read-ahead.ts).
+await build({ ...node, entryPoints: { cli: "src/cli/main.ts", index: "src/index.ts", "crossmatch-worker": "src/crossmatch/worker.ts", "read-worker": "src/catalogue/read-worker.ts" }, outdir: "dist", splitting: true, chunkNames: "chunks/[name]-[hash]" });
 chmodSync("dist/cli.js", 0o755);
 
 // The web view: one browser bundle (d3, apache-arrow and our browser-safe modules) plus static files.

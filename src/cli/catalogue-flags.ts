@@ -12,7 +12,9 @@
  * values, then loadForCommand for each input.
  */
 import { PeculiarError, usageError } from "../errors.js";
-import { loadCatalogue, type Catalogue } from "../catalogue/load.js";
+import { loadCatalogue, prepareCatalogue, type Catalogue, type PrepareOptions } from "../catalogue/load.js";
+import { readTableAhead, type ReadAhead } from "../catalogue/read-ahead.js";
+import type { Table } from "apache-arrow";
 import { describeRoles } from "../catalogue/roles.js";
 import { countInvalid } from "../catalogue/validity.js";
 import { ROLES, type Role, type RoleMap } from "../catalogue/meta.js";
@@ -108,14 +110,33 @@ export function reportCatalogue(cat: Catalogue, io: Io): void {
  * Loads input number `index` (1-based) with the shared flags and reports it. `require` lists the
  * roles the command needs. An override that names a column of another input only is an error here.
  */
-export async function loadForCommand(path: string, flags: CatalogueFlags, io: Io, options: { index?: number; require?: Role[] } = {}): Promise<Catalogue> {
+/**
+ * Starts reading an input on a worker thread (read-ahead.ts) with the command's --format and --hdu:
+ * give the promise to loadForCommand as `table` to read two inputs at once (cancel it if it is not needed).
+ */
+export function readAheadForCommand(path: string, flags: CatalogueFlags): ReadAhead {
+  const read: { format?: FormatName; hdu?: number | string } = {};
+  if (flags.format !== undefined) read.format = flags.format;
+  if (flags.hdu !== undefined) read.hdu = flags.hdu;
+  const p = readTableAhead(path, read);
+  p.catch(() => {}); // the error is raised where the table is awaited
+  return p;
+}
+
+export async function loadForCommand(path: string, flags: CatalogueFlags, io: Io, options: { index?: number; require?: Role[]; table?: Promise<Table> } = {}): Promise<Catalogue> {
   const o: Parameters<typeof loadCatalogue>[1] = { overrides: overridesFor(flags, options.index ?? 1), units: flags.units };
   if (flags.format !== undefined) o.format = flags.format;
   if (flags.hdu !== undefined) o.hdu = flags.hdu;
   if (options.require) o.require = options.require;
   let cat: Catalogue;
   try {
-    cat = await loadCatalogue(path, o);
+    if (options.table) {
+      const prep: PrepareOptions = { file: path };
+      if (o.overrides) prep.overrides = o.overrides;
+      if (o.units) prep.units = o.units;
+      if (o.require) prep.require = o.require;
+      cat = prepareCatalogue(await options.table, prep);
+    } else cat = await loadCatalogue(path, o);
   } catch (e) {
     if (e instanceof PeculiarError && e.code === "column" && e.place.file === undefined) {
       throw new PeculiarError("column", e.message, { file: path }, { cause: e });

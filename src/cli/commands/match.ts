@@ -7,7 +7,7 @@ import { basename, extname } from "node:path";
 import type { Command, Io } from "../command.js";
 import { COMMON_FLAGS, numberFlag, parseFlags } from "../command.js";
 import { usageError } from "../../errors.js";
-import { CATALOGUE_FLAGS, CATALOGUE_FLAGS_HELP, loadForCommand, parseCatalogueFlags } from "../catalogue-flags.js";
+import { CATALOGUE_FLAGS, CATALOGUE_FLAGS_HELP, loadForCommand, parseCatalogueFlags, readAheadForCommand } from "../catalogue-flags.js";
 import { assertNotSameFile, writeFileAtomic, writeTable } from "../../catalogue/io.js";
 import { parseAngleArcsec } from "../../crossmatch/radius.js";
 import { availableParallelism } from "node:os";
@@ -149,9 +149,17 @@ const command: Command = {
     const noteIo: Io = { ...io, note: (line) => (phaseDone(), io.note(line)) };
 
     phase(`reading ${pathA}`);
-    const catA = await loadForCommand(pathA, flags, noteIo, { index: 1, require: ["ra", "dec"] });
+    // B is read on a worker thread while A is read here (a large text file; else it is read later here)
+    const aheadB = readAheadForCommand(pathB, flags);
+    let catA;
+    try {
+      catA = await loadForCommand(pathA, flags, noteIo, { index: 1, require: ["ra", "dec"] });
+    } catch (e) {
+      aheadB.cancel();
+      throw e;
+    }
     phase(`reading ${pathB}`);
-    const catB = await loadForCommand(pathB, flags, noteIo, { index: 2, require: ["ra", "dec"] });
+    const catB = await loadForCommand(pathB, flags, noteIo, { index: 2, require: ["ra", "dec"], table: aheadB });
     const xa = sideExtras(catA.table, catA.roles, pathA);
     const xb = sideExtras(catB.table, catB.roles, pathB);
     for (const n of xa.notes) io.note(`${pathA}: ${n}`);
