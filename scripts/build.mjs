@@ -18,8 +18,9 @@ const node = {
 // table imports commands lazily, and with splitting each lands in its own chunk under dist/chunks/.
 rmSync("dist/chunks", { recursive: true, force: true });
 // dist/crossmatch-worker.js: the worker thread of the cross-match bands (src/crossmatch/threads.ts finds it next to the chunks);
-// dist/read-worker.js reads a second input while the first is read (src/catalogue/read-ahead.ts).
-await build({ ...node, entryPoints: { cli: "src/cli/main.ts", index: "src/index.ts", "crossmatch-worker": "src/crossmatch/worker.ts", "read-worker": "src/catalogue/read-worker.ts" }, outdir: "dist", splitting: true, chunkNames: "chunks/[name]-[hash]" });
+// dist/read-worker.js reads a second input while the first is read (src/catalogue/read-ahead.ts); dist/csv-worker.js
+// formats half of a large CSV output (src/catalogue/csv-threads.ts).
+await build({ ...node, entryPoints: { cli: "src/cli/main.ts", index: "src/index.ts", "crossmatch-worker": "src/crossmatch/worker.ts", "read-worker": "src/catalogue/read-worker.ts", "csv-worker": "src/catalogue/csv-worker.ts" }, outdir: "dist", splitting: true, chunkNames: "chunks/[name]-[hash]" });
 chmodSync("dist/cli.js", 0o755);
 
 // The web view: one browser bundle (d3, apache-arrow and our browser-safe modules) plus static files.

@@ -8,7 +8,7 @@ import { rename, rm, writeFile } from "node:fs/promises";
 import { basename, dirname, join, resolve } from "node:path";
 import { PeculiarError } from "../errors.js";
 
-export async function writeFileAtomic(path: string, data: Uint8Array | string | Iterable<Uint8Array>): Promise<void> {
+export async function writeFileAtomic(path: string, data: Uint8Array | string | Iterable<Uint8Array> | AsyncIterable<Uint8Array>): Promise<void> {
   const tmp = join(dirname(path), `.${basename(path)}.${randomBytes(6).toString("hex")}.tmp`);
   try {
     await writeFile(tmp, data, { flag: "wx" });

@@ -12,6 +12,7 @@ import { assertNotSameFile, writeFileAtomic } from "./atomic.js";
 import { arrowFromTable, parseArrowColumns } from "./formats/arrow.js";
 import { parseCsvBytes } from "./formats/csv.js";
 import { csvBytes, csvChunks } from "./formats/csv-write.js";
+import { csvChunksThreaded } from "./csv-threads.js";
 import { parseFitsColumns } from "./formats/fits.js";
 import { fitsFromTable } from "./formats/fits-write.js";
 import { finishTable, type ParsedColumns, type SourceInfo } from "./formats/table.js";
@@ -220,11 +221,16 @@ export async function writeTable(table: Table, path: string, options: WriteOptio
   if (options.input !== undefined) assertNotSameFile(options.input, path);
   const format = options.format ?? formatFromPath(path);
   const stream = options.stream ?? formatExtension(path) === ".arrows";
-  let data: Uint8Array | string | Iterable<Uint8Array>;
+  let data: Uint8Array | string | Iterable<Uint8Array> | AsyncIterable<Uint8Array>;
   try {
-    // CSV/TSV goes to the file chunk by chunk as it is encoded (never the whole text at once).
+    // CSV/TSV goes to the file chunk by chunk as it is encoded (never the whole text at once), the
+    // second half of a large table formatted on a worker thread meanwhile (csv-threads.ts).
     const text = format === "csv" || format === "tsv";
-    data = text && !isGzipPath(path) ? csvChunks(table, format === "tsv" ? { delimiter: "\t" } : {}) : encodeTable(table, format, { stream });
+    if (text && !isGzipPath(path)) {
+      const o = format === "tsv" ? { delimiter: "\t" } : {};
+      csvChunks(table, o); // checks the delimiter now (an error before any file is made); not iterated
+      data = csvChunksThreaded(table, o);
+    } else data = encodeTable(table, format, { stream });
   } catch (e) {
     if (e instanceof PeculiarError && e.place.file === undefined) throw new PeculiarError(e.code, e.message, { file: path }, { cause: e });
     throw e;

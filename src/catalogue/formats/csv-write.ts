@@ -12,6 +12,8 @@ import { formatFloat } from "./table.js";
 
 export interface CsvWriteOptions {
   delimiter?: string;
+  /** Write the header (and the units rows); false for the rows of a table cut in parts. Default true. */
+  header?: boolean;
 }
 
 const NEEDS_QUOTES_RE = /["\r\n]|^\s|\s$|^#/;
@@ -271,10 +273,10 @@ class RowWriter {
 export function csvChunks(table: Table, options: CsvWriteOptions = {}): Generator<Uint8Array> {
   const delimText = options.delimiter ?? ",";
   if (delimText.length !== 1 || delimText.charCodeAt(0) > 127) throw new PeculiarError("usage", "delimiter must be one ASCII character", { value: delimText });
-  return chunks(table, delimText);
+  return chunks(table, delimText, options.header ?? true);
 }
 
-function* chunks(table: Table, delimText: string): Generator<Uint8Array> {
+function* chunks(table: Table, delimText: string, header: boolean): Generator<Uint8Array> {
   const delim = delimText.charCodeAt(0);
   const fields = table.schema.fields;
   const width = fields.length;
@@ -287,7 +289,7 @@ function* chunks(table: Table, delimText: string): Generator<Uint8Array> {
   if (anyUnit) lines.push(UNITS_MARKER);
   lines.push(fields.map((f) => quote(f.name, delimText, false)).join(delimText));
   if (anyUnit) lines.push(units.map((u) => (u ? quote(u, delimText, false) : "")).join(delimText));
-  sink.text(lines.join("\n") + "\n");
+  if (header) sink.text(lines.join("\n") + "\n");
   let row0 = 0;
   for (const batch of table.batches) {
     const n = batch.numRows;
