@@ -52,6 +52,8 @@ export interface BinnedColours {
   order: Int32Array;
   start: Int32Array;
   colours: string[];
+  /** Each row's bin (255: not drawn). */
+  bin: Uint8Array;
 }
 
 /**
@@ -90,7 +92,7 @@ export function binByColour(v: ArrayLike<number>, scale: VelocityScale, draw?: U
   const colours: string[] = [];
   for (let b = 0; b < N_BINS; b++) colours.push(scale(-lim + ((b + 0.5) / N_BINS) * 2 * lim));
   colours.push(UNKNOWN_COLOUR);
-  return { order, start, colours };
+  return { order, start, colours, bin };
 }
 
 const binCache = new WeakMap<object, { scale: VelocityScale; bins: BinnedColours }>();

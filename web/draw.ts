@@ -92,15 +92,17 @@ export function drawBinnedPoints(
   let by0 = H;
   let bx1 = 0;
   let by1 = 0;
-  // Unknown values (bin N_BINS) first, so galaxies with a measured velocity are drawn over them.
-  for (let j = 0; j <= N_BINS; j++) {
-    const b = j === 0 ? N_BINS : j - 1;
-    const a = bins.start[b]!;
-    const e = bins.start[b + 1]!;
-    if (a === e) continue;
-    const colour = pixelOf(bins.colours[b]!);
-    for (let q = a; q < e; q++) {
-      const i = bins.order[q]!;
+  // Unknown values (bin N_BINS) first, so galaxies with a measured velocity are drawn over them; rows in
+  // index order within each pass (the columns are read in sequence; no colour is always on top).
+  const colourOf = new Uint32Array(N_BINS + 1);
+  for (let c = 0; c <= N_BINS; c++) colourOf[c] = pixelOf(bins.colours[c]!);
+  const bin = bins.bin;
+  const n = bin.length;
+  for (let pass = 0; pass < 2; pass++) {
+    for (let i = 0; i < n; i++) {
+      const b = bin[i]!;
+      if (b === 255 || (pass === 0) !== (b === N_BINS)) continue;
+      const colour = colourOf[b]!;
       const x = px[i]!;
       const y = py[i]!;
       if (x !== x || y !== y) continue;
@@ -114,6 +116,22 @@ export function drawBinnedPoints(
       if (x1 > bx1) bx1 = x1;
       if (y0 < by0) by0 = y0;
       if (y1 > by1) by1 = y1;
+      if (size === 3 && x1 - x0 === 3 && y1 - y0 === 3) {
+        // the common case (1.5 px points at 1x), unrolled
+        let q = y0 * W + x0;
+        buf[q] = colour;
+        buf[q + 1] = colour;
+        buf[q + 2] = colour;
+        q += W;
+        buf[q] = colour;
+        buf[q + 1] = colour;
+        buf[q + 2] = colour;
+        q += W;
+        buf[q] = colour;
+        buf[q + 1] = colour;
+        buf[q + 2] = colour;
+        continue;
+      }
       for (let yy = y0; yy < y1; yy++) {
         const row = yy * W;
         for (let xx = row + x0, end = row + x1; xx < end; xx++) buf[xx] = colour;
@@ -164,13 +182,29 @@ function maskFor(kind: "ring" | "cross", radius: number, lineWidth: number, alph
   return m;
 }
 
+const markedCache = new WeakMap<ViewState["data"], { groupMembers: Int32Array; outliers: Int32Array }>();
+
+/** The rows that carry a mark (members of groups of 2 or more, outliers), listed once per catalogue. */
+function markedRows(d: ViewState["data"]): { groupMembers: Int32Array; outliers: Int32Array } {
+  let m = markedCache.get(d);
+  if (m) return m;
+  const g: number[] = [];
+  const o: number[] = [];
+  for (let i = 0; i < d.n; i++) {
+    if (d.has.group_id && d.groupId[i]! >= 0 && d.groupSize[i]! >= 2) g.push(i);
+    if (d.has.outlier && d.outlier[i] !== 0) o.push(i);
+  }
+  m = { groupMembers: Int32Array.from(g), outliers: Int32Array.from(o) };
+  markedCache.set(d, m);
+  return m;
+}
+
 /**
  * Outlier crosses and group rings for drawn rows, the selection rings on top: written into the pixel
  * layer and composited once (a path of 1e4 arcs is slow in a software-rendered canvas).
  */
 export function drawMarks(ctx: CanvasRenderingContext2D, state: ViewState, px: Float64Array, py: Float64Array, r: number): void {
   const d = state.data;
-  const n = d.n;
   const W = ctx.canvas.width;
   const H = ctx.canvas.height;
   const t = ctx.getTransform();
@@ -181,12 +215,13 @@ export function drawMarks(ctx: CanvasRenderingContext2D, state: ViewState, px: F
   let by0 = H;
   let bx1 = 0;
   let by1 = 0;
-  const stampAll = (mask: MarkMask, colour: string, rows: Iterable<number> | number, pick: (i: number) => boolean) => {
+  const stampAll = (mask: MarkMask, colour: string, rows: Int32Array) => {
     const rgb = pixelOf(colour) & 0xffffff;
-    const one = (i: number) => {
+    for (let j = 0; j < rows.length; j++) {
+      const i = rows[j]!;
       const x = px[i]!;
       const y = py[i]!;
-      if (x !== x || y !== y || !pick(i)) return;
+      if (x !== x || y !== y) continue;
       const cx = Math.floor(x * k + t.e);
       const cy = Math.floor(y * k + t.f);
       for (let q = 0; q < mask.alpha.length; q++) {
@@ -202,13 +237,12 @@ export function drawMarks(ctx: CanvasRenderingContext2D, state: ViewState, px: F
         if (Y < by0) by0 = Y;
         if (Y >= by1) by1 = Y + 1;
       }
-    };
-    if (typeof rows === "number") for (let i = 0; i < rows; i++) one(i);
-    else for (const i of rows) one(i);
+    }
   };
-  if (d.has.group_id) stampAll(maskFor("ring", r + 1.5, 0.8, 0.7, k), GROUP_RING, n, (i) => d.groupId[i]! >= 0 && d.groupSize[i]! >= 2);
-  if (d.has.outlier) stampAll(maskFor("cross", r + 2.5, 1.2, 1, k), OUTLIER_MARK, n, (i) => d.outlier[i] !== 0);
-  if (state.nSelected > 0) stampAll(maskFor("ring", r + 1, 1, 1, k), SELECTED_RING, state.selectedRows, () => true);
+  const marked = markedRows(d);
+  stampAll(maskFor("ring", r + 1.5, 0.8, 0.7, k), GROUP_RING, marked.groupMembers);
+  stampAll(maskFor("cross", r + 2.5, 1.2, 1, k), OUTLIER_MARK, marked.outliers);
+  if (state.nSelected > 0) stampAll(maskFor("ring", r + 1, 1, 1, k), SELECTED_RING, state.selectedRows);
   composite(ctx, L, bx0, by0, bx1, by1, 1);
 }
 

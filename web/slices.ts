@@ -31,8 +31,9 @@ export class SlicePanel extends CanvasPanel {
   private centre: [number, number] = [0, 0];
   private pxPerMpc = 1;
 
-  /** Velocity lines of the last draw (the vector export writes them out). */
+  /** Velocity lines of the last draw (the vector export writes them out), in lineBuf. */
   private lines: SliceLines | null = null;
+  private lineBuf = new Float64Array(0);
 
   /** Velocity lines of the last draw, one SVG path per colour bin, when there are at most 20 000 rows. */
   override vectorExtras(): string {
@@ -64,27 +65,37 @@ export class SlicePanel extends CanvasPanel {
     const B = cols[ib]!;
     const px = this.px;
     const py = this.py;
-    const start = new Int32Array(N_BINS + 1);
-    const xy = new Float64Array(4 * bins.order.length);
-    let m = 0;
-    for (let bn = 0; bn < N_BINS; bn++) {
-      start[bn] = m;
-      for (let q = bins.start[bn]!, e = bins.start[bn + 1]!; q < e; q++) {
-        const i = bins.order[q]!;
-        if (px[i] !== px[i]) continue; // not in the slab
-        const s = o.s[i]!;
-        const u = o.u[i]!;
-        if (!(s > 0) || !Number.isFinite(u)) continue;
-        const L = (u * k) / s;
-        xy[4 * m] = px[i]!;
-        xy[4 * m + 1] = py[i]!;
-        xy[4 * m + 2] = A[i]! * L;
-        xy[4 * m + 3] = -B[i]! * L;
-        m++;
-      }
+    // rows in index order (the columns are read in sequence), placed bin by bin by counting
+    const n = px.length;
+    const bin = bins.bin;
+    const count = new Int32Array(N_BINS + 1);
+    for (let i = 0; i < n; i++) {
+      const bn = bin[i]!;
+      if (bn >= N_BINS || px[i] !== px[i]) continue; // unknown colour, or not in the slab
+      const s = o.s[i]!;
+      if (!(s > 0) || !Number.isFinite(o.u[i]!)) continue;
+      count[bn + 1]!++;
     }
-    start[N_BINS] = m;
-    return { start, xy };
+    for (let bn = 0; bn < N_BINS; bn++) count[bn + 1]! += count[bn]!;
+    const start = count.slice();
+    const m = start[N_BINS]!;
+    // one buffer per panel, grown when needed (a fresh 4 n array per draw cost more than the lines)
+    if (this.lineBuf.length < 4 * m) this.lineBuf = new Float64Array(Math.max(4 * m, 2 * this.lineBuf.length));
+    const xy = this.lineBuf;
+    for (let i = 0; i < n; i++) {
+      const bn = bin[i]!;
+      if (bn >= N_BINS || px[i] !== px[i]) continue;
+      const s = o.s[i]!;
+      const u = o.u[i]!;
+      if (!(s > 0) || !Number.isFinite(u)) continue;
+      const L = (u * k) / s;
+      const q = 4 * count[bn]!++;
+      xy[q] = px[i]!;
+      xy[q + 1] = py[i]!;
+      xy[q + 2] = A[i]! * L;
+      xy[q + 3] = -B[i]! * L;
+    }
+    return { start, xy: xy.subarray(0, 4 * m) };
   }
 
   protected override zoomAt(x: number, y: number, factor: number): boolean {
