@@ -6,7 +6,7 @@
  */
 import { viewDataFromIPC, groupsOf } from "./data.js";
 import { ViewState, type ProjectionName, type SkyFrameName } from "./state.js";
-import { galaxyView, groupView, homeView, originInputs, type OriginInputs, type OriginView } from "./origin.js";
+import { galaxyView, groupView, homeView, originInputs, warmRecentre, type OriginInputs, type OriginView } from "./origin.js";
 import { symmetricLimitKmS, velocityScale } from "./colour.js";
 import { SkyMap } from "./sky-map.js";
 import { HubblePanel } from "./hubble.js";
@@ -306,6 +306,8 @@ async function start(): Promise<void> {
   timing.firstDrawMs = performance.now() - tStart;
   $("status").textContent = `${data.n} galaxies drawn in ${timing.firstDrawMs.toFixed(0)} ms`;
   document.body.dataset.ready = "1";
+  // compile the re-centring kernel while the user looks at the first draw
+  setTimeout(() => warmRecentre(inputs), 0);
 
   (window as unknown as { peculiarView: unknown }).peculiarView = {
     state,
