@@ -6,7 +6,7 @@
 import { Utf8, type Data, type Table } from "apache-arrow";
 import { PeculiarError } from "../../errors.js";
 import { kindOf } from "../columns.js";
-import { NULL_TOKENS, UNITS_MARKER } from "./csv.js";
+import { isBlank, isNullToken, NULL_TOKENS, UNITS_MARKER } from "./csv.js";
 import { writeShortest } from "./decimal.js";
 import { formatFloat } from "./table.js";
 
@@ -30,24 +30,6 @@ const ROOM = 1 << 14;
 const encoder = new TextEncoder();
 const decoder = new TextDecoder();
 
-/** NULL_TOKENS as bytes, by length (a text cell equal to one is quoted). */
-const NULL_BYTES: Uint8Array[][] = [];
-for (const t of NULL_TOKENS) (NULL_BYTES[t.length] ??= []).push(encoder.encode(t));
-
-function isNullToken(b: Uint8Array, s: number, e: number): boolean {
-  const list = NULL_BYTES[e - s];
-  if (!list) return false;
-  outer: for (const t of list) {
-    for (let i = 0; i < t.length; i++) if (b[s + i] !== t[i]) continue outer;
-    return true;
-  }
-  return false;
-}
-
-/** ASCII characters of JavaScript's \s. */
-function isBlank(c: number): boolean {
-  return c === 32 || (c >= 9 && c <= 13);
-}
 
 // How a column is written.
 const W_F64 = 0;

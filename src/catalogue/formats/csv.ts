@@ -149,7 +149,8 @@ const C_OTHER = 6;
 const NULL_BYTES: Uint8Array[][] = [];
 for (const t of NULL_TOKENS) (NULL_BYTES[t.length] ??= []).push(new TextEncoder().encode(t));
 
-function isNullToken(b: Uint8Array, s: number, e: number): boolean {
+/** Whether bytes [s, e) of b are one of NULL_TOKENS (the reader's nulls; the writer quotes such text). */
+export function isNullToken(b: Uint8Array, s: number, e: number): boolean {
   const list = NULL_BYTES[e - s];
   if (!list) return false;
   outer: for (const t of list) {
@@ -159,7 +160,8 @@ function isNullToken(b: Uint8Array, s: number, e: number): boolean {
   return false;
 }
 
-function isBlank(c: number): boolean {
+/** ASCII characters of JavaScript's \s. */
+export function isBlank(c: number): boolean {
   return c === 32 || (c >= 9 && c <= 13);
 }
 
