@@ -11,7 +11,7 @@ import { PeculiarError } from "../errors.js";
 import { assertNotSameFile, writeFileAtomic } from "./atomic.js";
 import { arrowFromTable, parseArrowColumns } from "./formats/arrow.js";
 import { parseCsvBytes } from "./formats/csv.js";
-import { csvBytes, csvChunks } from "./formats/csv-write.js";
+import { csvBytes } from "./formats/csv-write.js";
 import { csvChunksThreaded } from "./csv-threads.js";
 import { parseFitsColumns } from "./formats/fits.js";
 import { fitsFromTable } from "./formats/fits-write.js";
@@ -226,11 +226,7 @@ export async function writeTable(table: Table, path: string, options: WriteOptio
     // CSV/TSV goes to the file chunk by chunk as it is encoded (never the whole text at once), the
     // second half of a large table formatted on a worker thread meanwhile (csv-threads.ts).
     const text = format === "csv" || format === "tsv";
-    if (text && !isGzipPath(path)) {
-      const o = format === "tsv" ? { delimiter: "\t" } : {};
-      csvChunks(table, o); // checks the delimiter now (an error before any file is made); not iterated
-      data = csvChunksThreaded(table, o);
-    } else data = encodeTable(table, format, { stream });
+    data = text && !isGzipPath(path) ? csvChunksThreaded(table, format === "tsv" ? { delimiter: "\t" } : {}) : encodeTable(table, format, { stream });
   } catch (e) {
     if (e instanceof PeculiarError && e.place.file === undefined) throw new PeculiarError(e.code, e.message, { file: path }, { cause: e });
     throw e;

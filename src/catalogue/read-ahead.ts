@@ -5,30 +5,22 @@
  * for Arrow files (already fast to read) and for small files, it is readTable here. Errors are the
  * same errors, with the same messages (file, row and column).
  */
-import { existsSync, statSync } from "node:fs";
-import { fileURLToPath } from "node:url";
+import { statSync } from "node:fs";
 import { Worker } from "node:worker_threads";
 import { tableFromIPC, type Table } from "apache-arrow";
 import { formatFromPath, readTable, type ReadOptions } from "./io.js";
 import { PeculiarError, type ErrorCode, type ErrorPlace } from "../errors.js";
+import { workerScript } from "../worker-script.js";
 
 /** Files smaller than this are read here: a worker's start-up would cost more than it saves. */
 export const READ_AHEAD_MIN_BYTES = 4 << 20;
-
-function workerUrl(): URL | undefined {
-  for (const rel of ["./read-worker.js", "../read-worker.js"]) {
-    const u = new URL(rel, import.meta.url);
-    if (u.protocol === "file:" && existsSync(fileURLToPath(u))) return u;
-  }
-  return undefined;
-}
 
 /** A read under way: readTable's result, and a way to stop the worker when the result is no longer wanted. */
 export type ReadAhead = Promise<Table> & { cancel(): void };
 
 /** Starts reading `path`; the promise is readTable's result. `how` is for tests (worker script, size threshold). */
 export function readTableAhead(path: string, options: ReadOptions = {}, how: { workerUrl?: URL; minBytes?: number } = {}): ReadAhead {
-  const url = how.workerUrl ?? workerUrl();
+  const url = how.workerUrl ?? workerScript("read-worker.js");
   let size = 0;
   try {
     size = statSync(path).size;
@@ -54,12 +46,11 @@ export function readTableAhead(path: string, options: ReadOptions = {}, how: { w
         reject(e);
       } else reject(new Error(m.error?.message ?? "read worker failed"));
     });
-    w!.on("error", (e) => {
+    w!.on("error", () => {
       if (settled) return;
       done();
       // the worker itself failed (not the file): read it here instead
       readTable(path, options).then(resolve, reject);
-      void e;
     });
     w!.postMessage({ path, options });
   });

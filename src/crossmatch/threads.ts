@@ -5,20 +5,15 @@
  * transferred buffers. Where no worker script is found (the sources run directly, as under vitest) or
  * a worker fails, its bands run on the calling thread: the result is the same either way.
  */
-import { existsSync } from "node:fs";
-import { fileURLToPath } from "node:url";
 import { Worker } from "node:worker_threads";
+import { workerScript } from "../worker-script.js";
 import type { BandRunner } from "./match.js";
 import { degreeBandPairs, type DegreeBandJob } from "./pairs.js";
 import type { PairList } from "./zones.js";
 
-/** The worker script next to this module's bundle chunk: dist/crossmatch-worker.js seen from dist/ or dist/chunks/. */
+/** The worker script of the bands: dist/crossmatch-worker.js. */
 export function defaultWorkerUrl(): URL | undefined {
-  for (const rel of ["./crossmatch-worker.js", "../crossmatch-worker.js"]) {
-    const u = new URL(rel, import.meta.url);
-    if (u.protocol === "file:" && existsSync(fileURLToPath(u))) return u;
-  }
-  return undefined;
+  return workerScript("crossmatch-worker.js");
 }
 
 interface Pending {

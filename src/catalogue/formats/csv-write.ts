@@ -30,7 +30,6 @@ const ROOM = 1 << 14;
 const encoder = new TextEncoder();
 const decoder = new TextDecoder();
 
-
 // How a column is written.
 const W_F64 = 0;
 const W_F32 = 1;
@@ -253,9 +252,14 @@ class RowWriter {
  * strings as `""`, numbers in their shortest round-trip form (ECMAScript Number::toString).
  */
 export function csvChunks(table: Table, options: CsvWriteOptions = {}): Generator<Uint8Array> {
+  return chunks(table, csvDelimiter(options), options.header ?? true);
+}
+
+/** The delimiter of `options` (default ","); an error unless it is one ASCII character. */
+export function csvDelimiter(options: CsvWriteOptions): string {
   const delimText = options.delimiter ?? ",";
   if (delimText.length !== 1 || delimText.charCodeAt(0) > 127) throw new PeculiarError("usage", "delimiter must be one ASCII character", { value: delimText });
-  return chunks(table, delimText, options.header ?? true);
+  return delimText;
 }
 
 function* chunks(table: Table, delimText: string, header: boolean): Generator<Uint8Array> {
