@@ -57,6 +57,8 @@ export interface PrepareOptions {
 export interface LoadOptions extends Omit<PrepareOptions, "file"> {
   format?: FormatName;
   hdu?: number | string;
+  /** The table already being read (readTableAhead); else the file is read here. */
+  table?: Promise<Table>;
 }
 
 /**
@@ -359,7 +361,7 @@ export async function loadCatalogue(path: string, options: LoadOptions = {}): Pr
   const read: { format?: FormatName; hdu?: number | string } = {};
   if (options.format !== undefined) read.format = options.format;
   if (options.hdu !== undefined) read.hdu = options.hdu;
-  const table = await readTable(path, read);
+  const table = await (options.table ?? readTable(path, read));
   const prep: PrepareOptions = { file: path };
   if (options.overrides) prep.overrides = options.overrides;
   if (options.units) prep.units = options.units;

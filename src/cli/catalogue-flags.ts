@@ -12,7 +12,7 @@
  * values, then loadForCommand for each input.
  */
 import { PeculiarError, usageError } from "../errors.js";
-import { loadCatalogue, prepareCatalogue, type Catalogue, type PrepareOptions } from "../catalogue/load.js";
+import { loadCatalogue, type Catalogue } from "../catalogue/load.js";
 import { readTableAhead, type ReadAhead } from "../catalogue/read-ahead.js";
 import type { Table } from "apache-arrow";
 import { describeRoles } from "../catalogue/roles.js";
@@ -128,15 +128,10 @@ export async function loadForCommand(path: string, flags: CatalogueFlags, io: Io
   if (flags.format !== undefined) o.format = flags.format;
   if (flags.hdu !== undefined) o.hdu = flags.hdu;
   if (options.require) o.require = options.require;
+  if (options.table) o.table = options.table;
   let cat: Catalogue;
   try {
-    if (options.table) {
-      const prep: PrepareOptions = { file: path };
-      if (o.overrides) prep.overrides = o.overrides;
-      if (o.units) prep.units = o.units;
-      if (o.require) prep.require = o.require;
-      cat = prepareCatalogue(await options.table, prep);
-    } else cat = await loadCatalogue(path, o);
+    cat = await loadCatalogue(path, o);
   } catch (e) {
     if (e instanceof PeculiarError && e.code === "column" && e.place.file === undefined) {
       throw new PeculiarError("column", e.message, { file: path }, { cause: e });
