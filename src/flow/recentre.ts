@@ -62,6 +62,8 @@ export interface RecentreOptions {
    * where "log" is biased instead (sigma*^2 / (H <D^2>): +0.15% on a 120 Mpc mock without distance errors).
    */
   estimator?: "auto" | "log" | "linear";
+  /** Where the log fit's passes run (default: on this thread). The web view spreads them over a worker. */
+  passes?: LogPasses;
 }
 
 export interface Recentred {
@@ -206,7 +208,7 @@ export function recentre(points: RecentrePoints, origin: RecentreOrigin, opts: R
   let fitSteps = 0;
   const estimator = form === "minor" ? chooseEstimator(opts.estimator ?? "auto", vrErr, used, sigmaStar) : "linear";
   if (estimator === "log" && linearFit.ok) {
-    const g = logDistanceFit(points, o, used, vAB, { h0: opts.h0, hStart: h, dStart: d, fitH0, fitDipole, sigmaStar });
+    const g = logDistanceFit(points, o, used, vAB, { h0: opts.h0, hStart: h, dStart: d, fitH0, fitDipole, sigmaStar, passes: opts.passes });
     if (g.ok) {
       h = g.h;
       d = g.d;
@@ -330,7 +332,7 @@ export function logDistanceFit(
   o: { x: number; y: number; z: number; vx: number; vy: number; vz: number },
   used: Uint8Array,
   vAB: Float64Array,
-  opts: { h0: number; hStart: number; dStart: [number, number, number]; fitH0: boolean; fitDipole: boolean; sigmaStar: number },
+  opts: { h0: number; hStart: number; dStart: [number, number, number]; fitH0: boolean; fitDipole: boolean; sigmaStar: number; passes?: LogPasses },
 ): LogFitResult {
   const { x, y, z, vr, vrErr } = points;
   const n = x.length;
@@ -340,7 +342,8 @@ export function logDistanceFit(
   // The rows offered, packed once with what does not change from step to step (LogRows).
   let m = 0;
   for (let i = 0; i < n; i++) if (used[i] && Number.isFinite(vAB[i]!)) m++;
-  const R: LogRows = { m, ax: new Float64Array(m), ay: new Float64Array(m), az: new Float64Array(m), dc: new Float64Array(m), b2: new Float64Array(m), q0: new Float64Array(m), lnD: new Float64Array(m), f: new Float64Array(m), side: new Float64Array(m) };
+  const passes = opts.passes ?? ONE_THREAD;
+  const R = passes.rows(m);
   const rA2 = o.x * o.x + o.y * o.y + o.z * o.z;
   for (let i = 0, k = 0; i < n; i++) {
     if (!used[i] || !Number.isFinite(vAB[i]!)) continue;
@@ -363,9 +366,12 @@ export function logDistanceFit(
   // After FREEZE_AT steps the set of rows can only shrink and each row keeps the root it had then: a row
   // whose root comes and goes, or a row seen near its closest approach (q near 0, where "the root away
   // from D_c" changes sides), would otherwise make a limit cycle that never converges.
-  const member = new Uint8Array(m).fill(1);
-  const inFit = new Uint8Array(m);
+  const { member, inFit } = R;
+  member.fill(1, 0, m);
   const sums = new HubbleSums();
+  const P = new Float64Array(PASS_PARAMS);
+  const partial = new Float64Array(PARTIAL_SUMS);
+  const ss2 = opts.sigmaStar * opts.sigmaStar;
   const d: [number, number, number] = fitDipole ? [...opts.dStart] : [0, 0, 0];
   let h = fitH0 ? opts.hStart : opts.h0;
   // the fitted parameters as a vector (slots of HubbleSums: 0 = H, 1..3 = dipole)
@@ -376,8 +382,10 @@ export function logDistanceFit(
   const unit = new Float64Array(q);
   let prevNorm = Infinity;
   for (let it = 0; it < MAX_ITER; it++) {
-    logStepSums(R, o, member, inFit, h, d[0], d[1], d[2], opts.sigmaStar * opts.sigmaStar, it >= FREEZE_AT, sums);
-    if (it + 1 >= FREEZE_AT) member.set(inFit);
+    passParams(P, o, h, d, ss2, it >= FREEZE_AT);
+    passes.pass(R, P, partial);
+    setSums(sums, partial);
+    if (it + 1 >= FREEZE_AT) member.set(inFit.subarray(0, m));
     const step = sums.solve(fitH0, fitDipole);
     if (!step.ok) return fail;
     const err = (slot: number) => Math.sqrt(step.cov[slot * 5]!);
@@ -501,9 +509,10 @@ class Anderson {
 /**
  * The rows of the log fit, with the parts of each row's terms that do not depend on (H, d):
  * a = unit line of sight, dc = a . r_A (closest approach), b2 = |r_A|^2 - dc^2, q0 = V_B - a . v_A,
- * lnD = ln D_obs, f = fractional distance error; side is written by logStepSums.
+ * lnD = ln D_obs, f = fractional distance error; side and inFit are written by logStepSums, member by
+ * logDistanceFit. Rows 0..m-1 are used; the arrays may be longer (storage reused between fits).
  */
-interface LogRows {
+export interface LogRows {
   m: number;
   ax: Float64Array;
   ay: Float64Array;
@@ -515,43 +524,144 @@ interface LogRows {
   f: Float64Array;
   /** The root each row takes once frozen: the sign of F'(D_pred), +1 beyond dc, -1 before it. */
   side: Float64Array;
+  /** 1 for the rows a pass looks at. */
+  member: Uint8Array;
+  /** 1 for the rows that had a usable root in the last pass. */
+  inFit: Uint8Array;
+}
+
+const LOG_ROW_COLUMNS = ["ax", "ay", "az", "dc", "b2", "q0", "lnD", "f", "side"] as const;
+
+/** Bytes that logRowsOn needs for `capacity` rows. */
+export function logRowsBytes(capacity: number): number {
+  return capacity * (LOG_ROW_COLUMNS.length * 8 + 2);
 }
 
 /**
- * One Gauss-Newton step's normal equations: for each member row at (H, d), the predicted distance
- * D_pred = dc + t, the root of F = H s^2 - (w - d).(D a - r_A) with t = (q + F'(D_pred)) / (2H) and
- * F'(D_pred) = +-sqrt(q^2 - 4 H F(dc)), signed as q (the root away from dc) or, once frozen, as side,
- * q = (w - d) . a = q0 - d . a and F(dc) = H b2 - (w - d).p = H b2 + (v_A + d).p, p = dc a - r_A
- * (a . p = 0, so V_B drops out); then s_pred, e_pred, kappa = F'(D_pred) D_pred / s_pred and the row
- * y = -kappa ln(D_obs / D_pred) with error |kappa| f and sigmaStar in quadrature, summed into `sums`.
- * inFit[k] = 1 for the rows that had a usable root. No allocation.
+ * LogRows as views on `buffer` from `byteOffset` (a multiple of 8), room for `capacity` rows, of which
+ * the first m are used. The same call on the same SharedArrayBuffer gives another thread the same rows.
  */
-function logStepSums(
-  R: LogRows,
-  o: { x: number; y: number; z: number; vx: number; vy: number; vz: number },
-  member: Uint8Array,
-  inFit: Uint8Array,
-  h: number,
-  d0: number,
-  d1: number,
-  d2: number,
-  ss2: number,
-  frozen: boolean,
-  sums: HubbleSums,
-): void {
-  const { ax: AX, ay: AY, az: AZ, dc: DC, b2: B2, q0: Q0, lnD: LND, f: FR, side: SIDE } = R;
-  const ox = o.x;
-  const oy = o.y;
-  const oz = o.z;
-  const ux = o.vx + d0;
-  const uy = o.vy + d1;
-  const uz = o.vz + d2;
+export function logRowsOn(buffer: ArrayBufferLike, byteOffset: number, capacity: number, m: number): LogRows {
+  let at = byteOffset;
+  const f64 = () => {
+    const a = new Float64Array(buffer, at, capacity);
+    at += capacity * 8;
+    return a;
+  };
+  const u8 = () => {
+    const a = new Uint8Array(buffer, at, capacity);
+    at += capacity;
+    return a;
+  };
+  return { m, ax: f64(), ay: f64(), az: f64(), dc: f64(), b2: f64(), q0: f64(), lnD: f64(), f: f64(), side: f64(), member: u8(), inFit: u8() };
+}
+
+/** Slots of a pass's parameters (passParams): origin position, v_A + d, H, d, sigmaStar^2, frozen. */
+export const PASS_PARAMS = 12;
+/**
+ * Slots of a pass's partial sums: the upper triangle of A (a00 a01 a02 a03 a11 a12 a13 a22 a23 a33),
+ * b0..b3, sum w y^2, rows. Partial sums of disjoint row ranges add up to the sums of their union.
+ */
+export const PARTIAL_SUMS = 16;
+const A_SLOTS = [0, 1, 2, 3, 5, 6, 7, 10, 11, 15];
+
+/** Writes a pass's parameters into P (PASS_PARAMS slots). */
+export function passParams(P: Float64Array, o: { x: number; y: number; z: number; vx: number; vy: number; vz: number }, h: number, d: readonly number[], ss2: number, frozen: boolean): void {
+  P[0] = o.x;
+  P[1] = o.y;
+  P[2] = o.z;
+  P[3] = o.vx + d[0]!;
+  P[4] = o.vy + d[1]!;
+  P[5] = o.vz + d[2]!;
+  P[6] = h;
+  P[7] = d[0]!;
+  P[8] = d[1]!;
+  P[9] = d[2]!;
+  P[10] = ss2;
+  P[11] = frozen ? 1 : 0;
+}
+
+/** Sets `sums` from partial sums (PARTIAL_SUMS slots). */
+export function setSums(sums: HubbleSums, part: Float64Array): void {
+  sums.reset();
+  for (let j = 0; j < A_SLOTS.length; j++) sums.A[A_SLOTS[j]!] = part[j]!;
+  for (let c = 0; c < 4; c++) sums.b[c] = part[10 + c]!;
+  sums.wyy = part[14]!;
+  sums.rows = part[15]!;
+}
+
+/**
+ * Rows per chunk of a pass. Partial sums are made per chunk and added in chunk order, so that a pass
+ * gives the same sums to the last bit however many threads share its chunks.
+ */
+export const PASS_CHUNK_ROWS = 4096;
+
+export function passChunks(m: number): number {
+  return Math.ceil(m / PASS_CHUNK_ROWS);
+}
+
+/** Chunk c of a pass: logStepSums over its rows into partials[c * PARTIAL_SUMS ..]. */
+export function passChunk(R: LogRows, c: number, P: Float64Array, partials: Float64Array): void {
+  const k0 = c * PASS_CHUNK_ROWS;
+  logStepSums(R, k0, Math.min(R.m, k0 + PASS_CHUNK_ROWS), P, partials, c * PARTIAL_SUMS);
+}
+
+/** out = the chunks' partial sums added in chunk order. */
+export function sumChunks(partials: Float64Array, chunks: number, out: Float64Array): void {
+  out.fill(0, 0, PARTIAL_SUMS);
+  for (let c = 0; c < chunks; c++) for (let j = 0; j < PARTIAL_SUMS; j++) out[j] = out[j]! + partials[c * PARTIAL_SUMS + j]!;
+}
+
+/**
+ * Where the log fit's passes run: the rows' storage and one pass over rows 0..R.m-1 into the sums
+ * (PARTIAL_SUMS slots), made chunk by chunk (passChunk) and added by sumChunks.
+ */
+export interface LogPasses {
+  rows(m: number): LogRows;
+  pass(R: LogRows, P: Float64Array, out: Float64Array): void;
+}
+
+/** Passes on this thread, with fresh storage for every fit. */
+export const ONE_THREAD: LogPasses = {
+  rows: (m) => logRowsOn(new ArrayBuffer(logRowsBytes(m)), 0, m, m),
+  pass: (R, P, out) => {
+    const chunks = passChunks(R.m);
+    const partials = new Float64Array(chunks * PARTIAL_SUMS);
+    for (let c = 0; c < chunks; c++) passChunk(R, c, P, partials);
+    sumChunks(partials, chunks, out);
+  },
+};
+
+/**
+ * One Gauss-Newton step's normal equations over rows k0..k1-1: for each member row at (H, d), the
+ * predicted distance D_pred = dc + t, the root of F = H s^2 - (w - d).(D a - r_A) with
+ * t = (q + F'(D_pred)) / (2H) and F'(D_pred) = +-sqrt(q^2 - 4 H F(dc)), signed as q (the root away from
+ * dc) or, once frozen, as side, q = (w - d) . a = q0 - d . a and F(dc) = H b2 - (w - d).p =
+ * H b2 + (v_A + d).p, p = dc a - r_A (a . p = 0, so V_B drops out); then s_pred, e_pred,
+ * kappa = F'(D_pred) D_pred / s_pred and the row y = -kappa ln(D_obs / D_pred) with error |kappa| f and
+ * sigmaStar in quadrature, summed into out[at .. at + PARTIAL_SUMS). P holds passParams. inFit[k] = 1
+ * for the rows that had a usable root. No allocation; rows outside k0..k1-1 are not touched.
+ */
+export function logStepSums(R: LogRows, k0: number, k1: number, P: Float64Array, out: Float64Array, at: number): void {
+  const { ax: AX, ay: AY, az: AZ, dc: DC, b2: B2, q0: Q0, lnD: LND, f: FR, side: SIDE, member, inFit } = R;
+  const ox = P[0]!;
+  const oy = P[1]!;
+  const oz = P[2]!;
+  const ux = P[3]!;
+  const uy = P[4]!;
+  const uz = P[5]!;
+  const h = P[6]!;
+  const d0 = P[7]!;
+  const d1 = P[8]!;
+  const d2 = P[9]!;
+  const ss2 = P[10]!;
+  const frozen = P[11] !== 0;
   const inv2h = 1 / (2 * h);
   const h4 = 4 * h;
   let a00 = 0, a01 = 0, a02 = 0, a03 = 0, a11 = 0, a12 = 0, a13 = 0, a22 = 0, a23 = 0, a33 = 0;
   let b0 = 0, b1 = 0, b2 = 0, b3 = 0, wyy = 0;
   let rows = 0;
-  for (let k = 0; k < R.m; k++) {
+  for (let k = k0; k < k1; k++) {
     inFit[k] = 0;
     if (!member[k]) continue;
     const ax = AX[k]!;
@@ -607,24 +717,22 @@ function logStepSums(
     rows++;
     inFit[k] = 1;
   }
-  sums.reset();
-  const A = sums.A;
-  A[0] = a00;
-  A[1] = a01;
-  A[2] = a02;
-  A[3] = a03;
-  A[5] = a11;
-  A[6] = a12;
-  A[7] = a13;
-  A[10] = a22;
-  A[11] = a23;
-  A[15] = a33;
-  sums.b[0] = b0;
-  sums.b[1] = b1;
-  sums.b[2] = b2;
-  sums.b[3] = b3;
-  sums.wyy = wyy;
-  sums.rows = rows;
+  out[at] = a00;
+  out[at + 1] = a01;
+  out[at + 2] = a02;
+  out[at + 3] = a03;
+  out[at + 4] = a11;
+  out[at + 5] = a12;
+  out[at + 6] = a13;
+  out[at + 7] = a22;
+  out[at + 8] = a23;
+  out[at + 9] = a33;
+  out[at + 10] = b0;
+  out[at + 11] = b1;
+  out[at + 12] = b2;
+  out[at + 13] = b3;
+  out[at + 14] = wyy;
+  out[at + 15] = rows;
 }
 
 function chooseEstimator(e: "auto" | "log" | "linear", vrErr: Float64Array | undefined, used: Uint8Array, sigmaStar: number): "log" | "linear" {
