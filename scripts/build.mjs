@@ -39,7 +39,7 @@ if (existsSync("web/main.ts")) {
     sourcemap: true,
     minify: true,
     logLevel: "warning",
-    entryPoints: { app: "web/main.ts" },
+    entryPoints: { app: "web/main.ts", "fit-worker": "web/fit-worker.ts" },
     outdir: "dist/web",
   });
   for (const f of readdirSync("web")) {

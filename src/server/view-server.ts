@@ -96,7 +96,14 @@ async function loadCatalogueBytes(file: string, table: Table | undefined): Promi
 }
 
 function send(res: ServerResponse, status: number, type: string, body: string | Uint8Array): void {
-  res.writeHead(status, { "content-type": type, "content-length": Buffer.byteLength(body), "cache-control": "no-store" });
+  res.writeHead(status, {
+    "content-type": type,
+    "content-length": Buffer.byteLength(body),
+    "cache-control": "no-store",
+    // cross-origin isolation, so that the page may share memory with its fit worker (web/fit-threads.ts)
+    "cross-origin-opener-policy": "same-origin",
+    "cross-origin-embedder-policy": "require-corp",
+  });
   res.end(body);
 }
 

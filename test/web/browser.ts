@@ -67,7 +67,6 @@ function newestMtime(dir: string): number {
   return t;
 }
 
-/** Builds dist/ (CLI and page) unless dist/web/app.js and dist/cli.js are newer than src/ and web/. */
 /**
  * Serves `file` on a free loopback port, opens it in a new page and waits until the view is ready.
  * The caller closes page and server; if the page does not come up, both are closed here.
@@ -87,11 +86,11 @@ export async function openView(browser: Browser, file: string): Promise<{ server
   return { server, page, errors };
 }
 
+/** Builds dist/ (CLI and page) unless its scripts are all newer than src/ and web/. */
 export function buildWebOnce(): void {
-  const app = join(ROOT, "dist", "web", "app.js");
-  const cli = join(ROOT, "dist", "cli.js");
+  const built = [join(ROOT, "dist", "web", "app.js"), join(ROOT, "dist", "web", "fit-worker.js"), join(ROOT, "dist", "cli.js")];
   const newest = Math.max(newestMtime(join(ROOT, "src")), newestMtime(join(ROOT, "web")));
-  if (existsSync(app) && existsSync(cli) && Math.min(statSync(app).mtimeMs, statSync(cli).mtimeMs) >= newest) return;
+  if (built.every((f) => existsSync(f) && statSync(f).mtimeMs >= newest)) return;
   const r = spawnSync(process.execPath, ["scripts/build.mjs"], { cwd: ROOT, encoding: "utf8" });
   if (r.status !== 0) throw new Error(`build failed:\n${r.stdout}\n${r.stderr}`);
 }

@@ -1,0 +1,93 @@
+/**
+ * The page's re-centring fit on two threads (web/fit-threads.ts, web/fit-worker.ts) in headless
+ * Chromium: the view server makes the page cross-origin isolated, the fit worker takes chunks of the
+ * passes, and the result is the one-thread result to the last bit.
+ */
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { readFileSync } from "node:fs";
+import { join } from "node:path";
+import type { Page } from "playwright-core";
+import { tableFromIPC } from "apache-arrow";
+import type { ViewServer } from "../../src/server/index.js";
+import { tempDir } from "../cli-helpers.js";
+import { buildWebOnce, launchBrowser, openView, type Browser } from "./browser.js";
+import { writeViewCatalogue } from "./catalogue.js";
+import { viewDataFromTable } from "../../web/data.js";
+import { galaxyView, originInputs } from "../../web/origin.js";
+
+/** Enough rows for the passes to be shared (MIN_SPLIT_ROWS = 8192 in web/fit-threads.ts). */
+const ROWS = 20_000;
+/** The same code on the same numbers in Node and in Chromium: agreement to rounding (common practice). */
+const REL_TOL = 1e-12;
+
+let tmp: { dir: string; cleanup: () => void };
+let file: string;
+let server: ViewServer;
+let browser: Browser;
+let page: Page;
+let errors: string[];
+
+interface FitThreads {
+  ready: boolean;
+  splitPasses: number;
+  workerChunks: number;
+}
+
+async function view<T>(fn: string): Promise<T> {
+  return page.evaluate(`(() => { const v = window.peculiarView; return ${fn}; })()`) as Promise<T>;
+}
+
+beforeAll(async () => {
+  buildWebOnce();
+  tmp = tempDir("peculiar-fit-threads-");
+  file = join(tmp.dir, "flowfield.arrow");
+  writeViewCatalogue(file, { seed: 20261202, n: ROWS });
+  browser = await launchBrowser();
+  ({ server, page, errors } = await openView(browser, file));
+  await page.waitForFunction(`window.peculiarView.fitThreads()?.ready === true`, undefined, { timeout: 30_000 });
+});
+
+afterAll(async () => {
+  await browser?.close();
+  await server?.close();
+  tmp?.cleanup();
+});
+
+describe("the page's re-centring fit on two threads", () => {
+  const rows = [17, 4321, 12345, ROWS - 2];
+
+  it("runs in a cross-origin isolated page with its fit worker started", async () => {
+    expect(errors).toEqual([]);
+    expect(await page.evaluate("crossOriginIsolated")).toBe(true);
+    expect((await view<FitThreads>("v.fitThreads()")).ready).toBe(true);
+  });
+
+  it("gives the one-thread fit to the last bit, with chunks summed by the worker", async () => {
+    const fits = await view<{ two: number[][]; one: number[][]; threads: FitThreads }>(`(() => {
+      const fit = () => [v.state.origin.h0, v.state.origin.h0Err, ...v.state.origin.dipole, v.state.origin.nUsed];
+      const two = [], one = [];
+      for (const row of ${JSON.stringify(rows)}) {
+        v.useFitThreads(true);
+        v.recentreOn(row);
+        two.push(fit());
+        v.useFitThreads(false);
+        v.recentreOn(row);
+        one.push(fit());
+      }
+      v.useFitThreads(true);
+      v.goHome();
+      return { two, one, threads: v.fitThreads() };
+    })()`);
+    expect(fits.two).toEqual(fits.one);
+    expect(fits.threads.splitPasses).toBeGreaterThan(4 * 3);
+    expect(fits.threads.workerChunks).toBeGreaterThan(0);
+    // and the library in Node on the same catalogue (one thread) gives the same numbers
+    const d = viewDataFromTable(tableFromIPC(readFileSync(file)));
+    const inp = originInputs(d);
+    rows.forEach((row, k) => {
+      const o = galaxyView(inp, row, d.ids[row]!);
+      const node = [o.h0, o.h0Err, ...o.dipole, o.nUsed];
+      node.forEach((x, j) => expect(Math.abs(fits.two[k]![j]! - x)).toBeLessThanOrEqual(REL_TOL * Math.abs(x)));
+    });
+  });
+});
