@@ -98,10 +98,15 @@ export function drawBinnedPoints(
   for (let c = 0; c <= N_BINS; c++) colourOf[c] = pixelOf(bins.colours[c]!);
   const bin = bins.bin;
   const n = bin.length;
+  // pass 0: the rows of unknown value, listed in bins.order (in index order); pass 1: all the others
+  const order = bins.order;
+  const unknown0 = bins.start[N_BINS]!;
   for (let pass = 0; pass < 2; pass++) {
-    for (let i = 0; i < n; i++) {
+    const m = pass === 0 ? bins.start[N_BINS + 1]! - unknown0 : n;
+    for (let j = 0; j < m; j++) {
+      const i = pass === 0 ? order[unknown0 + j]! : j;
       const b = bin[i]!;
-      if (b === 255 || (pass === 0) !== (b === N_BINS)) continue;
+      if (pass === 1 && b >= N_BINS) continue;
       const colour = colourOf[b]!;
       const x = px[i]!;
       const y = py[i]!;
@@ -147,6 +152,8 @@ interface MarkMask {
   dx: Int16Array;
   dy: Int16Array;
   alpha: Uint8Array;
+  /** No offset is larger than this in x or y. */
+  ext: number;
 }
 const masks = new Map<string, MarkMask>();
 
@@ -176,7 +183,7 @@ function maskFor(kind: "ring" | "cross", radius: number, lineWidth: number, alph
       a.push(Math.round(255 * alpha * cover));
     }
   }
-  m = { dx: Int16Array.from(dx), dy: Int16Array.from(dy), alpha: Uint8Array.from(a) };
+  m = { dx: Int16Array.from(dx), dy: Int16Array.from(dy), alpha: Uint8Array.from(a), ext };
   if (masks.size > 64) masks.clear();
   masks.set(key, m);
   return m;
@@ -224,6 +231,20 @@ export function drawMarks(ctx: CanvasRenderingContext2D, state: ViewState, px: F
       if (x !== x || y !== y) continue;
       const cx = Math.floor(x * k + t.e);
       const cy = Math.floor(y * k + t.f);
+      const e = mask.ext;
+      if (cx - e >= 0 && cy - e >= 0 && cx + e < W && cy + e < H) {
+        // the whole mark is on the canvas: no test per pixel
+        for (let q = 0; q < mask.alpha.length; q++) {
+          const p = (cy + mask.dy[q]!) * W + cx + mask.dx[q]!;
+          const a = mask.alpha[q]!;
+          if (a > buf[p]! >>> 24) buf[p] = ((a << 24) | rgb) >>> 0;
+        }
+        if (cx - e < bx0) bx0 = cx - e;
+        if (cx + e >= bx1) bx1 = cx + e + 1;
+        if (cy - e < by0) by0 = cy - e;
+        if (cy + e >= by1) by1 = cy + e + 1;
+        continue;
+      }
       for (let q = 0; q < mask.alpha.length; q++) {
         const X = cx + mask.dx[q]!;
         const Y = cy + mask.dy[q]!;

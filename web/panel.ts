@@ -48,6 +48,12 @@ export abstract class CanvasPanel {
   bins: BinnedColours | null = null;
   pointRadius = 1.5;
   private index: PlaneIndex | null = null;
+  /**
+   * The plot area's size (CSS px) as last laid out, kept up to date by a ResizeObserver: reading
+   * clientWidth in render would force a layout of the page for every panel redrawn after another one
+   * changed its overlay (window resizes re-render through main.ts).
+   */
+  private bodySize: [number, number] | null = null;
 
   constructor(
     parent: HTMLElement,
@@ -83,6 +89,9 @@ export abstract class CanvasPanel {
     this.footer = document.createElement("footer");
     this.root.appendChild(this.footer);
     parent.appendChild(this.root);
+    new ResizeObserver(() => {
+      this.bodySize = [this.body.clientWidth, this.body.clientHeight];
+    }).observe(this.body);
     this.attachPointer();
   }
 
@@ -90,8 +99,9 @@ export abstract class CanvasPanel {
   protected abstract draw(ctx: CanvasRenderingContext2D): number;
 
   render(): void {
-    const w = Math.max(50, Math.floor(this.body.clientWidth));
-    const h = Math.max(50, Math.floor(this.body.clientHeight));
+    const [bw, bh] = (this.bodySize ??= [this.body.clientWidth, this.body.clientHeight]);
+    const w = Math.max(50, Math.floor(bw));
+    const h = Math.max(50, Math.floor(bh));
     const dpr = window.devicePixelRatio || 1;
     if (w !== this.width || h !== this.height || this.canvas.width !== Math.round(w * dpr)) {
       this.width = w;
