@@ -186,9 +186,32 @@ export interface PositionBlock {
   length: number;
 }
 
-/** The usable rows of positions in degrees (same test and normalisation as skyPoints), in row order. */
+/**
+ * The usable rows of positions in degrees (same test and normalisation as skyPoints), in row order:
+ * one pass into arrays of the catalogue's length, cut down only when some row is unusable.
+ */
 export function positionBlock(raDeg: ArrayLike<number>, decDeg: ArrayLike<number>): PositionBlock {
-  return bandBlock(raDeg, decDeg, -Infinity, Infinity, true);
+  if (raDeg.length !== decDeg.length) throw new Error(`raDeg has ${raDeg.length} values but decDeg has ${decDeg.length}`);
+  const n = raDeg.length;
+  let row = new Int32Array(n);
+  let ra = new Float64Array(n);
+  let dec = new Float64Array(n);
+  let m = 0;
+  for (let i = 0; i < n; i++) {
+    const rd = raDeg[i]!;
+    const dd = decDeg[i]!;
+    if (!Number.isFinite(rd) || !(dd >= -90 && dd <= 90)) continue;
+    row[m] = i;
+    ra[m] = raRadOfDeg(rd);
+    dec[m] = dd * DEG;
+    m++;
+  }
+  if (m < n) {
+    row = row.slice(0, m);
+    ra = ra.slice(0, m);
+    dec = dec.slice(0, m);
+  }
+  return { row, raRad: ra, decRad: dec, length: m };
 }
 
 /**
@@ -286,47 +309,42 @@ export function buildZoneIndex(grid: ZoneGrid, blk: PositionBlock): ZoneIndex {
   const { nZones, nRa, raScale, zoneBase, zoneHeightRad } = grid;
   const nCells = zoneBase[nZones]!;
   const invH = 1 / zoneHeightRad;
-  const ra = blk.raRad;
-  const dec = blk.decRad;
-  const zoneStart = zoneStarts(grid, dec, n);
-  // zone order: cell, row and position moved together
-  const fill = zoneStart.slice(0, nZones);
-  const zCell = new Int32Array(n);
+  const zoneStart = zoneStarts(grid, blk.decRad, n);
+  // zone order: row and position moved together
   const zRow = new Int32Array(n);
   const zRa = new Float64Array(n);
   const zDec = new Float64Array(n);
-  for (let k = 0; k < n; k++) {
-    const d = dec[k]!;
-    const r = ra[k]!;
-    const z = zoneIndexOf(d, invH, nZones);
-    const m = nRa[z]!;
-    let c = Math.floor(r * raScale[z]!);
-    if (c < 0) c = 0;
-    else if (c >= m) c = m - 1;
-    const t = fill[z]!++;
-    zCell[t] = zoneBase[z]! + c;
-    zRow[t] = blk.row[k]!;
-    zRa[t] = r;
-    zDec[t] = d;
-  }
+  zoneScatter(zoneStart, nZones, invH, blk, zRow, zRa, zDec);
   // cell order inside each zone, written into the index
   const rowOf = new Int32Array(n);
   const xyz = new Float64Array(3 * n);
   const cellStart = new Int32Array(nCells + 1);
   let maxCells = 0;
-  for (let z = 0; z < nZones; z++) maxCells = Math.max(maxCells, nRa[z]!);
+  let maxRun = 0;
+  for (let z = 0; z < nZones; z++) {
+    maxCells = Math.max(maxCells, nRa[z]!);
+    maxRun = Math.max(maxRun, zoneStart[z + 1]! - zoneStart[z]!);
+  }
   const count = new Int32Array(maxCells + 1);
+  const cellOfRun = new Int32Array(maxRun); // RA cell of each entry of the zone's run
   for (let z = 0; z < nZones; z++) {
     const lo = zoneStart[z]!;
     const hi = zoneStart[z + 1]!;
     const base = zoneBase[z]!;
     const m = nRa[z]!;
+    const sc = raScale[z]!;
     count.fill(0, 0, m + 1);
-    for (let k = lo; k < hi; k++) count[zCell[k]! - base + 1]!++;
+    for (let k = lo; k < hi; k++) {
+      let c = Math.floor(zRa[k]! * sc);
+      if (c < 0) c = 0;
+      else if (c >= m) c = m - 1;
+      cellOfRun[k - lo] = c;
+      count[c + 1]!++;
+    }
     for (let c = 0; c < m; c++) count[c + 1]! += count[c]!;
     for (let c = 0; c < m; c++) cellStart[base + c] = lo + count[c]!;
     for (let k = lo; k < hi; k++) {
-      const t = lo + count[zCell[k]! - base]!++;
+      const t = lo + count[cellOfRun[k - lo]!]!++;
       rowOf[t] = zRow[k]!;
       const r = zRa[k]!;
       const d = zDec[k]!;
@@ -340,45 +358,39 @@ export function buildZoneIndex(grid: ZoneGrid, blk: PositionBlock): ZoneIndex {
   return { grid, rowOf, cellStart, xyz, length: n };
 }
 
-/** Query points gathered into zone order, so that consecutive queries read the same few zones of the index. */
-export interface SortedQueries {
-  /** sorted position -> query row */
-  rowOf: Int32Array;
-  /** stride 5, as SkyPoints.p, in sorted order */
-  p: Float64Array;
-  length: number;
+/** One stable counting pass of a block into zone order (zoneStart from zoneStarts): rows and positions moved together. */
+function zoneScatter(zoneStart: Int32Array, nZones: number, invH: number, blk: PositionBlock, row: Int32Array, ra: Float64Array, dec: Float64Array): void {
+  const fill = zoneStart.slice(0, nZones);
+  const n = blk.length;
+  const br = blk.row;
+  const bra = blk.raRad;
+  const bdec = blk.decRad;
+  for (let k = 0; k < n; k++) {
+    const d = bdec[k]!;
+    const t = fill[zoneIndexOf(d, invH, nZones)]!++;
+    row[t] = br[k]!;
+    ra[t] = bra[k]!;
+    dec[t] = d;
+  }
 }
 
 /**
- * The query block in the grid's zone order (a stable counting pass, written straight into the
- * stride-5 array), with unit vectors computed in that order. The order inside a zone is the block's:
- * consecutive queries then read the same few zones of the index, which is what matters.
+ * Query points in zone order, so that consecutive queries read the same few zones of the index:
+ * a position block (row = the query row) whose unit vectors are computed as the queries run.
+ */
+export type SortedQueries = PositionBlock;
+
+/**
+ * The query block in the grid's zone order (a stable counting pass). The order inside a zone is the
+ * block's: consecutive queries then read the same few zones of the index, which is what matters.
  */
 export function sortQueries(grid: ZoneGrid, blk: PositionBlock): SortedQueries {
   const n = blk.length;
-  const nZones = grid.nZones;
-  const invH = 1 / grid.zoneHeightRad;
-  const ra = blk.raRad;
-  const dec = blk.decRad;
-  const fill = zoneStarts(grid, dec, n);
-  const rowOf = new Int32Array(n);
-  const p = new Float64Array(5 * n);
-  for (let k = 0; k < n; k++) {
-    const d = dec[k]!;
-    const t = fill[zoneIndexOf(d, invH, nZones)]!++;
-    rowOf[t] = blk.row[k]!;
-    p[5 * t] = ra[k]!;
-    p[5 * t + 1] = d;
-  }
-  for (let o = 0; o < 5 * n; o += 5) {
-    const r = p[o]!;
-    const d = p[o + 1]!;
-    const c = Math.cos(d);
-    p[o + 2] = c * Math.cos(r);
-    p[o + 3] = c * Math.sin(r);
-    p[o + 4] = Math.sin(d);
-  }
-  return { rowOf, p, length: n };
+  const row = new Int32Array(n);
+  const ra = new Float64Array(n);
+  const dec = new Float64Array(n);
+  zoneScatter(zoneStarts(grid, blk.decRad, n), grid.nZones, 1 / grid.zoneHeightRad, blk, row, ra, dec);
+  return { row, raRad: ra, decRad: dec, length: n };
 }
 
 /** Pairs found by a query: parallel arrays, `length` of them used. */
@@ -411,14 +423,15 @@ export class PairBuffer {
     this.b[k] = b;
     this.sepRad[k] = sepRad;
   }
-  private grow(): void {
+  /** Doubles the capacity, keeping the first `length` entries. */
+  grow(): void {
     const c = this.a.length * 2;
     const a = new Int32Array(c);
-    a.set(this.a);
+    a.set(this.a.subarray(0, this.length));
     const b = new Int32Array(c);
-    b.set(this.b);
+    b.set(this.b.subarray(0, this.length));
     const s = new Float64Array(c);
-    s.set(this.sepRad);
+    s.set(this.sepRad.subarray(0, this.length));
     this.a = a;
     this.b = b;
     this.sepRad = s;
@@ -464,17 +477,25 @@ export function queryZoneIndex(index: ZoneIndex, q: SortedQueries, radiusRad: nu
     const s = Math.sin(Rw) / Math.cos(dmax);
     alphaOfZone[z] = s >= 1 ? -1 : Math.asin(s) + EPS_RAD;
   }
-  const qp = q.p;
-  const qrow = q.rowOf;
+  const qra = q.raRad;
+  const qdec = q.decRad;
+  const qrow = q.row;
   const nq = q.length;
   const invH = 1 / zoneHeightRad;
+  // the buffer's arrays in locals while the queries run (written back on growth and at the end)
+  let pa = buffer !== null ? buffer.a : new Int32Array(0);
+  let pb = buffer !== null ? buffer.b : new Int32Array(0);
+  let ps = buffer !== null ? buffer.sepRad : new Float64Array(0);
+  let np = buffer !== null ? buffer.length : 0;
   for (let i = 0; i < nq; i++) {
-    const ra = qp[5 * i]!;
-    const dec = qp[5 * i + 1]!;
-    const ax = qp[5 * i + 2]!;
-    const ay = qp[5 * i + 3]!;
-    const az = qp[5 * i + 4]!;
+    const ra = qra[i]!;
+    const dec = qdec[i]!;
     const row = qrow[i]!;
+    // the unit vector, as skyPoints computes it
+    const cd = Math.cos(dec);
+    const ax = cd * Math.cos(ra);
+    const ay = cd * Math.sin(ra);
+    const az = Math.sin(dec);
     let zq = Math.floor((dec + HALF_PI) * invH);
     if (zq >= nZones) zq = nZones - 1;
     let z0 = Math.floor((dec - Rw + HALF_PI) * invH);
@@ -533,13 +554,26 @@ export function queryZoneIndex(index: ZoneIndex, q: SortedQueries, radiusRad: nu
           }
           const sep = angleBetween(ax, ay, az, bxk, byk, bzk);
           if (sep <= R) {
-            if (counts) counts[row]!++;
-            else buffer!.push(row, rowOf[k]!, sep);
+            if (counts !== null) counts[row]!++;
+            else {
+              if (np === pa.length) {
+                buffer!.length = np;
+                buffer!.grow();
+                pa = buffer!.a;
+                pb = buffer!.b;
+                ps = buffer!.sepRad;
+              }
+              pa[np] = row;
+              pb[np] = rowOf[k]!;
+              ps[np] = sep;
+              np++;
+            }
           }
         }
       }
     }
   }
+  if (buffer !== null) buffer.length = np;
 }
 
 /**
