@@ -577,10 +577,10 @@ export function queryZoneIndex(index: ZoneIndex, q: SortedQueries, radiusRad: nu
 }
 
 /**
- * Sorts pairs by query row, then separation, then indexed row: a stable radix sort on the query row
- * (one counting pass below 2^12 rows, two above; pairs arrive in cell order, so a single counting
- * sort over all rows would write at random), then an insertion sort inside each row's short run.
- * Returns a new PairList.
+ * Sorts pairs by query row, then separation, then indexed row: a radix sort on the query row (one
+ * counting pass below 2^14 rows; above, a pass on the high bits into a few dozen buckets, then each
+ * bucket, small enough to stay in cache, counting-sorted on the low 14 bits), then an insertion sort
+ * inside each row's short run. Returns a new PairList.
  */
 export function sortPairs(p: PairList, nQueryRows: number): PairList {
   const n = p.length;
@@ -589,14 +589,28 @@ export function sortPairs(p: PairList, nQueryRows: number): PairList {
   const a = new Int32Array(n);
   const b = new Int32Array(n);
   const s = new Float64Array(n);
-  if (bits <= 12) pairScatter(0, (1 << bits) - 1, p.a, p.b, p.sepRad, a, b, s, n);
+  if (bits <= LOW_BITS) pairScatter(0, (1 << bits) - 1, p.a, p.b, p.sepRad, a, b, s, 0, n, new Int32Array((1 << bits) + 1));
   else {
-    const lo = bits >> 1;
     const ta = new Int32Array(n);
     const tb = new Int32Array(n);
     const ts = new Float64Array(n);
-    pairScatter(0, (1 << lo) - 1, p.a, p.b, p.sepRad, ta, tb, ts, n);
-    pairScatter(lo, (1 << (bits - lo)) - 1, ta, tb, ts, a, b, s, n);
+    const nHi = 1 << (bits - LOW_BITS);
+    const hiStart = new Int32Array(nHi + 1);
+    pairScatter(LOW_BITS, nHi - 1, p.a, p.b, p.sepRad, ta, tb, ts, 0, n, hiStart);
+    const lowMask = (1 << LOW_BITS) - 1;
+    const count = new Int32Array(lowMask + 2);
+    for (let h = 0; h < nHi; h++) {
+      const lo = h === 0 ? 0 : hiStart[h - 1]!; // after the pass, hiStart[h] is where bucket h ended
+      const hi = hiStart[h]!;
+      if (hi - lo > 1) {
+        count.fill(0);
+        pairScatter(0, lowMask, ta, tb, ts, a, b, s, lo, hi, count);
+      } else if (hi > lo) {
+        a[lo] = ta[lo]!;
+        b[lo] = tb[lo]!;
+        s[lo] = ts[lo]!;
+      }
+    }
   }
   let lo = 0;
   while (lo < n) {
@@ -623,12 +637,18 @@ export function sortPairs(p: PairList, nQueryRows: number): PairList {
   return { a, b, sepRad: s, length: n };
 }
 
-/** One stable counting pass of pairs on digit (a >> shift) & mask. */
-function pairScatter(shift: number, mask: number, sa: Int32Array, sb: Int32Array, ss: Float64Array, da: Int32Array, db: Int32Array, ds: Float64Array, n: number): void {
-  const count = new Int32Array(mask + 2);
-  for (let k = 0; k < n; k++) count[((sa[k]! >> shift) & mask) + 1]!++;
+/** Low bits of the query row that the second pass of sortPairs sorts on (a 64 KiB count table). */
+const LOW_BITS = 14;
+
+/**
+ * One stable counting pass of pairs lo..hi on digit (a >> shift) & mask, into the same positions of
+ * the destination. `count` (mask + 2 zeros) is the work table; afterwards count[d] is the end of digit d.
+ */
+function pairScatter(shift: number, mask: number, sa: Int32Array, sb: Int32Array, ss: Float64Array, da: Int32Array, db: Int32Array, ds: Float64Array, lo: number, hi: number, count: Int32Array): void {
+  count[0] = lo;
+  for (let k = lo; k < hi; k++) count[((sa[k]! >> shift) & mask) + 1]!++;
   for (let d = 0; d <= mask; d++) count[d + 1]! += count[d]!;
-  for (let k = 0; k < n; k++) {
+  for (let k = lo; k < hi; k++) {
     const x = sa[k]!;
     const t = count[(x >> shift) & mask]!++;
     da[t] = x;

@@ -1,5 +1,6 @@
 import { describe, expect, it } from "vitest";
-import { skyPoints, type PairList } from "../../src/crossmatch/zones.js";
+import { randomLcg } from "d3-random";
+import { skyPoints, sortPairs, type PairList } from "../../src/crossmatch/zones.js";
 import { pairsWithin } from "../../src/crossmatch/pairs.js";
 import { brutePairs } from "../../src/crossmatch/brute.js";
 import { ARCSEC } from "../../src/sky/angles.js";
@@ -78,4 +79,25 @@ describe("pairsWithin (zone engine)", () => {
     expect(() => pairsWithin(one, one, -1)).toThrow(/radius/);
     expect(() => pairsWithin(one, one, Infinity)).toThrow(/radius/);
   });
+
+  for (const nRows of [1000, 100000]) {
+    it(`sortPairs orders scattered pairs of ${nRows} query rows by row, then separation, then indexed row`, () => {
+      // seeded pairs with repeated rows, tied separations and one long run; oracle: Array.prototype.sort
+      const u = randomLcg(99);
+      const n = 30000;
+      const pa = new Int32Array(n);
+      const pb = new Int32Array(n);
+      const ps = new Float64Array(n);
+      for (let k = 0; k < n; k++) {
+        pa[k] = k < 40 ? 7 : Math.floor(u() * nRows);
+        pb[k] = k;
+        ps[k] = Math.floor(u() * 8) * 1e-6;
+      }
+      const got = sortPairs({ a: pa, b: pb, sepRad: ps, length: n }, nRows);
+      const want = Array.from({ length: n }, (_, k) => k).sort((x, y) => pa[x]! - pa[y]! || ps[x]! - ps[y]! || pb[x]! - pb[y]!);
+      expect(Array.from(got.a)).toEqual(want.map((k) => pa[k]!));
+      expect(Array.from(got.b)).toEqual(want.map((k) => pb[k]!));
+      expect(Array.from(got.sepRad)).toEqual(want.map((k) => ps[k]!));
+    });
+  }
 });
