@@ -152,15 +152,62 @@ function utf8Data(strings: string[], nulls: Uint8Array | undefined, length: numb
   return makeData({ type: new Utf8(), length, nullCount, nullBitmap: bitmap, valueOffsets: offsets, data: buf.slice(0, pos) });
 }
 
+/** A column that is already Arrow data: tableFromColumns takes it as it is. */
+export interface DataColumn {
+  name: string;
+  data: Data;
+  meta?: ColumnMeta;
+}
+
+function isDataColumn(c: ColumnData | DataColumn): c is DataColumn {
+  return (c as DataColumn).data !== undefined;
+}
+
+/** Arrow data of a bool column without nulls, true everywhere but at `falseRows`, packed as Arrow bits (bits past n clear). */
+export function boolDataExcept(n: number, falseRows: ArrayLike<number> = []): Data {
+  const bits = new Uint8Array((n + 7) >> 3).fill(0xff);
+  if (n & 7) bits[bits.length - 1] = (1 << (n & 7)) - 1;
+  for (let t = 0; t < falseRows.length; t++) {
+    const i = falseRows[t]!;
+    bits[i >> 3]! &= ~(1 << (i & 7));
+  }
+  return makeData({ type: new Bool(), length: n, data: bits, nullCount: 0 });
+}
+
+/** Arrow data of a utf8 column of n strings without nulls, empty but at `rows` (ascending), where it is texts[row]. */
+export function sparseUtf8Data(n: number, rows: readonly number[] = [], texts: readonly string[] = []): Data {
+  const offsets = new Int32Array(n + 1);
+  const enc = new TextEncoder();
+  const parts = rows.map((i) => enc.encode(texts[i]!));
+  const data = new Uint8Array(parts.reduce((s, p) => s + p.length, 0));
+  let pos = 0;
+  let from = 0;
+  for (let t = 0; t < rows.length; t++) {
+    const i = rows[t]!;
+    offsets.fill(pos, from + 1, i + 1);
+    data.set(parts[t]!, pos);
+    pos += parts[t]!.length;
+    offsets[i + 1] = pos;
+    from = i + 1;
+  }
+  offsets.fill(pos, from + 1, n + 1);
+  return makeData({ type: new Utf8(), length: n, nullCount: 0, valueOffsets: offsets, data });
+}
+
 /** Builds an Arrow table from columns. All columns must have the same length. */
-export function tableFromColumns(columns: ColumnData[], schemaMetadata: Map<string, string> = new Map(), length?: number): Table {
-  const n = length ?? columns[0]?.values.length ?? 0;
+export function tableFromColumns(columns: (ColumnData | DataColumn)[], schemaMetadata: Map<string, string> = new Map(), length?: number): Table {
+  const first = columns[0];
+  const n = length ?? (first === undefined ? 0 : isDataColumn(first) ? first.data.length : first.values.length);
   const seen = new Set<string>();
   for (const c of columns) {
     if (seen.has(c.name)) throw new PeculiarError("column", "duplicate column name", { column: c.name });
     seen.add(c.name);
   }
-  const datas = columns.map((c) => columnToData(c, n));
+  const datas = columns.map((c) => {
+    if (!isDataColumn(c)) return columnToData(c, n);
+    if (c.data.length !== n) throw new PeculiarError("input", `column has ${c.data.length} values, table has ${n} rows`, { column: c.name });
+    return c.data;
+  });
   const fields = columns.map((c, i) => new Field(c.name, datas[i]!.type, true, fieldMetadata(c.meta)));
   const schema = new Schema(fields, schemaMetadata);
   const struct = makeData({ type: new Struct(fields), length: n, nullCount: 0, children: datas });

@@ -9,7 +9,7 @@ import { gunzipSync, gzipSync } from "node:zlib";
 import type { Table } from "apache-arrow";
 import { PeculiarError } from "../errors.js";
 import { assertNotSameFile, writeFileAtomic } from "./atomic.js";
-import { arrowFromTable, parseArrowColumns } from "./formats/arrow.js";
+import { arrowChunks, arrowFromTable, parseArrowColumns } from "./formats/arrow.js";
 import { parseCsvBytes } from "./formats/csv.js";
 import { csvBytes } from "./formats/csv-write.js";
 import { csvChunksThreaded } from "./csv-threads.js";
@@ -106,7 +106,7 @@ async function readBytes(path: string): Promise<Uint8Array> {
   }
   if (size === 0) throw new PeculiarError("format", "empty file", { file: path });
   try {
-    const raw = new Uint8Array(await readFile(path));
+    const raw = plainBytes(await readFile(path));
     return raw[0] === 0x1f && raw[1] === 0x8b ? gunzip(raw, path) : raw;
   } catch (e) {
     if (e instanceof PeculiarError) throw e;
@@ -114,10 +114,15 @@ async function readBytes(path: string): Promise<Uint8Array> {
   }
 }
 
+/** A Buffer's bytes as a plain Uint8Array over the same memory (no copy; `slice` copies again). */
+function plainBytes(b: Buffer): Uint8Array {
+  return new Uint8Array(b.buffer, b.byteOffset, b.byteLength);
+}
+
 function gunzip(raw: Uint8Array, path: string): Uint8Array {
   let out: Uint8Array;
   try {
-    out = new Uint8Array(gunzipSync(raw));
+    out = plainBytes(gunzipSync(raw));
   } catch (e) {
     throw new PeculiarError("format", `truncated or damaged gzip data: ${(e as Error).message}`, { file: path }, { cause: e });
   }
@@ -226,7 +231,9 @@ export async function writeTable(table: Table, path: string, options: WriteOptio
     // CSV/TSV goes to the file chunk by chunk as it is encoded (never the whole text at once), the
     // second half of a large table formatted on a worker thread meanwhile (csv-threads.ts).
     const text = format === "csv" || format === "tsv";
-    data = text && !isGzipPath(path) ? csvChunksThreaded(table, format === "tsv" ? { delimiter: "\t" } : {}) : encodeTable(table, format, { stream });
+    if (text && !isGzipPath(path)) data = csvChunksThreaded(table, format === "tsv" ? { delimiter: "\t" } : {});
+    else if (format === "arrow" && !isGzipPath(path)) data = arrowChunks(table, { stream });
+    else data = encodeTable(table, format, { stream });
   } catch (e) {
     if (e instanceof PeculiarError && e.place.file === undefined) throw new PeculiarError(e.code, e.message, { file: path }, { cause: e });
     throw e;

@@ -21,9 +21,15 @@ export function validMask(table: Table): Uint8Array {
       const bits = chunk.values as Uint8Array;
       const off = chunk.offset;
       const len = chunk.length;
-      for (let k = 0; k < len; k++) {
+      for (let k = 0; k < len; ) {
         const b = off + k;
+        // a whole byte of true values (the usual case) leaves its eight 1s in place
+        if ((b & 7) === 0 && k + 8 <= len && bits[b >> 3] === 0xff) {
+          k += 8;
+          continue;
+        }
         out[i + k] = (bits[b >> 3]! >> (b & 7)) & 1;
+        k++;
       }
       if (chunk.nullCount > 0) for (let k = 0; k < len; k++) if (!chunk.getValid(k)) out[i + k] = 0;
       i += len;
@@ -43,6 +49,27 @@ export function invalidReasons(table: Table): string[] {
 
 /** Number of rows with valid = false. */
 export function countInvalid(table: Table): number {
+  const v = table.getChild(VALID);
+  if (!v) return 0;
+  if (v.type instanceof Bool && v.nullCount === 0) {
+    // count the clear bits of the packed values, a whole byte at a time where it is all true
+    let k = 0;
+    for (const chunk of v.data) {
+      const bits = chunk.values as Uint8Array;
+      const off = chunk.offset;
+      const len = chunk.length;
+      for (let t = 0; t < len; ) {
+        const b = off + t;
+        if ((b & 7) === 0 && t + 8 <= len && bits[b >> 3] === 0xff) {
+          t += 8;
+          continue;
+        }
+        if (!((bits[b >> 3]! >> (b & 7)) & 1)) k++;
+        t++;
+      }
+    }
+    return k;
+  }
   const m = validMask(table);
   let k = 0;
   for (let i = 0; i < m.length; i++) if (!m[i]) k++;

@@ -10,8 +10,8 @@
  * valid), invalid_reason = "alias: reason" of each invalid side joined by "; ", source_row = the
  * row of this table (1-based). Each side's own source_row is what row_a/row_b carry.
  */
-import type { Table } from "apache-arrow";
-import { columnDataOf, columnMeta, float64Column, kindOf, tableFromColumns, takeColumn, valuesView, type ColumnData } from "../catalogue/columns.js";
+import type { Data, Table } from "apache-arrow";
+import { boolDataExcept, sparseUtf8Data, type DataColumn, columnDataOf, columnMeta, float64Column, kindOf, tableFromColumns, takeColumn, valuesView, type ColumnData } from "../catalogue/columns.js";
 import { getRoles, INVALID_REASON, META, recordStep, setJsonMeta, SOURCE_ROW, VALID, type RoleMap } from "../catalogue/meta.js";
 import { validMask } from "../catalogue/validity.js";
 import { PeculiarError } from "../errors.js";
@@ -111,32 +111,27 @@ function gatherColumn(table: Table, name: string, rows: Int32Array): ColumnData 
  * the reason joins "alias: reason" of each invalid side with "; ". When neither table has an invalid
  * row, no row's reason is looked at.
  */
-function joinedValidity(a: Table, b: Table, j: JoinedRows, aliasA: string, aliasB: string): { valid: Uint8Array; reason: string[] } {
+function joinedValidity(a: Table, b: Table, j: JoinedRows, aliasA: string, aliasB: string): { valid: Data; reason: Data } {
   const n = j.length;
-  const valid = new Uint8Array(n);
-  const reason = new Array<string>(n).fill("");
   const validA = validMask(a);
   const validB = validMask(b);
-  if (allOnes(validA) && allOnes(validB)) {
-    valid.fill(1);
-    return { valid, reason };
-  }
+  if (allOnes(validA) && allOnes(validB)) return { valid: boolDataExcept(n), reason: sparseUtf8Data(n) };
   const reasonA = reasonsOfInvalid(a, validA);
   const reasonB = reasonsOfInvalid(b, validB);
+  const bad: number[] = [];
+  const reason: string[] = [];
   for (let t = 0; t < n; t++) {
     const i = j.rowA[t]!;
     const k = j.rowB[t]!;
     const okA = i < 0 || validA[i] === 1;
     const okB = k < 0 || validB[k] === 1;
-    if (okA && okB) {
-      valid[t] = 1;
-      continue;
-    }
+    if (okA && okB) continue;
     const ra = okA ? "" : `${aliasA}: ${reasonA[i] || "invalid"}`;
     const rb = okB ? "" : `${aliasB}: ${reasonB[k] || "invalid"}`;
+    bad.push(t);
     reason[t] = ra && rb ? `${ra}; ${rb}` : ra || rb;
   }
-  return { valid, reason };
+  return { valid: boolDataExcept(n, bad), reason: sparseUtf8Data(n, bad, reason) };
 }
 
 function allOnes(x: Uint8Array): boolean {
@@ -190,7 +185,7 @@ export interface MatchTableOptions {
 export function matchTable(a: Table, b: Table, r: MatchResult, j: JoinedRows, o: MatchTableOptions): Table {
   const names = outputNames(a, b, o.aliasA, o.aliasB);
   const n = j.length;
-  const cols: ColumnData[] = [];
+  const cols: (ColumnData | DataColumn)[] = [];
   for (const [table, rows, map] of [
     [a, j.rowA, names.a],
     [b, j.rowB, names.b],
@@ -276,8 +271,8 @@ export function matchTable(a: Table, b: Table, r: MatchResult, j: JoinedRows, o:
   cols.push({ name: "ambiguous", kind: "bool", values: amb, meta: { description: "a competing candidate sharing a row has a score within the ambiguity gap" } });
   cols.push({ name: "row_a", kind: "int32", values: rowA, nulls: nullRA, meta: { description: `source row in ${o.aliasA}` } });
   cols.push({ name: "row_b", kind: "int32", values: rowB, nulls: nullRB, meta: { description: `source row in ${o.aliasB}` } });
-  cols.push({ name: VALID, kind: "bool", values: valid });
-  cols.push({ name: INVALID_REASON, kind: "utf8", values: reason });
+  cols.push({ name: VALID, data: valid });
+  cols.push({ name: INVALID_REASON, data: reason });
   cols.push({ name: SOURCE_ROW, kind: "int32", values: ownRow });
   // nulls masks only where a value is missing (the gathered columns set theirs only then)
   const drop = new Map<Uint8Array, boolean>([
@@ -287,7 +282,7 @@ export function matchTable(a: Table, b: Table, r: MatchResult, j: JoinedRows, o:
     [nullRA, noA === 0],
     [nullRB, noB === 0],
   ]);
-  for (const c of cols) if (c.nulls && drop.get(c.nulls)) delete c.nulls;
+  for (const c of cols) if ("nulls" in c && c.nulls && drop.get(c.nulls)) delete c.nulls;
   // roles: A's roles under their output names (positions of the match are A's), B's in the settings
   const roles: RoleMap = {};
   for (const [role, col] of Object.entries(o.rolesA ?? getRoles(a))) if (col && names.a.has(col)) roles[role as keyof RoleMap] = names.a.get(col)!;

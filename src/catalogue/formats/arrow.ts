@@ -3,8 +3,8 @@
  * field metadata (unit, ucd, description); writing writes the file format, or the stream format
  * for `.arrows`.
  */
-import { tableFromIPC, tableToIPC, type Table } from "apache-arrow";
-import { columnsOf } from "../columns.js";
+import { RecordBatchFileWriter, RecordBatchStreamWriter, tableFromIPC, tableToIPC, type Table } from "apache-arrow";
+import { columnDataOf, columnMeta, kindOf, type ColumnData, type ColumnKind } from "../columns.js";
 import { PeculiarError } from "../../errors.js";
 import { finishTable, type ParsedColumns } from "./table.js";
 
@@ -38,7 +38,37 @@ export function parseArrowColumns(bytes: Uint8Array, options: { file: string }):
   const n = table.numRows;
   const sourceRows = new Int32Array(n);
   for (let i = 0; i < n; i++) sourceRows[i] = i + 1;
-  return { columns: columnsOf(table), rows: n, reasons: new Array<string>(n).fill(""), sourceRows, metadata: new Map(table.schema.metadata) };
+  return { columns: table.schema.fields.map((f) => numericView(table, f.name) ?? columnDataOf(table, f.name)), rows: n, reasons: [], sourceRows, metadata: new Map(table.schema.metadata) };
+}
+
+const VIEW_TYPES: Partial<Record<ColumnKind, Function>> = {
+  float64: Float64Array,
+  float32: Float32Array,
+  int8: Int8Array,
+  int16: Int16Array,
+  int32: Int32Array,
+  int64: BigInt64Array,
+  uint8: Uint8Array,
+  uint16: Uint16Array,
+  uint32: Uint32Array,
+  uint64: BigUint64Array,
+};
+
+/**
+ * A numeric column in one chunk without nulls as a view of the file's bytes (no copy: the table
+ * built from it reads the same buffer); undefined for any other column, which is copied out.
+ */
+function numericView(table: Table, name: string): ColumnData | undefined {
+  const v = table.getChild(name);
+  const field = table.schema.fields.find((f) => f.name === name);
+  if (!v || !field || v.data.length !== 1 || v.nullCount !== 0) return undefined;
+  const kind = kindOf(field.type);
+  const want = kind === undefined ? undefined : VIEW_TYPES[kind];
+  const chunk = v.data[0]!;
+  if (kind === undefined || want === undefined || !(chunk.values instanceof want)) return undefined;
+  // Arrow slices `values` already (chunk.offset only indexes the validity bitmap)
+  const values = (chunk.values as Float64Array).subarray(0, chunk.length);
+  return { name, kind, values, meta: columnMeta(table, name) };
 }
 
 export function parseArrow(bytes: Uint8Array, options: { file: string }): Table {
@@ -47,4 +77,41 @@ export function parseArrow(bytes: Uint8Array, options: { file: string }): Table 
 
 export function arrowFromTable(table: Table, options: { stream?: boolean } = {}): Uint8Array {
   return tableToIPC(table, options.stream ? "stream" : "file");
+}
+
+/** Pieces handed to the file are gathered to about this size; bigger buffers go as they are. */
+const PIECE = 1 << 20;
+
+/**
+ * The bytes of arrowFromTable in pieces, without first joining them into one buffer: the writer's
+ * own buffers (column data as it is in the table) go out as they are, small ones gathered.
+ */
+export async function* arrowChunks(table: Table, options: { stream?: boolean } = {}): AsyncGenerator<Uint8Array> {
+  const writer = (options.stream ? RecordBatchStreamWriter : RecordBatchFileWriter).writeAll(table);
+  let held: Uint8Array[] = [];
+  let heldBytes = 0;
+  const flush = (): Uint8Array => {
+    const out = held.length === 1 ? held[0]! : new Uint8Array(heldBytes);
+    if (held.length > 1) {
+      let p = 0;
+      for (const h of held) {
+        out.set(h, p);
+        p += h.length;
+      }
+    }
+    held = [];
+    heldBytes = 0;
+    return out;
+  };
+  for await (const c of writer as AsyncIterable<Uint8Array>) {
+    if (c.length >= PIECE) {
+      if (heldBytes > 0) yield flush();
+      yield c;
+      continue;
+    }
+    held.push(c);
+    heldBytes += c.length;
+    if (heldBytes >= PIECE) yield flush();
+  }
+  if (heldBytes > 0) yield flush();
 }

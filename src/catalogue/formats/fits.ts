@@ -228,7 +228,7 @@ export function parseFitsColumns(bytes: Uint8Array, options: FitsReadOptions): {
   const info: SourceInfo = { file, format: "fits", hdu: found.index };
   if (found.extname !== undefined) info.extname = found.extname;
   if (skipped.length > 0) info.skipped = skipped;
-  return { parsed: { columns, rows, reasons: new Array<string>(rows).fill(""), sourceRows, metadata }, info };
+  return { parsed: { columns, rows, reasons: [], sourceRows, metadata }, info };
 }
 
 function readString(u8: Uint8Array, rows: number, rowBytes: number, start: number, width: number, name: string, meta: ColumnMeta): ColumnData {

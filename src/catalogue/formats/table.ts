@@ -4,7 +4,7 @@
  * when the file was written by us) and records `peculiar.source` in the schema metadata.
  */
 import type { Table } from "apache-arrow";
-import { tableFromColumns, type ColumnData, type ColumnKind } from "../columns.js";
+import { boolDataExcept, sparseUtf8Data, tableFromColumns, type ColumnData, type ColumnKind, type DataColumn } from "../columns.js";
 import { INVALID_REASON, META, SOURCE_ROW, VALID } from "../meta.js";
 
 /** What every reader hands over: columns as read, one reason per row ("" when fine), row numbers. */
@@ -12,7 +12,10 @@ export interface ParsedColumns {
   columns: ColumnData[];
   /** Number of rows (needed when there are no columns). */
   rows: number;
-  /** Per row: what the reader found wrong, "" when nothing. */
+  /**
+   * Per row: what the reader found wrong, "" (or no entry: the array may be shorter than `rows`,
+   * and empty when nothing was found) when nothing.
+   */
   reasons: string[];
   /** Per row: 1-based line (text) or row (binary) in the file. */
   sourceRows: Int32Array;
@@ -76,22 +79,35 @@ export function finishTable(parsed: ParsedColumns, info: SourceInfo): Table {
     cols.push(c);
   }
 
-  const validValues = new Uint8Array(n);
-  const reasonValues = new Array<string>(n);
-  const oldValid = valid?.values as Uint8Array | undefined;
-  const oldReason = reason?.values as string[] | undefined;
+  let validCol: ColumnData | DataColumn;
+  let reasonCol: ColumnData | DataColumn;
   let invalid = 0;
-  for (let i = 0; i < n; i++) {
-    const wasValid = oldValid ? oldValid[i] === 1 || valid!.nulls?.[i] === 1 : true;
-    const before = oldReason && !reason!.nulls?.[i] ? oldReason[i]! : "";
-    const found = parsed.reasons[i] ?? "";
-    const ok = wasValid && found === "";
-    validValues[i] = ok ? 1 : 0;
-    reasonValues[i] = found === "" ? before : before === "" ? found : `${before}; ${found}`;
-    if (!ok) invalid++;
+  if (!valid && !reason) {
+    // The common case: the file has no bookkeeping of its own. Only the rows with a finding are
+    // looked at; the two columns are written straight as Arrow data.
+    const bad: number[] = [];
+    const found = parsed.reasons;
+    for (let i = 0; i < found.length && i < n; i++) if (found[i]) bad.push(i);
+    invalid = bad.length;
+    validCol = { name: VALID, data: boolDataExcept(n, bad) };
+    reasonCol = { name: INVALID_REASON, data: sparseUtf8Data(n, bad, found) };
+  } else {
+    const validValues = new Uint8Array(n);
+    const reasonValues = new Array<string>(n);
+    const oldValid = valid?.values as Uint8Array | undefined;
+    const oldReason = reason?.values as string[] | undefined;
+    for (let i = 0; i < n; i++) {
+      const wasValid = oldValid ? oldValid[i] === 1 || valid!.nulls?.[i] === 1 : true;
+      const before = oldReason && !reason!.nulls?.[i] ? oldReason[i]! : "";
+      const found = parsed.reasons[i] ?? "";
+      const ok = wasValid && found === "";
+      validValues[i] = ok ? 1 : 0;
+      reasonValues[i] = found === "" ? before : before === "" ? found : `${before}; ${found}`;
+      if (!ok) invalid++;
+    }
+    validCol = { name: VALID, kind: "bool", values: validValues };
+    reasonCol = { name: INVALID_REASON, kind: "utf8", values: reasonValues };
   }
-  const validCol: ColumnData = { name: VALID, kind: "bool", values: validValues };
-  const reasonCol: ColumnData = { name: INVALID_REASON, kind: "utf8", values: reasonValues };
   let rowCol: ColumnData;
   if (sourceRow) {
     const src = sourceRow.values as ArrayLike<number | bigint>;
@@ -103,7 +119,7 @@ export function finishTable(parsed: ParsedColumns, info: SourceInfo): Table {
   } else rowCol = { name: SOURCE_ROW, kind: "int32", values: parsed.sourceRows };
 
   // Bookkeeping columns the file had stay where they were; new ones go at the end.
-  const out: ColumnData[] = [];
+  const out: (ColumnData | DataColumn)[] = [];
   const had = new Set<string>();
   for (const c of parsed.columns) {
     if (c === valid) (out.push(validCol), had.add(VALID));
