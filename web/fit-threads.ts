@@ -1,26 +1,36 @@
 /**
- * The re-centring fit's passes on two threads: the page and a fit worker (fit-worker.ts) share the fit's
- * rows in one SharedArrayBuffer (fit-share.ts) and claim a pass's chunks from a shared counter; the
- * chunks' partial sums are added in chunk order, so the result is the one-thread result to the last bit,
- * whichever thread summed which chunk. Re-centring stays a synchronous call: the page sums chunks until
- * none is left and then waits only for the chunks the worker is still on. A worker that is slow to wake
- * (no free core) costs nothing but its share: the page takes the chunks it has not claimed.
+ * Re-centring on two threads: the page and a fit worker (fit-worker.ts) share the re-centring workspace
+ * (src/flow/recentre-kernels.ts) in one SharedArrayBuffer (fit-share.ts) and claim the chunks of each
+ * kernel run from a shared counter. Chunk sums are added in chunk order, so the result is the one-thread
+ * result to the last bit, whichever thread ran which chunk. Re-centring stays a synchronous call: the
+ * page runs chunks until none is left and then waits only for those the worker is still on; a worker
+ * slow to wake (no free core) costs nothing but its share, as the page takes the chunks it has not claimed.
  * Needs a cross-origin isolated page (the view server sends COOP/COEP headers); where the page is not,
- * or a fit has fewer than MIN_SPLIT_ROWS rows or more than the storage holds, passes run on this thread.
+ * null is returned and re-centring runs on the page's thread. Fits of fewer than MIN_SPLIT_ROWS rows, or
+ * more than the storage holds, also run there.
  */
-import { ONE_THREAD, passChunk, passChunks, sumChunks, type LogPasses, type LogRows } from "../src/flow/recentre.js";
-import { claimChunks, CLOSED, CTL_CHUNKS, CTL_NEXT, CTL_READY, CTL_ROWS, CTL_SEQ, fitShareBytes, fitShareViews, type FitShare } from "./fit-share.js";
+import { KERNELS, ONE_THREAD, type KernelId, type RecentreThreads, type RecentreWork } from "../src/flow/recentre-kernels.js";
+import { claimChunks, CLOSED, CTL_CHUNKS, CTL_KERNEL, CTL_NEXT, CTL_READY, CTL_ROWS, CTL_SEQ, fitShareBytes, fitShareViews, type FitShare } from "./fit-share.js";
 
-/** Below this many rows a pass is not shared: waking the worker costs more than it saves. */
+/** Below this many rows a run is not shared: waking the worker costs more than it saves. */
 export const MIN_SPLIT_ROWS = 8192;
-/** A chunk the worker claimed and has not finished after this long is summed here, and the worker given up. */
+/** A chunk the worker claimed and has not finished after this long is run here, and the worker given up. */
 const WORKER_TIMEOUT_MS = 2000;
 
-export class TwoThreadPasses implements LogPasses {
-  /** Passes shared with the worker so far, and the chunks it summed (for the view's tests and benchmark). */
-  splitPasses = 0;
+type Points = Parameters<RecentreThreads["work"]>[0];
+
+/** a and b are the same memory (a view of the shared inputs, as adopt() makes them). */
+function sameRows(a: Float64Array, b: Float64Array): boolean {
+  return a.buffer === b.buffer && a.byteOffset === b.byteOffset;
+}
+
+export class TwoThreads implements RecentreThreads {
+  /** Kernel runs shared with the worker so far, and the chunks it ran (for the view's tests and benchmark). */
+  splitRuns = 0;
   workerChunks = 0;
   private broken = false;
+  /** The shared inputs hold adopted points: other points must not overwrite them. */
+  private adopted = false;
 
   private constructor(
     private readonly share: FitShare,
@@ -30,7 +40,7 @@ export class TwoThreadPasses implements LogPasses {
   }
 
   /** Starts the fit worker with room for `capacity` rows; null where the page cannot share memory. */
-  static start(capacity: number, workerUrl: URL): TwoThreadPasses | null {
+  static start(capacity: number, workerUrl: URL): TwoThreads | null {
     if (!(globalThis.crossOriginIsolated && typeof SharedArrayBuffer === "function" && typeof Worker === "function" && capacity >= MIN_SPLIT_ROWS)) return null;
     let worker: Worker;
     try {
@@ -39,36 +49,61 @@ export class TwoThreadPasses implements LogPasses {
       return null;
     }
     const share = fitShareViews(new SharedArrayBuffer(fitShareBytes(capacity)), capacity);
-    const passes = new TwoThreadPasses(share, worker);
+    const threads = new TwoThreads(share, worker);
     worker.onerror = () => {
-      passes.broken = true;
+      threads.broken = true;
     };
     worker.postMessage({ buffer: share.buffer, capacity });
-    return passes;
+    return threads;
   }
 
-  /** The worker has started and compiled its pass. */
+  /** The worker has started and compiled the kernels. */
   get ready(): boolean {
     return !this.broken && Atomics.load(this.share.ctl, CTL_READY) === 1;
   }
 
-  rows(m: number): LogRows {
-    if (m > this.share.capacity) return ONE_THREAD.rows(m);
-    return { ...this.share.rows, m };
+  /**
+   * Moves the points' columns into the shared inputs and returns views of them in their place, so
+   * that re-centring on them copies nothing in (use stays the caller's: it changes from fit to fit).
+   * From then on, re-centring on other points runs on the page's thread.
+   */
+  adopt<T extends Points>(points: T): T {
+    const n = points.x.length;
+    const w = this.share.work;
+    if (n > this.share.capacity) return points;
+    this.adopted = true;
+    const put = (into: Float64Array, from: Float64Array) => {
+      into.set(from);
+      return into.subarray(0, n);
+    };
+    return { ...points, x: put(w.x, points.x), y: put(w.y, points.y), z: put(w.z, points.z), vr: put(w.vr, points.vr), ...(points.vrErr ? { vrErr: put(w.vrErr, points.vrErr) } : {}) };
   }
 
-  pass(R: LogRows, P: Float64Array, out: Float64Array): void {
-    const m = R.m;
-    if (R.ax.buffer !== this.share.buffer || m < MIN_SPLIT_ROWS || !this.ready) {
-      ONE_THREAD.pass(R, P, out);
+  work(points: Points, withLogRows: boolean): RecentreWork {
+    const n = points.x.length;
+    const w = this.share.work;
+    const inPlace = sameRows(points.x, w.x) && sameRows(points.y, w.y) && sameRows(points.z, w.z) && sameRows(points.vr, w.vr) && (!points.vrErr || sameRows(points.vrErr, w.vrErr));
+    // other points than the adopted ones (a few rows re-centred on their own) run here on fresh arrays
+    if (n > this.share.capacity || (this.adopted && !inPlace)) return ONE_THREAD.work(points, withLogRows);
+    w.n = n;
+    if (!inPlace) {
+      for (const k of ["x", "y", "z", "vr"] as const) w[k].set(points[k]);
+      if (points.vrErr) w.vrErr.set(points.vrErr);
+    }
+    if (points.use) w.use.set(points.use);
+    return w;
+  }
+
+  run(w: RecentreWork, kernel: KernelId, chunks: number): void {
+    if (w !== this.share.work || w.n < MIN_SPLIT_ROWS || !this.ready) {
+      ONE_THREAD.run(w, kernel, chunks);
       return;
     }
     const share = this.share;
-    const { ctl, done, params, partials } = share;
-    const chunks = passChunks(m);
-    params.set(P);
+    const { ctl, done } = share;
     done.fill(0, 0, chunks);
-    Atomics.store(ctl, CTL_ROWS, m);
+    Atomics.store(ctl, CTL_ROWS, w.n);
+    Atomics.store(ctl, CTL_KERNEL, kernel);
     Atomics.store(ctl, CTL_CHUNKS, chunks);
     Atomics.store(ctl, CTL_NEXT, 0);
     Atomics.add(ctl, CTL_SEQ, 1);
@@ -78,17 +113,22 @@ export class TwoThreadPasses implements LogPasses {
     for (let c = 0; c < chunks; c++) {
       while (Atomics.load(done, c) === 0) {
         if (performance.now() - t0 > WORKER_TIMEOUT_MS) {
-          // the worker is gone: sum its chunk here (the same values it would write) and stop using it
+          // the worker is gone: run its chunk here (the same values it would write) and stop using it
           this.broken = true;
           this.worker.terminate();
-          passChunk(R, c, params, partials);
+          KERNELS[kernel]!(w, c);
           break;
         }
       }
     }
     Atomics.store(ctl, CTL_NEXT, CLOSED);
-    this.splitPasses++;
+    this.splitRuns++;
     this.workerChunks += chunks - mine;
-    sumChunks(partials, chunks, out);
+  }
+
+  results(w: RecentreWork): { s: Float64Array; vAB: Float64Array; cosL: Float64Array; used: Uint8Array } {
+    if (w !== this.share.work) return ONE_THREAD.results(w);
+    const n = w.n;
+    return { s: w.s.slice(0, n), vAB: w.vAB.slice(0, n), cosL: w.cosL.slice(0, n), used: w.used.slice(0, n) };
   }
 }

@@ -1,40 +1,39 @@
 /**
- * The page's fit worker: claims and sums chunks of each pass of the re-centring fit (passChunk, the
- * library's own code) on the rows the page shares with it (fit-share.ts), then sleeps until the next
- * pass. Started by fit-threads.ts with one message { buffer, capacity }.
+ * The page's fit worker: claims and runs chunks of the re-centring kernels (src/flow/recentre-kernels.ts,
+ * the library's own code) on the workspace the page shares with it (fit-share.ts), then sleeps until the
+ * next run. Started by fit-threads.ts with one message { buffer, capacity }.
  */
-import { logRowsBytes, logRowsOn, PARTIAL_SUMS, PASS_PARAMS, passChunk, passChunks } from "../src/flow/recentre.js";
+import { recentre } from "../src/flow/recentre.js";
 import { claimChunks, CTL_READY, CTL_SEQ, fitShareViews } from "./fit-share.js";
 
 /** Rows of the warm-up (odd, so that no loop tail goes unrun). */
 const WARM_ROWS = 2001;
 
-/** Compiles the pass on made-up rows (seen from us, a Hubble flow with noise) before the first real one. */
+/**
+ * Compiles the kernels before the first real run: re-centres made-up rows (a Hubble flow seen from us
+ * with 20 % distance errors) from a few of them.
+ */
 function warm(): void {
   const m = WARM_ROWS;
-  const R = logRowsOn(new ArrayBuffer(logRowsBytes(m)), 0, m, m);
+  const x = new Float64Array(m);
+  const y = new Float64Array(m);
+  const z = new Float64Array(m);
+  const vr = new Float64Array(m);
+  const vrErr = new Float64Array(m);
   let seed = 12345;
   const next = () => (seed = (seed * 1103515245 + 12345) % 2147483648) / 2147483648;
   for (let k = 0; k < m; k++) {
     const zc = 2 * next() - 1;
     const phi = 2 * Math.PI * next();
     const rc = Math.sqrt(1 - zc * zc);
-    R.ax[k] = rc * Math.cos(phi);
-    R.ay[k] = rc * Math.sin(phi);
-    R.az[k] = zc;
-    R.q0[k] = 7000 * (0.2 + next()) + 300 * (next() - 0.5);
-    R.lnD[k] = Math.log(100 * (0.2 + next()));
-    R.f[k] = 0.2;
-    R.member[k] = 1;
+    const d = 10 + 140 * next();
+    x[k] = d * rc * Math.cos(phi);
+    y[k] = d * rc * Math.sin(phi);
+    z[k] = d * zc;
+    vr[k] = 70 * d * Math.exp(0.2 * (next() + next() + next() - 1.5)) + 300 * (next() - 0.5);
+    vrErr[k] = 0.2 * 70 * d;
   }
-  const P = new Float64Array(PASS_PARAMS);
-  const partials = new Float64Array(passChunks(m) * PARTIAL_SUMS);
-  P[6] = 70;
-  P[10] = 250 * 250;
-  for (let it = 0; it < 40; it++) {
-    P[11] = it & 1;
-    passChunk(R, 0, P, partials);
-  }
+  for (const index of [1, m >> 1, m - 2]) recentre({ x, y, z, vr, vrErr }, { index }, { h0: 70 });
 }
 
 self.onmessage = (e: MessageEvent<{ buffer: SharedArrayBuffer; capacity: number }>) => {

@@ -18,7 +18,7 @@ import { drawMatchDiagnostics, matchDiagnosticsOf, type MatchDiagnostics } from 
 import { canvasPanelPng, canvasPanelSvg, download, lastExport, svgElementPng, svgElementSvg } from "./export.js";
 import { toolButton, type CanvasPanel, type PanelActions } from "./panel.js";
 import { fixed, withError } from "./format.js";
-import { TwoThreadPasses } from "./fit-threads.js";
+import { TwoThreads } from "./fit-threads.js";
 
 interface Meta {
   file: string;
@@ -92,8 +92,11 @@ async function start(): Promise<void> {
   const data = viewDataFromIPC(bytes);
   const tDecoded = performance.now();
   const inputs: OriginInputs = originInputs(data);
-  const fitThreads = TwoThreadPasses.start(data.n, new URL("./fit-worker.js", import.meta.url));
-  if (fitThreads) inputs.passes = fitThreads;
+  const fitThreads = TwoThreads.start(data.n, new URL("./fit-worker.js", import.meta.url));
+  if (fitThreads) {
+    inputs.points = fitThreads.adopt(inputs.points);
+    inputs.threads = fitThreads;
+  }
   const tInputs = performance.now();
   const home: OriginView = homeView(inputs);
   const tHome = performance.now();
@@ -315,11 +318,11 @@ async function start(): Promise<void> {
   (window as unknown as { peculiarView: unknown }).peculiarView = {
     state,
     timing,
-    /** The fit worker: started and compiled, passes shared with it and chunks it summed; null without one. */
-    fitThreads: () => (fitThreads ? { ready: fitThreads.ready, splitPasses: fitThreads.splitPasses, workerChunks: fitThreads.workerChunks } : null),
-    /** Runs the fit on one thread (false) or shares it with the worker where it can (true): for the benchmark's side-by-side runs. */
+    /** The fit worker: started and compiled, kernel runs shared with it and chunks it ran; null without one. */
+    fitThreads: () => (fitThreads ? { ready: fitThreads.ready, splitRuns: fitThreads.splitRuns, workerChunks: fitThreads.workerChunks } : null),
+    /** Re-centres on one thread (false) or shares the work with the worker where it can (true): for the benchmark's side-by-side runs. */
     useFitThreads: (on: boolean) => {
-      inputs.passes = on && fitThreads ? fitThreads : undefined;
+      inputs.threads = on && fitThreads ? fitThreads : undefined;
     },
     panels: Object.fromEntries(panels.map((p) => [p.name, p])),
     recentreOn,

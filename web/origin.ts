@@ -6,7 +6,8 @@
  * supergalactic Cartesian coordinates.
  */
 import type { ViewData } from "./data.js";
-import { originOf, recentre, type LogPasses, type RecentreOrigin } from "../src/flow/recentre.js";
+import { originOf, recentre, type RecentreOrigin } from "../src/flow/recentre.js";
+import type { RecentreThreads } from "../src/flow/recentre-kernels.js";
 import { fitFlow, flowPoints, type FlowRows } from "../src/flow/bulkflow.js";
 import { groupTable } from "../src/flow/groups.js";
 import { excludeMembers, groupOrigin } from "../src/flow/origins.js";
@@ -58,8 +59,8 @@ export interface OriginInputs {
   /** Where H0 came from: the fit from here (as the CLI does by default). */
   h0Source: string;
   sigmaStar: number;
-  /** Where the fit's passes run (fit-threads.ts); this thread when absent. */
-  passes?: LogPasses;
+  /** Where re-centring's row loops run (fit-threads.ts); this thread when absent. */
+  threads?: RecentreThreads;
 }
 
 /** Non-linear scatter added to every error in the fits, km/s: the default of `peculiar recentre`. */
@@ -133,7 +134,7 @@ function subset(p: { x: Float64Array; y: Float64Array; z: Float64Array; vr: Floa
 function build(inp: OriginInputs, origin: RecentreOrigin, use: Uint8Array, kind: OriginKind, row: number, groupId: number, label: string): OriginView {
   const t0 = performance.now();
   const p = { ...inp.points, use };
-  const opts = { h0: inp.cosmology.h0, sigmaStar: inp.sigmaStar, form: "minor" as const, passes: inp.passes };
+  const opts = { h0: inp.cosmology.h0, sigmaStar: inp.sigmaStar, form: "minor" as const, threads: inp.threads };
   const r = recentre(p, origin, opts);
   // Rows left out of the fit (outliers, invalid rows, a group's own members) are still drawn: the same
   // library call on them alone, from the same origin given as a point, gives their velocity seen from there.
@@ -204,7 +205,7 @@ export function warmRecentre(inp: OriginInputs): void {
   const step = n / rows.length;
   for (let k = 0; k < rows.length; k++) rows[k] = Math.floor(k * step);
   const p = { ...subset(inp.points, rows), use: Uint8Array.from(rows, (i) => inp.points.use[i]!) };
-  const opts = { h0: inp.cosmology.h0, sigmaStar: inp.sigmaStar, form: "minor" as const, passes: inp.passes };
+  const opts = { h0: inp.cosmology.h0, sigmaStar: inp.sigmaStar, form: "minor" as const, threads: inp.threads };
   for (const k of [1, rows.length >> 1, rows.length - 2]) recentre(p, { index: k }, opts);
 }
 

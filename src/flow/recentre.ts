@@ -28,6 +28,36 @@
  */
 import { quickselect } from "d3-array";
 import { HubbleSums, invertSymmetric } from "./hubble.js";
+import {
+  chunksOf,
+  LOG_PASS,
+  ONE_THREAD,
+  P_D,
+  P_FIT_H0,
+  P_FROZEN,
+  P_H,
+  P_H0,
+  P_HAS_ERR,
+  P_HAS_USE,
+  P_MAJOR,
+  P_MAX_D,
+  P_MIN_COS,
+  P_MIN_D,
+  P_OD,
+  P_OINDEX,
+  P_ONX,
+  P_OVR,
+  P_OVX,
+  P_OX,
+  P_PACK,
+  P_SS2,
+  PARTIAL_SUMS,
+  RESIDUAL,
+  SETUP,
+  sumChunks,
+  type RecentreThreads,
+  type RecentreWork,
+} from "./recentre-kernels.js";
 
 export interface RecentrePoints {
   x: Float64Array;
@@ -62,8 +92,10 @@ export interface RecentreOptions {
    * where "log" is biased instead (sigma*^2 / (H <D^2>): +0.15% on a 120 Mpc mock without distance errors).
    */
   estimator?: "auto" | "log" | "linear";
-  /** Where the log fit's passes run (default: on this thread). The web view spreads them over a worker. */
-  passes?: LogPasses;
+  /** Where the row loops run (default: on this thread). The web view shares them with a worker. */
+  threads?: RecentreThreads;
+  /** Start the log fit here instead of at the linear fit (to check that its answer is a fixed point). */
+  logStart?: { h: number; d: [number, number, number] };
 }
 
 export interface Recentred {
@@ -99,11 +131,6 @@ export interface Recentred {
   velocityModel: "radial-only";
 }
 
-/** |(x, y, z)| (Math.hypot is several times slower in V8 and not needed at these magnitudes). */
-function norm3(x: number, y: number, z: number): number {
-  return Math.sqrt(x * x + y * y + z * z);
-}
-
 /** 3-D velocity of a point under the radial-only assumption: vr times the unit vector of r (0 at r = 0). */
 export function radialVelocity3(x: number, y: number, z: number, vr: number): [number, number, number] {
   const d = Math.hypot(x, y, z);
@@ -128,73 +155,51 @@ export function originOf(points: RecentrePoints, origin: RecentreOrigin): { inde
 }
 
 export function recentre(points: RecentrePoints, origin: RecentreOrigin, opts: RecentreOptions): Recentred {
-  const { x, y, z, vr, vrErr, use } = points;
-  const n = x.length;
+  const n = points.x.length;
   const form = opts.form ?? "minor";
-  const minCos = opts.minCosLambda ?? 0.3;
-  const maxD = opts.maxDistMpc ?? Infinity;
-  const minD = opts.minDistMpc ?? 0;
-  const o = originOf(points, origin);
-  const ox = o.x;
-  const oy = o.y;
-  const oz = o.z;
-  const od = Math.hypot(ox, oy, oz);
-  // Unit vector of the origin as seen from us (for cos theta in the major form).
-  const onx = od > 0 ? ox / od : 0;
-  const ony = od > 0 ? oy / od : 0;
-  const onz = od > 0 ? oz / od : 0;
-
-  const s = new Float64Array(n);
-  const vAB = new Float64Array(n);
-  const cosL = new Float64Array(n);
-  const used = new Uint8Array(n);
   const fitH0 = opts.fitH0 ?? true;
   const sigmaStar = opts.sigmaStar ?? 250;
   const fitDipole = opts.fitDipole ?? true;
-  const ss2 = sigmaStar * sigmaStar;
+  const wanted = opts.estimator ?? "auto";
+  const o = originOf(points, origin);
+  const od = Math.hypot(o.x, o.y, o.z);
+  // the log fit's rows are made in the same pass as the rest, when the log fit can be chosen
+  const mayLog = form === "minor" && (wanted === "log" || (wanted === "auto" && points.vrErr !== undefined));
+  const threads = opts.threads ?? ONE_THREAD;
+  const w = threads.work(points, mayLog);
+  const P = w.P;
+  P.fill(0);
+  P[P_OX] = o.x;
+  P[P_OX + 1] = o.y;
+  P[P_OX + 2] = o.z;
+  P[P_OVX] = o.vx;
+  P[P_OVX + 1] = o.vy;
+  P[P_OVX + 2] = o.vz;
+  P[P_OVR] = o.vr;
+  // unit vector of the origin as seen from us (for cos theta in the major form)
+  P[P_ONX] = od > 0 ? o.x / od : 0;
+  P[P_ONX + 1] = od > 0 ? o.y / od : 0;
+  P[P_ONX + 2] = od > 0 ? o.z / od : 0;
+  P[P_OD] = od;
+  P[P_OINDEX] = o.index;
+  P[P_MAJOR] = form === "major" ? 1 : 0;
+  P[P_MIN_COS] = opts.minCosLambda ?? 0.3;
+  P[P_MAX_D] = opts.maxDistMpc ?? Infinity;
+  P[P_MIN_D] = opts.minDistMpc ?? 0;
+  P[P_FIT_H0] = fitH0 ? 1 : 0;
+  P[P_H0] = opts.h0;
+  P[P_SS2] = sigmaStar * sigmaStar;
+  P[P_HAS_ERR] = points.vrErr ? 1 : 0;
+  P[P_HAS_USE] = points.use ? 1 : 0;
+  P[P_PACK] = mayLog ? 1 : 0;
+  const chunks = chunksOf(n);
   // the linear fit's normal equations (fitHubbleFlow's, with the slope held at h0 when fitH0 is false),
   // summed as the rows are made: v_AB = H s + d . e_AB, error sigma_i and sigmaStar in quadrature
+  threads.run(w, SETUP, chunks);
+  const part = new Float64Array(PARTIAL_SUMS);
   const sums = new HubbleSums();
-  for (let i = 0; i < n; i++) {
-    const dx = x[i]! - ox;
-    const dy = y[i]! - oy;
-    const dz = z[i]! - oz;
-    const si = Math.sqrt(dx * dx + dy * dy + dz * dz);
-    s[i] = si;
-    vAB[i] = NaN;
-    cosL[i] = NaN;
-    if (i === o.index || !(si > 0) || !Number.isFinite(vr[i]!)) continue;
-    if (use && !use[i]) continue;
-    const ux = dx / si;
-    const uy = dy / si;
-    const uz = dz / si;
-    const di = norm3(x[i]!, y[i]!, z[i]!);
-    if (!(di > 0)) continue;
-    const nbx = x[i]! / di;
-    const nby = y[i]! / di;
-    const nbz = z[i]! / di;
-    const cl = nbx * ux + nby * uy + nbz * uz;
-    cosL[i] = cl;
-    let v: number;
-    if (form === "major") {
-      if (!(Math.abs(cl) >= minCos)) continue;
-      const cosTheta = od > 0 ? nbx * onx + nby * ony + nbz * onz : 0;
-      v = (vr[i]! - o.vr * cosTheta) / cl;
-    } else {
-      const vbx = vr[i]! * nbx - o.vx;
-      const vby = vr[i]! * nby - o.vy;
-      const vbz = vr[i]! * nbz - o.vz;
-      v = vbx * ux + vby * uy + vbz * uz;
-    }
-    const e = vrErr ? vrErr[i]! : 0;
-    const sg = form === "major" ? e : e * Math.abs(cl);
-    if (!Number.isFinite(v) || !Number.isFinite(sg)) continue;
-    vAB[i] = v;
-    if (!(si <= maxD && si >= minD)) continue;
-    used[i] = 1;
-    const v2 = sg * sg + ss2;
-    sums.add(si, v - (fitH0 ? 0 : opts.h0 * si), ux, uy, uz, v2 > 0 ? 1 / v2 : 1);
-  }
+  sumChunks(w.partials, chunks, part);
+  setSums(sums, part);
   const linearFit = sums.solve(fitH0, fitDipole);
   const errOf = (k: number) => (linearFit.ok ? Math.sqrt(linearFit.cov[k * 5]!) : NaN);
   let h = fitH0 ? linearFit.params[0]! : opts.h0;
@@ -206,9 +211,10 @@ export function recentre(points: RecentrePoints, origin: RecentreOrigin, opts: R
   let dof = sums.rows - linearFit.nParams;
   let nUsed = sums.rows;
   let fitSteps = 0;
-  const estimator = form === "minor" ? chooseEstimator(opts.estimator ?? "auto", vrErr, used, sigmaStar) : "linear";
+  const estimator = mayLog ? chooseEstimator(wanted, points.vrErr, w.used, sigmaStar) : "linear";
   if (estimator === "log" && linearFit.ok) {
-    const g = logDistanceFit(points, o, used, vAB, { h0: opts.h0, hStart: h, dStart: d, fitH0, fitDipole, sigmaStar, passes: opts.passes });
+    const start = opts.logStart ?? { h, d };
+    const g = logDistanceFit(w, threads, chunks, { h0: opts.h0, hStart: start.h, dStart: start.d, fitH0, fitDipole });
     if (g.ok) {
       h = g.h;
       d = g.d;
@@ -222,50 +228,54 @@ export function recentre(points: RecentrePoints, origin: RecentreOrigin, opts: R
     }
   }
   // Residual scatter in km/s at the observed positions, for the final parameters.
-  let sumR2 = 0;
-  let nR = 0;
-  for (let i = 0; i < n; i++) {
-    if (!used[i]) continue;
-    const si = s[i]!;
-    const ux = (x[i]! - ox) / si;
-    const uy = (y[i]! - oy) / si;
-    const uz = (z[i]! - oz) / si;
-    const r = vAB[i]! - h * si - d[0] * ux - d[1] * uy - d[2] * uz;
-    if (!Number.isFinite(r)) continue;
-    sumR2 += r * r;
-    nR++;
-  }
-  const fit = {
-    slope: h,
-    slopeErr: hErr,
+  P[P_H] = h;
+  P[P_D] = d[0];
+  P[P_D + 1] = d[1];
+  P[P_D + 2] = d[2];
+  threads.run(w, RESIDUAL, chunks);
+  sumChunks(w.partials, chunks, part);
+  const sumR2 = part[0]!;
+  const nR = part[15]!;
+  const rows = threads.results(w);
+  return {
+    s: rows.s,
+    vAB: rows.vAB,
+    h0There: h,
+    h0ThereErr: hErr,
     dipole: d,
     dipoleErr: dErr,
     nUsed,
-    residualRms: nR > 0 && Number.isFinite(h) ? Math.sqrt(sumR2 / nR) : NaN,
+    residualRmsThere: nR > 0 && Number.isFinite(h) ? Math.sqrt(sumR2 / nR) : NaN,
     cov,
+    cosLambda: rows.cosL,
+    used: rows.used,
+    originIndex: o.index,
+    origin: { x: o.x, y: o.y, z: o.z, vx: o.vx, vy: o.vy, vz: o.vz },
     chi2,
     dof,
-  };
-  return {
-    s,
-    vAB,
-    h0There: fit.slope,
-    h0ThereErr: fit.slopeErr,
-    dipole: fit.dipole,
-    dipoleErr: fit.dipoleErr,
-    nUsed: fit.nUsed,
-    residualRmsThere: fit.residualRms,
-    cov: fit.cov,
-    cosLambda: cosL,
-    used,
-    originIndex: o.index,
-    origin: { x: ox, y: oy, z: oz, vx: o.vx, vy: o.vy, vz: o.vz },
-    chi2: fit.chi2,
-    dof: fit.dof,
     estimator,
     fitSteps,
     velocityModel: "radial-only",
   };
+}
+
+/** Sets `sums` from chunk sums (PARTIAL_SUMS slots: the upper triangle of A, b, sum w y^2, rows). */
+function setSums(sums: HubbleSums, part: Float64Array): void {
+  sums.reset();
+  const A = sums.A;
+  A[0] = part[0]!;
+  A[1] = part[1]!;
+  A[2] = part[2]!;
+  A[3] = part[3]!;
+  A[5] = part[4]!;
+  A[6] = part[5]!;
+  A[7] = part[6]!;
+  A[10] = part[7]!;
+  A[11] = part[8]!;
+  A[15] = part[9]!;
+  for (let c = 0; c < 4; c++) sums.b[c] = part[10 + c]!;
+  sums.wyy = part[14]!;
+  sums.rows = part[15]!;
 }
 
 /**
@@ -326,52 +336,22 @@ const ANDERSON_DEPTH = 3;
  * can differ by a few out of 1e5 with the path to it, a change far below the statistical error). On
  * 1e5 galaxies seen from other galaxies: 7-9 steps, where plain steps with halving took 15-35.
  */
-/** Exported for its tests; callers use recentre. */
-export function logDistanceFit(
-  points: RecentrePoints,
-  o: { x: number; y: number; z: number; vx: number; vy: number; vz: number },
-  used: Uint8Array,
-  vAB: Float64Array,
-  opts: { h0: number; hStart: number; dStart: [number, number, number]; fitH0: boolean; fitDipole: boolean; sigmaStar: number; passes?: LogPasses },
+function logDistanceFit(
+  w: RecentreWork,
+  threads: RecentreThreads,
+  chunks: number,
+  opts: { h0: number; hStart: number; dStart: [number, number, number]; fitH0: boolean; fitDipole: boolean },
 ): LogFitResult {
-  const { x, y, z, vr, vrErr } = points;
-  const n = x.length;
   const fail: LogFitResult = { ok: false, steps: 0, h: NaN, d: [NaN, NaN, NaN], cov: new Float64Array(16), chi2: NaN, dof: 0, nUsed: 0 };
   const { fitH0, fitDipole } = opts;
   if (!((fitH0 ? opts.hStart : opts.h0) > 0)) return fail;
-  // The rows offered, packed once with what does not change from step to step (LogRows).
-  let m = 0;
-  for (let i = 0; i < n; i++) if (used[i] && Number.isFinite(vAB[i]!)) m++;
-  const passes = opts.passes ?? ONE_THREAD;
-  const R = passes.rows(m);
-  const rA2 = o.x * o.x + o.y * o.y + o.z * o.z;
-  for (let i = 0, k = 0; i < n; i++) {
-    if (!used[i] || !Number.isFinite(vAB[i]!)) continue;
-    const dObs = norm3(x[i]!, y[i]!, z[i]!);
-    const ax = x[i]! / dObs;
-    const ay = y[i]! / dObs;
-    const az = z[i]! / dObs;
-    const dc = ax * o.x + ay * o.y + az * o.z;
-    R.ax[k] = ax;
-    R.ay[k] = ay;
-    R.az[k] = az;
-    R.dc[k] = dc;
-    R.b2[k] = Math.max(0, rA2 - dc * dc);
-    R.q0[k] = vr[i]! - (ax * o.vx + ay * o.vy + az * o.vz);
-    R.lnD[k] = Math.log(dObs);
-    const e = vrErr ? vrErr[i]! : 0;
-    R.f[k] = Number.isFinite(e) ? e / (opts.h0 * dObs) : 0;
-    k++;
-  }
+  // The rows (member = 1) were made by the SETUP kernel with what does not change from step to step.
   // After FREEZE_AT steps the set of rows can only shrink and each row keeps the root it had then: a row
   // whose root comes and goes, or a row seen near its closest approach (q near 0, where "the root away
   // from D_c" changes sides), would otherwise make a limit cycle that never converges.
-  const { member, inFit } = R;
-  member.fill(1, 0, m);
+  const { member, inFit, P } = w;
   const sums = new HubbleSums();
-  const P = new Float64Array(PASS_PARAMS);
-  const partial = new Float64Array(PARTIAL_SUMS);
-  const ss2 = opts.sigmaStar * opts.sigmaStar;
+  const part = new Float64Array(PARTIAL_SUMS);
   const d: [number, number, number] = fitDipole ? [...opts.dStart] : [0, 0, 0];
   let h = fitH0 ? opts.hStart : opts.h0;
   // the fitted parameters as a vector (slots of HubbleSums: 0 = H, 1..3 = dipole)
@@ -382,10 +362,15 @@ export function logDistanceFit(
   const unit = new Float64Array(q);
   let prevNorm = Infinity;
   for (let it = 0; it < MAX_ITER; it++) {
-    passParams(P, o, h, d, ss2, it >= FREEZE_AT);
-    passes.pass(R, P, partial);
-    setSums(sums, partial);
-    if (it + 1 >= FREEZE_AT) member.set(inFit.subarray(0, m));
+    P[P_H] = h;
+    P[P_D] = d[0];
+    P[P_D + 1] = d[1];
+    P[P_D + 2] = d[2];
+    P[P_FROZEN] = it >= FREEZE_AT ? 1 : 0;
+    threads.run(w, LOG_PASS, chunks);
+    sumChunks(w.partials, chunks, part);
+    setSums(sums, part);
+    if (it + 1 >= FREEZE_AT) member.set(inFit.subarray(0, w.n));
     const step = sums.solve(fitH0, fitDipole);
     if (!step.ok) return fail;
     const err = (slot: number) => Math.sqrt(step.cov[slot * 5]!);
@@ -504,235 +489,6 @@ class Anderson {
     }
     return out;
   }
-}
-
-/**
- * The rows of the log fit, with the parts of each row's terms that do not depend on (H, d):
- * a = unit line of sight, dc = a . r_A (closest approach), b2 = |r_A|^2 - dc^2, q0 = V_B - a . v_A,
- * lnD = ln D_obs, f = fractional distance error; side and inFit are written by logStepSums, member by
- * logDistanceFit. Rows 0..m-1 are used; the arrays may be longer (storage reused between fits).
- */
-export interface LogRows {
-  m: number;
-  ax: Float64Array;
-  ay: Float64Array;
-  az: Float64Array;
-  dc: Float64Array;
-  b2: Float64Array;
-  q0: Float64Array;
-  lnD: Float64Array;
-  f: Float64Array;
-  /** The root each row takes once frozen: the sign of F'(D_pred), +1 beyond dc, -1 before it. */
-  side: Float64Array;
-  /** 1 for the rows a pass looks at. */
-  member: Uint8Array;
-  /** 1 for the rows that had a usable root in the last pass. */
-  inFit: Uint8Array;
-}
-
-const LOG_ROW_COLUMNS = ["ax", "ay", "az", "dc", "b2", "q0", "lnD", "f", "side"] as const;
-
-/** Bytes that logRowsOn needs for `capacity` rows. */
-export function logRowsBytes(capacity: number): number {
-  return capacity * (LOG_ROW_COLUMNS.length * 8 + 2);
-}
-
-/**
- * LogRows as views on `buffer` from `byteOffset` (a multiple of 8), room for `capacity` rows, of which
- * the first m are used. The same call on the same SharedArrayBuffer gives another thread the same rows.
- */
-export function logRowsOn(buffer: ArrayBufferLike, byteOffset: number, capacity: number, m: number): LogRows {
-  let at = byteOffset;
-  const f64 = () => {
-    const a = new Float64Array(buffer, at, capacity);
-    at += capacity * 8;
-    return a;
-  };
-  const u8 = () => {
-    const a = new Uint8Array(buffer, at, capacity);
-    at += capacity;
-    return a;
-  };
-  return { m, ax: f64(), ay: f64(), az: f64(), dc: f64(), b2: f64(), q0: f64(), lnD: f64(), f: f64(), side: f64(), member: u8(), inFit: u8() };
-}
-
-/** Slots of a pass's parameters (passParams): origin position, v_A + d, H, d, sigmaStar^2, frozen. */
-export const PASS_PARAMS = 12;
-/**
- * Slots of a pass's partial sums: the upper triangle of A (a00 a01 a02 a03 a11 a12 a13 a22 a23 a33),
- * b0..b3, sum w y^2, rows. Partial sums of disjoint row ranges add up to the sums of their union.
- */
-export const PARTIAL_SUMS = 16;
-const A_SLOTS = [0, 1, 2, 3, 5, 6, 7, 10, 11, 15];
-
-/** Writes a pass's parameters into P (PASS_PARAMS slots). */
-export function passParams(P: Float64Array, o: { x: number; y: number; z: number; vx: number; vy: number; vz: number }, h: number, d: readonly number[], ss2: number, frozen: boolean): void {
-  P[0] = o.x;
-  P[1] = o.y;
-  P[2] = o.z;
-  P[3] = o.vx + d[0]!;
-  P[4] = o.vy + d[1]!;
-  P[5] = o.vz + d[2]!;
-  P[6] = h;
-  P[7] = d[0]!;
-  P[8] = d[1]!;
-  P[9] = d[2]!;
-  P[10] = ss2;
-  P[11] = frozen ? 1 : 0;
-}
-
-/** Sets `sums` from partial sums (PARTIAL_SUMS slots). */
-export function setSums(sums: HubbleSums, part: Float64Array): void {
-  sums.reset();
-  for (let j = 0; j < A_SLOTS.length; j++) sums.A[A_SLOTS[j]!] = part[j]!;
-  for (let c = 0; c < 4; c++) sums.b[c] = part[10 + c]!;
-  sums.wyy = part[14]!;
-  sums.rows = part[15]!;
-}
-
-/**
- * Rows per chunk of a pass. Partial sums are made per chunk and added in chunk order, so that a pass
- * gives the same sums to the last bit however many threads share its chunks.
- */
-export const PASS_CHUNK_ROWS = 4096;
-
-export function passChunks(m: number): number {
-  return Math.ceil(m / PASS_CHUNK_ROWS);
-}
-
-/** Chunk c of a pass: logStepSums over its rows into partials[c * PARTIAL_SUMS ..]. */
-export function passChunk(R: LogRows, c: number, P: Float64Array, partials: Float64Array): void {
-  const k0 = c * PASS_CHUNK_ROWS;
-  logStepSums(R, k0, Math.min(R.m, k0 + PASS_CHUNK_ROWS), P, partials, c * PARTIAL_SUMS);
-}
-
-/** out = the chunks' partial sums added in chunk order. */
-export function sumChunks(partials: Float64Array, chunks: number, out: Float64Array): void {
-  out.fill(0, 0, PARTIAL_SUMS);
-  for (let c = 0; c < chunks; c++) for (let j = 0; j < PARTIAL_SUMS; j++) out[j] = out[j]! + partials[c * PARTIAL_SUMS + j]!;
-}
-
-/**
- * Where the log fit's passes run: the rows' storage and one pass over rows 0..R.m-1 into the sums
- * (PARTIAL_SUMS slots), made chunk by chunk (passChunk) and added by sumChunks.
- */
-export interface LogPasses {
-  rows(m: number): LogRows;
-  pass(R: LogRows, P: Float64Array, out: Float64Array): void;
-}
-
-/** Passes on this thread, with fresh storage for every fit. */
-export const ONE_THREAD: LogPasses = {
-  rows: (m) => logRowsOn(new ArrayBuffer(logRowsBytes(m)), 0, m, m),
-  pass: (R, P, out) => {
-    const chunks = passChunks(R.m);
-    const partials = new Float64Array(chunks * PARTIAL_SUMS);
-    for (let c = 0; c < chunks; c++) passChunk(R, c, P, partials);
-    sumChunks(partials, chunks, out);
-  },
-};
-
-/**
- * One Gauss-Newton step's normal equations over rows k0..k1-1: for each member row at (H, d), the
- * predicted distance D_pred = dc + t, the root of F = H s^2 - (w - d).(D a - r_A) with
- * t = (q + F'(D_pred)) / (2H) and F'(D_pred) = +-sqrt(q^2 - 4 H F(dc)), signed as q (the root away from
- * dc) or, once frozen, as side, q = (w - d) . a = q0 - d . a and F(dc) = H b2 - (w - d).p =
- * H b2 + (v_A + d).p, p = dc a - r_A (a . p = 0, so V_B drops out); then s_pred, e_pred,
- * kappa = F'(D_pred) D_pred / s_pred and the row y = -kappa ln(D_obs / D_pred) with error |kappa| f and
- * sigmaStar in quadrature, summed into out[at .. at + PARTIAL_SUMS). P holds passParams. inFit[k] = 1
- * for the rows that had a usable root. No allocation; rows outside k0..k1-1 are not touched.
- */
-export function logStepSums(R: LogRows, k0: number, k1: number, P: Float64Array, out: Float64Array, at: number): void {
-  const { ax: AX, ay: AY, az: AZ, dc: DC, b2: B2, q0: Q0, lnD: LND, f: FR, side: SIDE, member, inFit } = R;
-  const ox = P[0]!;
-  const oy = P[1]!;
-  const oz = P[2]!;
-  const ux = P[3]!;
-  const uy = P[4]!;
-  const uz = P[5]!;
-  const h = P[6]!;
-  const d0 = P[7]!;
-  const d1 = P[8]!;
-  const d2 = P[9]!;
-  const ss2 = P[10]!;
-  const frozen = P[11] !== 0;
-  const inv2h = 1 / (2 * h);
-  const h4 = 4 * h;
-  let a00 = 0, a01 = 0, a02 = 0, a03 = 0, a11 = 0, a12 = 0, a13 = 0, a22 = 0, a23 = 0, a33 = 0;
-  let b0 = 0, b1 = 0, b2 = 0, b3 = 0, wyy = 0;
-  let rows = 0;
-  for (let k = k0; k < k1; k++) {
-    inFit[k] = 0;
-    if (!member[k]) continue;
-    const ax = AX[k]!;
-    const ay = AY[k]!;
-    const az = AZ[k]!;
-    const dc = DC[k]!;
-    const q = Q0[k]! - (d0 * ax + d1 * ay + d2 * az);
-    const c0 = h * B2[k]! + (ux * (dc * ax - ox) + uy * (dc * ay - oy) + uz * (dc * az - oz));
-    const disc = q * q - h4 * c0;
-    if (!(disc > 0)) continue;
-    // F'(D_pred) = 2 H t - q: the root away from dc (the sign of q) until frozen, then the same root
-    let sign: number;
-    if (frozen) sign = SIDE[k]!;
-    else if (q === 0) continue;
-    else SIDE[k] = sign = q > 0 ? 1 : -1;
-    const fD = sign * Math.sqrt(disc);
-    const dp = dc + (q + fD) * inv2h;
-    if (!(dp > 0)) continue;
-    const sx = dp * ax - ox;
-    const sy = dp * ay - oy;
-    const sz = dp * az - oz;
-    const sp = Math.sqrt(sx * sx + sy * sy + sz * sz);
-    if (!(sp > 0)) continue;
-    const invSp = 1 / sp;
-    const kappa = fD * dp * invSp;
-    const yv = -kappa * (LND[k]! - Math.log(dp));
-    const ex = sx * invSp;
-    const ey = sy * invSp;
-    const ez = sz * invSp;
-    const sg = Math.abs(kappa) * FR[k]!;
-    if (!(Number.isFinite(yv) && Number.isFinite(sp) && Number.isFinite(ex + ey + ez) && Number.isFinite(sg))) continue;
-    const v2 = sg * sg + ss2;
-    const w = v2 > 0 ? 1 / v2 : 1;
-    const wx = w * sp;
-    const wex = w * ex;
-    const wey = w * ey;
-    const wez = w * ez;
-    b0 += wx * yv;
-    b1 += wex * yv;
-    b2 += wey * yv;
-    b3 += wez * yv;
-    a00 += wx * sp;
-    a01 += wx * ex;
-    a02 += wx * ey;
-    a03 += wx * ez;
-    a11 += wex * ex;
-    a12 += wex * ey;
-    a13 += wex * ez;
-    a22 += wey * ey;
-    a23 += wey * ez;
-    a33 += wez * ez;
-    wyy += w * yv * yv;
-    rows++;
-    inFit[k] = 1;
-  }
-  out[at] = a00;
-  out[at + 1] = a01;
-  out[at + 2] = a02;
-  out[at + 3] = a03;
-  out[at + 4] = a11;
-  out[at + 5] = a12;
-  out[at + 6] = a13;
-  out[at + 7] = a22;
-  out[at + 8] = a23;
-  out[at + 9] = a33;
-  out[at + 10] = b0;
-  out[at + 11] = b1;
-  out[at + 12] = b2;
-  out[at + 13] = b3;
-  out[at + 14] = wyy;
-  out[at + 15] = rows;
 }
 
 function chooseEstimator(e: "auto" | "log" | "linear", vrErr: Float64Array | undefined, used: Uint8Array, sigmaStar: number): "log" | "linear" {

@@ -1,23 +1,12 @@
 /**
- * The log fit's passes (src/flow/recentre.ts LogPasses): summed chunk by chunk and added in chunk order,
- * so a fit gives the same numbers to the last bit whichever thread sums which chunk (the web view shares
- * the chunks with a worker, web/fit-threads.ts). Checked here with the chunks summed in other orders on
- * rows in a SharedArrayBuffer, as the page does.
+ * Re-centring's row loops as chunk kernels (src/flow/recentre-kernels.ts): chunk sums are added in chunk
+ * order, so a fit gives the same numbers to the last bit whichever thread runs which chunk (the web view
+ * shares the chunks with a worker, web/fit-threads.ts). Checked here with the chunks run in other
+ * orders on one workspace in a SharedArrayBuffer, reused from fit to fit, as the page does.
  */
 import { describe, expect, it } from "vitest";
-import {
-  logRowsBytes,
-  logRowsOn,
-  ONE_THREAD,
-  PARTIAL_SUMS,
-  PASS_CHUNK_ROWS,
-  passChunk,
-  passChunks,
-  recentre,
-  sumChunks,
-  type LogPasses,
-  type Recentred,
-} from "../../src/flow/recentre.js";
+import { recentre, type Recentred } from "../../src/flow/recentre.js";
+import { CHUNK_ROWS, KERNELS, ONE_THREAD, P_H0, P_HAS_ERR, P_PACK, P_SS2, SETUP, workBytes, workOn, type RecentreThreads, type RecentreWork } from "../../src/flow/recentre-kernels.js";
 import { makeMockUniverse } from "../../src/flow/mock.js";
 import { flowPoints } from "../../src/flow/bulkflow.js";
 import { flowRowsOf } from "./mock-rows.js";
@@ -28,19 +17,26 @@ function mockPoints(n: number, seed: number) {
   return flowPoints(flowRowsOf(m), { h0: 70, omegaM: 0.3 });
 }
 
-/** Passes that sum the chunks in the order `order(chunks)` on rows in one SharedArrayBuffer. */
-function passesInOrder(capacity: number, order: (chunks: number) => number[]): LogPasses & { passes: number } {
-  const shared = logRowsOn(new SharedArrayBuffer(logRowsBytes(capacity)), 0, capacity, capacity);
+/** One shared workspace, its chunks run in the order `order(chunks)`. */
+function sharedInOrder(capacity: number, order: (chunks: number) => number[]): RecentreThreads & { runs: number } {
+  const w = workOn(new SharedArrayBuffer(workBytes(capacity)), 0, capacity);
   const self = {
-    passes: 0,
-    rows: (m: number) => ({ ...shared, m }),
-    pass: (R: ReturnType<typeof logRowsOn>, P: Float64Array, out: Float64Array) => {
-      const chunks = passChunks(R.m);
-      const partials = new Float64Array(chunks * PARTIAL_SUMS);
-      for (const c of order(chunks)) passChunk(R, c, P, partials);
-      sumChunks(partials, chunks, out);
-      self.passes++;
+    runs: 0,
+    work(points: Parameters<RecentreThreads["work"]>[0]): RecentreWork {
+      w.n = points.x.length;
+      w.x.set(points.x);
+      w.y.set(points.y);
+      w.z.set(points.z);
+      w.vr.set(points.vr);
+      if (points.vrErr) w.vrErr.set(points.vrErr);
+      if (points.use) w.use.set(points.use);
+      return w;
     },
+    run(work: RecentreWork, kernel: 0 | 1 | 2, chunks: number) {
+      for (const c of order(chunks)) KERNELS[kernel]!(work, c);
+      self.runs++;
+    },
+    results: (work: RecentreWork) => ({ s: work.s.slice(0, work.n), vAB: work.vAB.slice(0, work.n), cosL: work.cosL.slice(0, work.n), used: work.used.slice(0, work.n) }),
   };
   return self;
 }
@@ -50,59 +46,56 @@ function sameFit(a: Recentred, b: Recentred): void {
   expect(b.h0ThereErr).toBe(a.h0ThereErr);
   expect(b.dipole).toEqual(a.dipole);
   expect(b.chi2).toBe(a.chi2);
+  expect(b.residualRmsThere).toBe(a.residualRmsThere);
   expect(b.nUsed).toBe(a.nUsed);
   expect(b.fitSteps).toBe(a.fitSteps);
+  expect(b.vAB).toEqual(a.vAB);
+  expect(b.used).toEqual(a.used);
 }
 
-describe("the log fit's passes", () => {
-  const n = 5 * PASS_CHUNK_ROWS + 321; // several chunks and a short last one
-  const pts = mockPoints(n, 606);
-  const opts = { h0: 70, sigmaStar: 250, estimator: "log" as const };
+const range = (c: number) => Array.from({ length: c }, (_, k) => k);
 
-  it("give the same fit to the last bit with the chunks summed backwards or interleaved", () => {
-    const backwards = passesInOrder(n, (c) => Array.from({ length: c }, (_, k) => c - 1 - k));
-    const interleaved = passesInOrder(n, (c) => [...Array.from({ length: c }, (_, k) => k).filter((k) => k % 2 === 1), ...Array.from({ length: c }, (_, k) => k).filter((k) => k % 2 === 0)]);
+describe("re-centring's chunk kernels", () => {
+  const n = 5 * CHUNK_ROWS + 321; // several chunks and a short last one
+  const pts = mockPoints(n, 606);
+  const opts = { h0: 70, sigmaStar: 250 };
+
+  it("give the same fit to the last bit with the chunks run backwards or interleaved", () => {
+    const backwards = sharedInOrder(n, (c) => range(c).reverse());
+    const interleaved = sharedInOrder(n, (c) => [...range(c).filter((k) => k % 2 === 1), ...range(c).filter((k) => k % 2 === 0)]);
     for (const index of [3, 777, n - 1]) {
       const one = recentre(pts, { index }, opts);
       expect(one.estimator).toBe("log");
       expect(one.fitSteps).toBeGreaterThan(2);
-      sameFit(one, recentre(pts, { index }, { ...opts, passes: backwards }));
-      sameFit(one, recentre(pts, { index }, { ...opts, passes: interleaved }));
+      sameFit(one, recentre(pts, { index }, { ...opts, threads: backwards }));
+      sameFit(one, recentre(pts, { index }, { ...opts, threads: interleaved }));
     }
-    expect(backwards.passes).toBeGreaterThan(6);
+    // setup, the log fit's passes and the residuals all ran through the workspace
+    expect(backwards.runs).toBeGreaterThan(3 * 5);
   });
 
-  it("reuse shared storage from fit to fit without carrying anything over", () => {
-    const shared = passesInOrder(n, (c) => Array.from({ length: c }, (_, k) => k));
-    // a group-like origin leaves rows out (a smaller fit), then a full fit on the same storage
+  it("reuse one workspace from fit to fit without carrying anything over", () => {
+    const shared = sharedInOrder(n, range);
+    // a group-like origin leaves rows out, then a smaller catalogue, then a full fit on the same storage
     const use = new Uint8Array(n).fill(1);
     for (let i = 0; i < n; i += 3) use[i] = 0;
     const part = { ...pts, use };
-    sameFit(recentre(part, { index: 10 }, opts), recentre(part, { index: 10 }, { ...opts, passes: shared }));
-    sameFit(recentre(pts, { index: 11 }, opts), recentre(pts, { index: 11 }, { ...opts, passes: shared }));
+    sameFit(recentre(part, { index: 10 }, opts), recentre(part, { index: 10 }, { ...opts, threads: shared }));
+    const small = { x: pts.x.slice(0, 999), y: pts.y.slice(0, 999), z: pts.z.slice(0, 999), vr: pts.vr.slice(0, 999), vrErr: pts.vrErr.slice(0, 999) };
+    sameFit(recentre(small, { index: 5 }, opts), recentre(small, { index: 5 }, { ...opts, threads: shared }));
+    sameFit(recentre(pts, { index: 11 }, opts), recentre(pts, { index: 11 }, { ...opts, threads: shared }));
+    // the linear estimator and the major form through the same workspace
+    for (const o of [{ ...opts, estimator: "linear" as const }, { ...opts, form: "major" as const }]) sameFit(recentre(pts, { index: 12 }, o), recentre(pts, { index: 12 }, { ...o, threads: shared }));
   });
 
-  it("sum a chunk's rows only: two halves add up to the whole pass", () => {
-    const R = ONE_THREAD.rows(3);
-    R.ax.set([1, 0, 0]);
-    R.ay.set([0, 1, 0]);
-    R.az.set([0, 0, 1]);
-    R.q0.set([7000, 3500, 700]);
-    R.lnD.set([Math.log(100), Math.log(50), Math.log(10)]);
-    R.f.set([0.2, 0.2, 0.2]);
-    R.member.fill(1);
-    const P = new Float64Array(12);
-    P[6] = 70;
-    P[10] = 250 * 250;
-    const whole = new Float64Array(PARTIAL_SUMS);
-    ONE_THREAD.pass(R, P, whole);
-    // seen from us in a pure Hubble flow the predicted distances are the observed ones: y = 0 for every row
-    expect(whole[15]).toBe(3);
-    expect(whole[10]).toBe(0);
-    expect(whole[14]).toBe(0);
-    // worked by hand from the formulas in logStepSums's comment: from us in a pure Hubble flow
-    // kappa = H D, so the weights are 1 / ((H D f)^2 + sigma*^2) and a00 = sum w D^2
-    const w = (d: number) => 1 / ((70 * d * 0.2) ** 2 + 250 ** 2);
-    expect(whole[0]).toBeCloseTo(100 ** 2 * w(100) + 50 ** 2 * w(50) + 10 ** 2 * w(10), 12);
+  it("write only their own chunk's rows", () => {
+    const w = ONE_THREAD.work(pts, true);
+    w.P[P_H0] = 70;
+    w.P[P_SS2] = 250 * 250;
+    w.P[P_HAS_ERR] = 1;
+    w.P[P_PACK] = 1;
+    w.s.fill(-1);
+    KERNELS[SETUP]!(w, 2);
+    for (let i = 0; i < n; i++) expect(w.s[i] === -1).toBe(i < 2 * CHUNK_ROWS || i >= 3 * CHUNK_ROWS);
   });
 });

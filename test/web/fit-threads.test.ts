@@ -29,7 +29,7 @@ let errors: string[];
 
 interface FitThreads {
   ready: boolean;
-  splitPasses: number;
+  splitRuns: number;
   workerChunks: number;
 }
 
@@ -79,7 +79,7 @@ describe("the page's re-centring fit on two threads", () => {
       return { two, one, threads: v.fitThreads() };
     })()`);
     expect(fits.two).toEqual(fits.one);
-    expect(fits.threads.splitPasses).toBeGreaterThan(4 * 3);
+    expect(fits.threads.splitRuns).toBeGreaterThan(4 * 3);
     expect(fits.threads.workerChunks).toBeGreaterThan(0);
     // and the library in Node on the same catalogue (one thread) gives the same numbers
     const d = viewDataFromTable(tableFromIPC(readFileSync(file)));
