@@ -8,7 +8,9 @@
  *  - re-centre: kernel (the library's recentre in the browser) and kernel + redrawing every panel, both
  *    synchronous; and to the next animation frame (the browser has painted);
  *  - baseline, side by side: going back home (the same redraw without the kernel), so the ratio shows
- *    what re-centring costs beyond drawing.
+ *    what re-centring costs beyond drawing;
+ *  - threads, side by side: each galaxy is re-centred on twice, with the page's fit worker (the default,
+ *    web/fit-threads.ts) and on the page's thread alone, in alternating order.
  */
 import { startViewServer } from "../src/server/index.js";
 import { launchBrowser } from "../test/web/browser.js";
@@ -36,6 +38,12 @@ interface Row {
   recentre: number;
   recentreFrame: number;
   home: number;
+  /** The same on the page's thread alone. */
+  kernel1: number;
+  recentre1: number;
+  recentreFrame1: number;
+  /** Share of the kernels' chunks that the worker ran. */
+  workerShare: number;
 }
 
 const rows: Row[] = [];
@@ -70,6 +78,10 @@ try {
     const total: number[] = [];
     const frame: number[] = [];
     const home: number[] = [];
+    const kernel1: number[] = [];
+    const total1: number[] = [];
+    const frame1: number[] = [];
+    let share: number[] | undefined;
     const rnd = randomLcg(n);
     const parts: Record<string, number[]> = {};
     try {
@@ -89,26 +101,34 @@ try {
           nav.push(t.nav);
           own.push(t.own);
         }
+        type Threads = { workerChunks: number; sharedChunks: number } | null;
+        const c0 = (await page.evaluate(`window.peculiarView.fitThreads()`)) as Threads;
         for (let k = 0; k < (run === 0 ? 2 : RECENTRES); k++) {
           const row = Math.floor(rnd() * n);
-          const r = (await page.evaluate(`(async () => {
-            const v = window.peculiarView;
-            const t0 = performance.now();
-            const t = v.recentreOn(${row});
-            await new Promise((ok) => requestAnimationFrame(() => ok()));
-            const toFrame = performance.now() - t0;
-            const h0 = performance.now();
-            v.goHome();
-            const homeMs = performance.now() - h0;
-            await new Promise((ok) => requestAnimationFrame(() => ok()));
-            return { kernel: t.kernelMs, total: t.totalMs, frame: toFrame, home: homeMs };
-          })()`)) as { kernel: number; total: number; frame: number; home: number };
-          if (run === 0) continue;
-          kernel.push(r.kernel);
-          total.push(r.total);
-          frame.push(r.frame);
-          home.push(r.home);
+          for (const threads of k % 2 ? [true, false] : [false, true]) {
+            const r = (await page.evaluate(`(async () => {
+              const v = window.peculiarView;
+              v.useFitThreads(${threads});
+              const t0 = performance.now();
+              const t = v.recentreOn(${row});
+              await new Promise((ok) => requestAnimationFrame(() => ok()));
+              const toFrame = performance.now() - t0;
+              const h0 = performance.now();
+              v.goHome();
+              const homeMs = performance.now() - h0;
+              v.useFitThreads(true);
+              await new Promise((ok) => requestAnimationFrame(() => ok()));
+              return { kernel: t.kernelMs, total: t.totalMs, frame: toFrame, home: homeMs };
+            })()`)) as { kernel: number; total: number; frame: number; home: number };
+            if (run === 0) continue;
+            (threads ? kernel : kernel1).push(r.kernel);
+            (threads ? total : total1).push(r.total);
+            (threads ? frame : frame1).push(r.frame);
+            home.push(r.home);
+          }
         }
+        const c1 = (await page.evaluate(`window.peculiarView.fitThreads()`)) as Threads;
+        if (run > 0 && c0 && c1) (share ??= []).push((c1.workerChunks - c0.workerChunks) / (c1.sharedChunks - c0.sharedChunks));
         await page.close();
       }
     } finally {
@@ -123,6 +143,10 @@ try {
       recentre: median(total),
       recentreFrame: median(frame),
       home: median(home),
+      kernel1: median(kernel1),
+      recentre1: median(total1),
+      recentreFrame1: median(frame1),
+      workerShare: share ? median(share) : NaN,
     });
   }
 } finally {
@@ -130,11 +154,13 @@ try {
 }
 
 const f = (x: number) => x.toFixed(1).padStart(8);
-console.log(`Chromium ${"headless"}; Node ${process.version}; medians of ${RUNS} page loads and ${RUNS * RECENTRES} re-centrings`);
+console.log(`Chromium ${"headless"}; Node ${process.version}; medians of ${RUNS} page loads and ${RUNS * RECENTRES} re-centrings in each mode`);
 console.log("galaxies | first draw (nav) ms | first draw (page) ms | recentre kernel ms | recentre + redraw ms | to next frame ms | home redraw (baseline) ms | recentre / home");
 for (const r of rows) {
   console.log(`${String(r.n).padStart(8)} | ${f(r.firstDrawNav)} | ${f(r.firstDrawPage)} | ${f(r.kernel)} | ${f(r.recentre)} | ${f(r.recentreFrame)} | ${f(r.home)} | ${(r.recentre / r.home).toFixed(2)}`);
 }
+console.log("side by side, the page's thread alone: galaxies | kernel ms | recentre + redraw ms | to next frame ms | kernel one thread / two | worker's share of the chunks");
+for (const r of rows) console.log(`${String(r.n).padStart(8)} | ${f(r.kernel1)} | ${f(r.recentre1)} | ${f(r.recentreFrame1)} | ${(r.kernel1 / r.kernel).toFixed(2)} | ${r.workerShare.toFixed(2)}`);
 console.log("Node kernel alone (recentre, medians of 6): galaxies | estimator auto ms | estimator linear ms | ratio");
 for (const k of kernelRows) console.log(`${String(k.n).padStart(8)} | ${f(k.auto)} | ${f(k.linear)} | ${(k.auto / k.linear).toFixed(1)}`);
 const big = rows.find((r) => r.n === 100_000);

@@ -25,8 +25,9 @@ function sameRows(a: Float64Array, b: Float64Array): boolean {
 }
 
 export class TwoThreads implements RecentreThreads {
-  /** Kernel runs shared with the worker so far, and the chunks it ran (for the view's tests and benchmark). */
+  /** Kernel runs shared with the worker so far, their chunks, and those the worker ran (for the view's tests and benchmark). */
   splitRuns = 0;
+  sharedChunks = 0;
   workerChunks = 0;
   private broken = false;
   /** The shared inputs hold adopted points: other points must not overwrite them. */
@@ -123,6 +124,7 @@ export class TwoThreads implements RecentreThreads {
     }
     Atomics.store(ctl, CTL_NEXT, CLOSED);
     this.splitRuns++;
+    this.sharedChunks += chunks;
     this.workerChunks += chunks - mine;
   }
 

@@ -319,7 +319,7 @@ async function start(): Promise<void> {
     state,
     timing,
     /** The fit worker: started and compiled, kernel runs shared with it and chunks it ran; null without one. */
-    fitThreads: () => (fitThreads ? { ready: fitThreads.ready, splitRuns: fitThreads.splitRuns, workerChunks: fitThreads.workerChunks } : null),
+    fitThreads: () => (fitThreads ? { ready: fitThreads.ready, splitRuns: fitThreads.splitRuns, sharedChunks: fitThreads.sharedChunks, workerChunks: fitThreads.workerChunks } : null),
     /** Re-centres on one thread (false) or shares the work with the worker where it can (true): for the benchmark's side-by-side runs. */
     useFitThreads: (on: boolean) => {
       inputs.threads = on && fitThreads ? fitThreads : undefined;
