@@ -26,7 +26,6 @@
  * starting point. `used` marks the rows offered to the fit; nUsed counts those that entered it.
  * Browser-safe.
  */
-import { quickselect } from "d3-array";
 import { HubbleSums, invertSymmetric } from "./hubble.js";
 import {
   chunksOf,
@@ -211,7 +210,7 @@ export function recentre(points: RecentrePoints, origin: RecentreOrigin, opts: R
   let dof = sums.rows - linearFit.nParams;
   let nUsed = sums.rows;
   let fitSteps = 0;
-  const estimator = mayLog ? chooseEstimator(wanted, points.vrErr, w.used, sigmaStar) : "linear";
+  const estimator = mayLog ? chooseEstimator(wanted, points.vrErr, w.used, n, sigmaStar) : "linear";
   if (estimator === "log" && linearFit.ok) {
     const start = opts.logStart ?? { h, d };
     const g = logDistanceFit(w, threads, chunks, { h0: opts.h0, hStart: start.h, dStart: start.d, fitH0, fitDipole });
@@ -491,15 +490,20 @@ class Anderson {
   }
 }
 
-function chooseEstimator(e: "auto" | "log" | "linear", vrErr: Float64Array | undefined, used: Uint8Array, sigmaStar: number): "log" | "linear" {
+function chooseEstimator(e: "auto" | "log" | "linear", vrErr: Float64Array | undefined, used: Uint8Array, n: number, sigmaStar: number): "log" | "linear" {
   if (e !== "auto") return e;
   if (!vrErr) return "linear";
+  // The upper median of the used rows' vrErr (v[m >> 1] of the m sorted values) exceeds sigmaStar exactly
+  // when at most m >> 1 of them are <= sigmaStar: a count, no sort or selection.
   let m = 0;
-  for (let i = 0; i < used.length; i++) if (used[i] && Number.isFinite(vrErr[i]!)) m++;
+  let atMost = 0;
+  for (let i = 0; i < n; i++) {
+    if (!used[i]) continue;
+    const v = vrErr[i]!;
+    if (!Number.isFinite(v)) continue;
+    m++;
+    if (v <= sigmaStar) atMost++;
+  }
   if (m === 0) return "linear";
-  const v = new Float64Array(m);
-  for (let i = 0, k = 0; i < used.length; i++) if (used[i] && Number.isFinite(vrErr[i]!)) v[k++] = vrErr[i]!;
-  // the upper median, v[m >> 1] of the sorted values, in linear time
-  quickselect(v, m >> 1);
-  return v[m >> 1]! > sigmaStar ? "log" : "linear";
+  return atMost <= m >> 1 ? "log" : "linear";
 }

@@ -114,6 +114,23 @@ describe("recentre", () => {
     expect(near.nUsed).toBe(inside);
   });
 
+  it("takes the log fit exactly when the upper median of the used rows' vrErr exceeds sigma*", () => {
+    // the rule as stated in RecentreOptions.estimator: sort, take v[m >> 1], compare with sigmaStar
+    for (const m of [10, 11]) {
+      for (let low = 0; low <= m; low++) {
+        const ra = Float64Array.from({ length: m }, (_, i) => (i * 137.5) % 360);
+        const dec = Float64Array.from({ length: m }, (_, i) => -60 + (i * 47) % 120);
+        const d = Float64Array.from({ length: m }, (_, i) => 10 + 9 * i);
+        const vr = Float64Array.from(d, (x) => 70 * x);
+        const vrErr = Float64Array.from({ length: m }, (_, i) => (i < low ? 200 : i % 2 ? 300 : 250.5));
+        const sorted = [...vrErr].sort((a, b) => a - b);
+        const expected = sorted[m >> 1]! > 250 ? "log" : "linear";
+        const r = recentre(pointsFrom(ra, dec, d, vr, vrErr), { x: 0, y: 0, z: 0, vr: 0 }, { h0: 70, sigmaStar: 250 });
+        expect(r.estimator).toBe(expected);
+      }
+    }
+  });
+
   it("returns NaN, not an exception, for empty input or a bad origin index", () => {
     const e = new Float64Array(0);
     const r = recentre({ x: e, y: e, z: e, vr: e }, { x: 0, y: 0, z: 0, vr: 0 }, { h0: H0 });
