@@ -302,7 +302,9 @@ function zoneStarts(grid: ZoneGrid, dec: Float64Array, n: number): Int32Array {
  * Builds the index of a block on `grid`. The rows are first moved into zone order (a stable counting
  * pass that writes to one place per zone, where a counting sort into ~1e5 cells writes at random),
  * then each zone's run, a few thousand entries that stay in cache, is counting-sorted by RA cell
- * straight into the index, its unit vectors computed there.
+ * straight into the index, its unit vectors computed there. The zone-ordered rows and positions are
+ * kept in the index's own arrays (rows in rowOf, positions in the upper two thirds of xyz, which a
+ * zone's unit vectors reach only after the zone's positions were read): no temporaries of the block's size.
  */
 export function buildZoneIndex(grid: ZoneGrid, blk: PositionBlock): ZoneIndex {
   const n = blk.length;
@@ -310,14 +312,23 @@ export function buildZoneIndex(grid: ZoneGrid, blk: PositionBlock): ZoneIndex {
   const nCells = zoneBase[nZones]!;
   const invH = 1 / zoneHeightRad;
   const zoneStart = zoneStarts(grid, blk.decRad, n);
-  // zone order: row and position moved together
-  const zRow = new Int32Array(n);
-  const zRa = new Float64Array(n);
-  const zDec = new Float64Array(n);
-  zoneScatter(zoneStart, nZones, invH, blk, zRow, zRa, zDec);
-  // cell order inside each zone, written into the index
   const rowOf = new Int32Array(n);
   const xyz = new Float64Array(3 * n);
+  // zone order: entry t's row in rowOf[t], its RA and Dec in xyz[n + 2t], xyz[n + 2t + 1]
+  {
+    const fill = zoneStart.slice(0, nZones);
+    const br = blk.row;
+    const bra = blk.raRad;
+    const bdec = blk.decRad;
+    for (let k = 0; k < n; k++) {
+      const d = bdec[k]!;
+      const t = fill[zoneIndexOf(d, invH, nZones)]!++;
+      rowOf[t] = br[k]!;
+      xyz[n + 2 * t] = bra[k]!;
+      xyz[n + 2 * t + 1] = d;
+    }
+  }
+  // cell order inside each zone: the zone's run copied out (it stays in cache), then placed by cell
   const cellStart = new Int32Array(nCells + 1);
   let maxCells = 0;
   let maxRun = 0;
@@ -326,28 +337,35 @@ export function buildZoneIndex(grid: ZoneGrid, blk: PositionBlock): ZoneIndex {
     maxRun = Math.max(maxRun, zoneStart[z + 1]! - zoneStart[z]!);
   }
   const count = new Int32Array(maxCells + 1);
-  const cellOfRun = new Int32Array(maxRun); // RA cell of each entry of the zone's run
+  const runCell = new Int32Array(maxRun);
+  const runRow = new Int32Array(maxRun);
+  const runPos = new Float64Array(2 * maxRun);
   for (let z = 0; z < nZones; z++) {
     const lo = zoneStart[z]!;
-    const hi = zoneStart[z + 1]!;
+    const m = zoneStart[z + 1]! - lo;
     const base = zoneBase[z]!;
-    const m = nRa[z]!;
+    const nc = nRa[z]!;
     const sc = raScale[z]!;
-    count.fill(0, 0, m + 1);
-    for (let k = lo; k < hi; k++) {
-      let c = Math.floor(zRa[k]! * sc);
+    count.fill(0, 0, nc + 1);
+    for (let j = 0; j < m; j++) {
+      const r = xyz[n + 2 * (lo + j)]!;
+      runRow[j] = rowOf[lo + j]!;
+      runPos[2 * j] = r;
+      runPos[2 * j + 1] = xyz[n + 2 * (lo + j) + 1]!;
+      let c = Math.floor(r * sc);
       if (c < 0) c = 0;
-      else if (c >= m) c = m - 1;
-      cellOfRun[k - lo] = c;
+      else if (c >= nc) c = nc - 1;
+      runCell[j] = c;
       count[c + 1]!++;
     }
-    for (let c = 0; c < m; c++) count[c + 1]! += count[c]!;
-    for (let c = 0; c < m; c++) cellStart[base + c] = lo + count[c]!;
-    for (let k = lo; k < hi; k++) {
-      const t = lo + count[cellOfRun[k - lo]!]!++;
-      rowOf[t] = zRow[k]!;
-      const r = zRa[k]!;
-      const d = zDec[k]!;
+    for (let c = 0; c < nc; c++) count[c + 1]! += count[c]!;
+    for (let c = 0; c < nc; c++) cellStart[base + c] = lo + count[c]!;
+    // writes reach xyz[3 (lo + m) - 1] < n + 2 (lo + m): the later zones' positions are untouched
+    for (let j = 0; j < m; j++) {
+      const t = lo + count[runCell[j]!]!++;
+      rowOf[t] = runRow[j]!;
+      const r = runPos[2 * j]!;
+      const d = runPos[2 * j + 1]!;
       const cd = Math.cos(d);
       xyz[3 * t] = cd * Math.cos(r);
       xyz[3 * t + 1] = cd * Math.sin(r);
@@ -579,21 +597,25 @@ export function queryZoneIndex(index: ZoneIndex, q: SortedQueries, radiusRad: nu
 /**
  * Sorts pairs by query row, then separation, then indexed row: a radix sort on the query row (one
  * counting pass below 2^14 rows; above, a pass on the high bits into a few dozen buckets, then each
- * bucket, small enough to stay in cache, counting-sorted on the low 14 bits), then an insertion sort
- * inside each row's short run. Returns a new PairList.
+ * bucket, small enough to stay in cache, counting-sorted on the low 14 bits, back into p's arrays),
+ * then an insertion sort inside each row's short run. Returns the sorted list, which may be p itself:
+ * p's arrays are reused, so p must not be read afterwards.
  */
 export function sortPairs(p: PairList, nQueryRows: number): PairList {
   const n = p.length;
   let bits = 1;
   while (bits < 31 && 1 << bits < nQueryRows) bits++;
-  const a = new Int32Array(n);
-  const b = new Int32Array(n);
-  const s = new Float64Array(n);
-  if (bits <= LOW_BITS) pairScatter(0, (1 << bits) - 1, p.a, p.b, p.sepRad, a, b, s, 0, n, new Int32Array((1 << bits) + 1));
+  const ta = new Int32Array(n);
+  const tb = new Int32Array(n);
+  const ts = new Float64Array(n);
+  let a: Int32Array = ta;
+  let b: Int32Array = tb;
+  let s: Float64Array = ts;
+  if (bits <= LOW_BITS) pairScatter(0, (1 << bits) - 1, p.a, p.b, p.sepRad, ta, tb, ts, 0, n, new Int32Array((1 << bits) + 1));
   else {
-    const ta = new Int32Array(n);
-    const tb = new Int32Array(n);
-    const ts = new Float64Array(n);
+    a = p.a;
+    b = p.b;
+    s = p.sepRad;
     const nHi = 1 << (bits - LOW_BITS);
     const hiStart = new Int32Array(nHi + 1);
     pairScatter(LOW_BITS, nHi - 1, p.a, p.b, p.sepRad, ta, tb, ts, 0, n, hiStart);
