@@ -31,7 +31,7 @@ import { flagRows, invalidReasons } from "./validity.js";
 export interface Catalogue {
   table: Table;
   roles: RoleMap;
-  /** ICRS positions in degrees; NaN where the row's position is unusable. */
+  /** ICRS positions in degrees; NaN where the row's position is unusable. Read only (they may be the table's own column). */
   raDeg: Float64Array;
   decDeg: Float64Array;
   /** The unit each role was read in, for the summary ("h", "deg", "h:m:s", "km/s", ...). */
@@ -136,10 +136,12 @@ function readAngles(table: Table, column: string, kind: AngleKind, unit: AngleUn
 /**
  * anglesFromNumbers for degrees, with the rows in range taken as they are in one typed loop (no
  * result object per row); a row out of range or not a number gets angleFromNumber's value and reason.
- * Without a bad row, `reasons` is empty (and `invalid` 0).
+ * Without a bad row, `reasons` is empty (and `invalid` 0), and a Float64Array comes back as it is
+ * (the degrees are the column's own values: read only).
  */
 function degreesChecked(values: ArrayLike<number>, kind: AngleKind): AngleColumn {
   const n = values.length;
+  if (values instanceof Float64Array && allInRange(values, kind)) return { deg: values, reasons: [], invalid: 0 };
   const deg = new Float64Array(n);
   let reasons: (string | undefined)[] | undefined; // made at the first bad row
   let invalid = 0;
@@ -159,6 +161,16 @@ function degreesChecked(values: ArrayLike<number>, kind: AngleKind): AngleColumn
     }
   }
   return { deg, reasons: reasons ?? [], invalid };
+}
+
+/** True when every value is a usable angle in degrees ([0, 360) for RA, [-90, 90] for Dec). */
+function allInRange(values: Float64Array, kind: AngleKind): boolean {
+  const lo = kind === "ra" ? 0 : -90;
+  const hi = kind === "ra" ? 360 : 90;
+  if (kind === "ra") {
+    for (let i = 0; i < values.length; i++) if (!(values[i]! >= lo && values[i]! < hi)) return false;
+  } else for (let i = 0; i < values.length; i++) if (!(values[i]! >= lo && values[i]! <= hi)) return false;
+  return true;
 }
 
 /** The text of a cell for a reason: strings quoted, numbers as written. */

@@ -7,7 +7,7 @@ import { Utf8, type Data, type Table } from "apache-arrow";
 import { PeculiarError } from "../../errors.js";
 import { kindOf } from "../columns.js";
 import { isBlank, isNullToken, NULL_TOKENS, UNITS_MARKER } from "./csv.js";
-import { writeShortest } from "./decimal.js";
+import { digitRun, writeShortest } from "./decimal.js";
 import { formatFloat } from "./table.js";
 
 export interface CsvWriteOptions {
@@ -38,6 +38,7 @@ const W_BIG = 3;
 const W_BOOL = 4;
 const W_UTF8 = 5;
 const W_OTHER = 6;
+const W_I32 = 7;
 
 function writerKind(data: Data): number {
   switch (kindOf(data.type)) {
@@ -48,9 +49,10 @@ function writerKind(data: Data): number {
     case "int64":
     case "uint64":
       return W_BIG;
+    case "int32":
+      return data.values instanceof Int32Array ? W_I32 : W_INT;
     case "int8":
     case "int16":
-    case "int32":
     case "uint8":
     case "uint16":
     case "uint32":
@@ -81,13 +83,8 @@ function writeInt(b: Uint8Array, p: number, v: number): number {
   }
   let digits = 1;
   while (digits < 10 && v >= POW10[digits]!) digits++;
-  p += digits;
-  for (let q = p; q > p - digits; ) {
-    const t = (v / 10) | 0;
-    b[--q] = 48 + v - t * 10;
-    v = t;
-  }
-  return p;
+  digitRun(v, digits, b, p);
+  return p + digits;
 }
 
 /** A growable byte buffer handed out in chunks. */
@@ -177,11 +174,22 @@ class RowWriter {
   ) {
     // Bytes a row of numbers and booleans can take; text cells make room for themselves.
     this.fixed = 1 + kinds.reduce((sum, k) => sum + (k === W_UTF8 || k === W_OTHER ? 1 : 32), 0);
+    // The values once more, one array per element type (a dummy where the column is of another):
+    // each read in the row loop then sees one type only.
+    const f64 = new Float64Array(0);
+    const i32 = new Int32Array(0);
+    const u8 = new Uint8Array(0);
+    this.f64 = kinds.map((k, j) => (k === W_F64 ? (values[j] as Float64Array) : f64));
+    this.i32 = kinds.map((k, j) => (k === W_I32 ? (values[j] as Int32Array) : i32));
+    this.bytes = kinds.map((k, j) => (k === W_BOOL || k === W_UTF8 ? (values[j] as unknown as Uint8Array) : u8));
   }
+  readonly f64: Float64Array[];
+  readonly i32: Int32Array[];
+  readonly bytes: Uint8Array[];
 
   /** Writes rows from..to-1 and returns the next row to write (to, or earlier when a chunk is full). */
   write(from: number, to: number): number {
-    const { sink, delim, delimText, nullText, kinds, values, valid, offsets, valueOffsets, other, row0, fixed } = this;
+    const { sink, delim, delimText, nullText, kinds, values, valid, offsets, valueOffsets, other, row0, fixed, f64, i32, bytes } = this;
     const width = kinds.length;
     let buf = sink.buf;
     let pos = sink.pos;
@@ -209,10 +217,9 @@ class RowWriter {
             continue;
           }
         }
-        const v = values[j]!;
         const kind = kinds[j]!;
         if (kind === W_F64) {
-          const x = v[i]!;
+          const x = f64[j]![i]!;
           if (x === x && x !== 0 && x !== Infinity && x !== -Infinity) {
             const p = writeShortest(x, buf, pos);
             if (p >= 0) {
@@ -221,17 +228,38 @@ class RowWriter {
             }
           }
           pos = writeAscii(buf, pos, formatFloat(x));
-        } else if (kind === W_INT) pos = writeInt(buf, pos, v[i]!);
+        } else if (kind === W_I32) pos = writeInt(buf, pos, i32[j]![i]!);
         else if (kind === W_BOOL) {
           const bit = offsets[j]! + i;
-          pos = writeAscii(buf, pos, ((v as unknown as Uint8Array)[bit >> 3]! >> (bit & 7)) & 1 ? "true" : "false");
-        } else if (kind === W_F32) pos = writeAscii(buf, pos, formatFloat(v[i]!, true));
-        else if (kind === W_BIG) pos = writeAscii(buf, pos, String((v as unknown as BigInt64Array)[i]));
+          if ((bytes[j]![bit >> 3]! >> (bit & 7)) & 1) {
+            buf[pos++] = 116; // true
+            buf[pos++] = 114;
+            buf[pos++] = 117;
+            buf[pos++] = 101;
+          } else {
+            buf[pos++] = 102; // false
+            buf[pos++] = 97;
+            buf[pos++] = 108;
+            buf[pos++] = 115;
+            buf[pos++] = 101;
+          }
+        } else if (kind === W_INT) pos = writeInt(buf, pos, values[j]![i]!);
+        else if (kind === W_F32) pos = writeAscii(buf, pos, formatFloat(values[j]![i]!, true));
+        else if (kind === W_BIG) pos = writeAscii(buf, pos, String((values[j] as unknown as BigInt64Array)[i]));
         else {
           sink.pos = pos;
+          const offs = valueOffsets[j]!;
+          if (kind === W_UTF8 && offs[i] === offs[i + 1]) {
+            // an empty string is written `""` (quoted, so that it does not read as a null)
+            sink.ensure(fixed + 2);
+            buf = sink.buf;
+            pos = sink.pos;
+            buf[pos++] = 34;
+            buf[pos++] = 34;
+            continue;
+          }
           if (kind === W_UTF8) {
-            const offs = valueOffsets[j]!;
-            sink.cell(v as unknown as Uint8Array, offs[i]!, offs[i + 1]!, delim, delimText);
+            sink.cell(bytes[j]!, offs[i]!, offs[i + 1]!, delim, delimText);
           } else sink.text(quote(String(other[j]!.get(row0 + i) ?? ""), delimText, true));
           // the rest of the row still needs its fixed room
           sink.ensure(fixed);

@@ -368,45 +368,59 @@ export function writeShortest(x: number, out: Uint8Array, pos: number): number {
   return -1;
 }
 
+/** "00" .. "99" as character codes, two per entry. */
+const DIGIT_PAIRS = new Uint8Array(200);
+for (let d = 0; d < 100; d++) {
+  DIGIT_PAIRS[2 * d] = 48 + ((d / 10) | 0);
+  DIGIT_PAIRS[2 * d + 1] = 48 + (d % 10);
+}
+
+/** Writes the `count` decimal digits of v (an integer below 10^count, zero padded) at out[at ..]. */
+export function digitRun(v: number, count: number, out: Uint8Array, at: number): void {
+  let p = at + count;
+  let c = count;
+  for (; c >= 2; c -= 2) {
+    const q = (v / 100) | 0;
+    const r = 2 * (v - q * 100);
+    out[--p] = DIGIT_PAIRS[r + 1]!;
+    out[--p] = DIGIT_PAIRS[r]!;
+    v = q;
+  }
+  if (c === 1) out[--p] = 48 + v;
+}
+
 /**
- * Writes digit t (0-based from the left) of the k-digit decimal a * 10^(k-9) + bk at out[at + t]
- * (plus one past the point at `dot`) for t < m, right to left.
+ * Writes the k digits of the decimal a * 10^(k-9) + bk at out[at .. at + k) (a has 9 digits, bk
+ * k - 9). Only the first m are kept by the caller; the others are zeros or overwritten later (the
+ * caller has the room).
  */
-function digits(a: number, bk: number, k: number, m: number, out: Uint8Array, at: number, dot: number): void {
-  let t = k - 1;
-  let v = bk;
-  for (; t >= 9; t--) {
-    const q = (v / 10) | 0;
-    if (t < m) out[at + t + (t >= dot ? 1 : 0)] = 48 + v - q * 10;
-    v = q;
-  }
-  v = a;
-  for (; t >= 0; t--) {
-    const q = (v / 10) | 0;
-    if (t < m) out[at + t + (t >= dot ? 1 : 0)] = 48 + v - q * 10;
-    v = q;
-  }
+function digits(a: number, bk: number, k: number, out: Uint8Array, at: number): void {
+  digitRun(a, 9, out, at);
+  digitRun(bk, k - 9, out, at + 9);
 }
 
 /** ECMA-262 Number::toString layout of the first m of k digits (see digits) with the point after n digits. */
 function layout(neg: boolean, a: number, bk: number, k: number, m: number, n: number, out: Uint8Array, pos: number): number {
   if (neg) out[pos++] = 45;
   if (m <= n && n <= 21) {
-    digits(a, bk, k, m, out, pos, 99);
+    digits(a, bk, k, out, pos);
     pos += m;
     for (let t = m; t < n; t++) out[pos++] = 48;
   } else if (0 < n && n <= 21) {
-    digits(a, bk, k, m, out, pos, n);
+    // the digits one place to the right, then the first n moved back in front of the point
+    digits(a, bk, k, out, pos + 1);
+    for (let t = 0; t < n; t++) out[pos + t] = out[pos + t + 1]!;
     out[pos + n] = 46;
     pos += m + 1;
   } else if (-6 < n && n <= 0) {
     out[pos++] = 48;
     out[pos++] = 46;
     for (let t = n; t < 0; t++) out[pos++] = 48;
-    digits(a, bk, k, m, out, pos, 99);
+    digits(a, bk, k, out, pos);
     pos += m;
   } else {
-    digits(a, bk, k, m, out, pos, 1);
+    digits(a, bk, k, out, pos + 1);
+    out[pos] = out[pos + 1]!;
     if (m > 1) {
       out[pos + 1] = 46;
       pos += m + 1;
