@@ -62,6 +62,26 @@ describe("the page's re-centring fit on two threads", () => {
     expect((await view<FitThreads>("v.fitThreads()")).ready).toBe(true);
   });
 
+  it("gives a group's fit (its members left out) and the home view to the last bit on two threads", async () => {
+    const fits = await view<{ two: number[][]; one: number[][] }>(`(() => {
+      const fit = () => [v.state.origin.h0, v.state.origin.h0Err, ...v.state.origin.dipole, v.state.origin.nUsed];
+      const ids = [...new Set(Array.from(v.state.data.groupId))].filter((g) => g > 0).slice(0, 3);
+      const two = [], one = [];
+      for (const on of [true, false]) {
+        v.useFitThreads(on);
+        for (const id of ids) {
+          v.recentreOnGroup(id);
+          (on ? two : one).push(fit());
+        }
+      }
+      v.useFitThreads(true);
+      v.goHome();
+      return { two, one };
+    })()`);
+    expect(fits.two.length).toBeGreaterThan(0);
+    expect(fits.two).toEqual(fits.one);
+  });
+
   it("gives the one-thread fit to the last bit, with chunks summed by the worker", async () => {
     const fits = await view<{ two: number[][]; one: number[][]; threads: FitThreads }>(`(() => {
       const fit = () => [v.state.origin.h0, v.state.origin.h0Err, ...v.state.origin.dipole, v.state.origin.nUsed];
