@@ -62,7 +62,7 @@ describe("the page's re-centring fit on two threads", () => {
     expect((await view<FitThreads>("v.fitThreads()")).ready).toBe(true);
   });
 
-  it("gives a group's fit (its members left out) and the home view to the last bit on two threads", async () => {
+  it("gives a group's fit (its members left out) to the last bit on two threads", async () => {
     const fits = await view<{ two: number[][]; one: number[][] }>(`(() => {
       const fit = () => [v.state.origin.h0, v.state.origin.h0Err, ...v.state.origin.dipole, v.state.origin.nUsed];
       const ids = [...new Set(Array.from(v.state.data.groupId))].filter((g) => g > 0).slice(0, 3);
