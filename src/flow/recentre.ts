@@ -24,6 +24,8 @@
  * The fit (minor form, estimator "auto"): in ln D by Gauss-Newton (logDistanceFit) when distance errors
  * dominate, the linear least squares at the observed positions otherwise; the linear fit always gives the
  * starting point. `used` marks the rows offered to the fit; nUsed counts those that entered it.
+ * The row loops are chunk kernels (recentre-kernels.ts) whose sums add in chunk order; opts.threads says
+ * where they run (this thread by default; the web view shares them with a worker), with the same bits.
  * Browser-safe.
  */
 import { HubbleSums, invertSymmetric } from "./hubble.js";
