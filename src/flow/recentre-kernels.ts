@@ -124,6 +124,15 @@ function norm3(x: number, y: number, z: number): number {
   return Math.sqrt(x * x + y * y + z * z);
 }
 
+/** Writes chunk c's sums of the normal equations into its PARTIAL_SUMS slots. */
+function putSums(
+  partials: Float64Array,
+  c: number,
+  ...v: [number, number, number, number, number, number, number, number, number, number, number, number, number, number, number, number]
+): void {
+  partials.set(v, c * PARTIAL_SUMS);
+}
+
 /**
  * SETUP for one chunk: each row's distance s and radial velocity v_AB seen from the origin (minor form
  * v_AB = (v_B - v_A) . e_AB; major form (V_B - V_A cos theta) / cos lambda, rows with |cos lambda| <
@@ -232,23 +241,7 @@ export function setupChunk(w: RecentreWork, c: number): void {
       member[i] = 1;
     }
   }
-  const at = c * PARTIAL_SUMS;
-  partials[at] = a00;
-  partials[at + 1] = a01;
-  partials[at + 2] = a02;
-  partials[at + 3] = a03;
-  partials[at + 4] = a11;
-  partials[at + 5] = a12;
-  partials[at + 6] = a13;
-  partials[at + 7] = a22;
-  partials[at + 8] = a23;
-  partials[at + 9] = a33;
-  partials[at + 10] = b0;
-  partials[at + 11] = b1;
-  partials[at + 12] = b2;
-  partials[at + 13] = b3;
-  partials[at + 14] = wyy;
-  partials[at + 15] = rows;
+  putSums(partials, c, a00, a01, a02, a03, a11, a12, a13, a22, a23, a33, b0, b1, b2, b3, wyy, rows);
 }
 
 /**
@@ -336,23 +329,7 @@ export function logPassChunk(w: RecentreWork, c: number): void {
     rows++;
     inFit[k] = 1;
   }
-  const at = c * PARTIAL_SUMS;
-  partials[at] = a00;
-  partials[at + 1] = a01;
-  partials[at + 2] = a02;
-  partials[at + 3] = a03;
-  partials[at + 4] = a11;
-  partials[at + 5] = a12;
-  partials[at + 6] = a13;
-  partials[at + 7] = a22;
-  partials[at + 8] = a23;
-  partials[at + 9] = a33;
-  partials[at + 10] = b0;
-  partials[at + 11] = b1;
-  partials[at + 12] = b2;
-  partials[at + 13] = b3;
-  partials[at + 14] = wyy;
-  partials[at + 15] = rows;
+  putSums(partials, c, a00, a01, a02, a03, a11, a12, a13, a22, a23, a33, b0, b1, b2, b3, wyy, rows);
 }
 
 /** RESIDUAL for one chunk: sum of (v_AB - H s - d . e)^2 and the count over the used rows, in slots 0 and 15. */
