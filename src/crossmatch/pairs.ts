@@ -5,7 +5,7 @@
  * in, a sorted PairList out, no shared state, so bands can run one after another here or on worker
  * threads (threads.ts) and their results merge into the same pair list.
  */
-import { bandBlock, blockOfPoints, buildZoneIndex, sortQueries, chooseCellRad, makeZoneGrid, occupiedAreaSr, PairBuffer, queryZoneIndex, sortPairs, DEFAULT_ROWS_PER_CELL, type PairList, type PositionBlock, type SkyPoints } from "./zones.js";
+import { bandBlock, blockOfPoints, positionBlock, buildZoneIndex, sortQueries, chooseCellRad, makeZoneGrid, occupiedAreaSr, PairBuffer, queryZoneIndex, sortPairs, DEFAULT_ROWS_PER_CELL, type PairList, type PositionBlock, type SkyPoints } from "./zones.js";
 import { bandWindow, partitionEdges, skyPartitions } from "./partitions.js";
 
 export interface PairsOptions {
@@ -38,6 +38,7 @@ export function pairsWithin(a: SkyPoints, b: SkyPoints, radiusRad: number, opts:
 /** pairsWithin on position blocks; nA is the number of rows of the query catalogue. */
 export function blockPairs(a: PositionBlock, b: PositionBlock, nA: number, radiusRad: number, opts: PairsOptions = {}): PairList {
   checkRadius(radiusRad);
+  if (a.length + b.length > WARM_ABOVE_ROWS) warmKernels();
   const parts = Math.max(1, Math.floor(opts.partitions ?? 1));
   const rowsPerCell = opts.rowsPerCell ?? DEFAULT_ROWS_PER_CELL;
   if (parts === 1) {
@@ -95,6 +96,7 @@ export function degreeBandJobs(raA: Float64Array, decA: Float64Array, raB: Float
 
 /** Runs one DegreeBandJob: the band's pairs, sorted as bandPairs sorts them. */
 export function degreeBandPairs(job: DegreeBandJob): PairList {
+  if (job.raA.length + job.raB.length > WARM_ABOVE_ROWS) warmKernels();
   const w = bandWindow(job.edges, job.band, job.radiusRad);
   const query = bandBlock(job.raA, job.decA, w.qLo, w.qHi, w.qHiInclusive);
   const index = bandBlock(job.raB, job.decB, w.bLo, w.bHi, true);
@@ -113,19 +115,70 @@ export function matchBlock(query: PositionBlock, index: PositionBlock, radiusRad
 }
 
 /**
- * Pair lists of disjoint sets of query rows, each sorted by query row, merged into one sorted list:
- * a counting pass over the query rows places each row's run (runs keep their own order).
+ * Pair lists of disjoint sets of query rows, each sorted by query row, merged into one sorted list.
+ * A few lists (the bands of a match) merge run by run, always taking the list whose next query row
+ * is least: every array is read and written in order. Many lists take a counting pass over the query
+ * rows that places each row's run (runs keep their own order).
  */
 export function mergePairs(lists: PairList[], nQueryRows: number): PairList {
   if (lists.length === 1) return lists[0]!;
   let n = 0;
   for (const l of lists) n += l.length;
-  const start = new Int32Array(nQueryRows + 1);
-  for (const l of lists) for (let k = 0; k < l.length; k++) start[l.a[k]! + 1]!++;
-  for (let i = 0; i < nQueryRows; i++) start[i + 1]! += start[i]!;
   const a = new Int32Array(n);
   const b = new Int32Array(n);
   const s = new Float64Array(n);
+  if (lists.length <= RUN_MERGE_LISTS) mergeRuns(lists, a, b, s);
+  else placeRuns(lists, nQueryRows, a, b, s);
+  return { a, b, sepRad: s, length: n };
+}
+
+/** Lists up to which mergePairs merges run by run (each step looks at every list's head). */
+const RUN_MERGE_LISTS = 8;
+
+function mergeRuns(lists: PairList[], a: Int32Array, b: Int32Array, s: Float64Array): void {
+  const at = new Int32Array(lists.length);
+  let o = 0;
+  for (;;) {
+    let best = -1;
+    let bestRow = 0;
+    for (let q = 0; q < lists.length; q++) {
+      const l = lists[q]!;
+      const k = at[q]!;
+      if (k < l.length && (best < 0 || l.a[k]! < bestRow)) {
+        best = q;
+        bestRow = l.a[k]!;
+      }
+    }
+    if (best < 0) return;
+    const l = lists[best]!;
+    const la = l.a;
+    let k = at[best]!;
+    // the whole run of this row, and of the following rows while they stay below every other list's head
+    let limit = 2147483647;
+    for (let q = 0; q < lists.length; q++) {
+      if (q === best) continue;
+      const m = lists[q]!;
+      const kq = at[q]!;
+      if (kq < m.length && m.a[kq]! < limit) limit = m.a[kq]!;
+    }
+    const end = l.length;
+    const lb = l.b;
+    const ls = l.sepRad;
+    while (k < end && (la[k]! === bestRow || la[k]! < limit)) {
+      a[o] = la[k]!;
+      b[o] = lb[k]!;
+      s[o] = ls[k]!;
+      o++;
+      k++;
+    }
+    at[best] = k;
+  }
+}
+
+function placeRuns(lists: PairList[], nQueryRows: number, a: Int32Array, b: Int32Array, s: Float64Array): void {
+  const start = new Int32Array(nQueryRows + 1);
+  for (const l of lists) for (let k = 0; k < l.length; k++) start[l.a[k]! + 1]!++;
+  for (let i = 0; i < nQueryRows; i++) start[i + 1]! += start[i]!;
   for (const l of lists) {
     let t = -1;
     let prev = -1;
@@ -141,7 +194,6 @@ export function mergePairs(lists: PairList[], nQueryRows: number): PairList {
       t++;
     }
   }
-  return { a, b, sepRad: s, length: n };
 }
 
 /** For each row of a, the number of rows of b within radiusRad (NaN rows: 0). */
@@ -153,4 +205,42 @@ export function countWithin(a: SkyPoints, b: SkyPoints, radiusRad: number, rowsP
   const grid = makeZoneGrid(chooseCellRad(radiusRad / 2, bb.length, occupiedAreaSr(bb), rowsPerCell));
   queryZoneIndex(buildZoneIndex(grid, bb), sortQueries(grid, blockOfPoints(a)), radiusRad, counts);
   return counts;
+}
+
+/** Rows (both sides) above which the first pair search of a thread warms the kernels first (warmKernels). */
+const WARM_ABOVE_ROWS = 200000;
+let warmed = false;
+
+/**
+ * Runs the pair kernels, once per thread, on small seeded inputs of odd sizes (a few milliseconds).
+ * V8 compiles a hot loop while it runs on the first large input, and when the loop's tail has never
+ * run it can fall into repeated de-optimisation there; a few small runs first avoid that. The query
+ * side has more than 2^14 rows (most without a position) so the pair sort's two-pass path runs too.
+ */
+export function warmKernels(): void {
+  if (warmed) return;
+  warmed = true;
+  let seed = 20261201;
+  const u = (): number => (seed = (Math.imul(seed, 1664525) + 1013904223) >>> 0) / 4294967296;
+  const radiusRad = (2 / 3600) * (Math.PI / 180);
+  for (let w = 0; w < 3; w++) {
+    const nA = 20001 + 2 * w;
+    const usedA = 1001 + 2 * w;
+    const nB = 999 + 2 * w;
+    const raA = new Float64Array(nA).fill(NaN);
+    const decA = new Float64Array(nA).fill(NaN);
+    for (let i = 0; i < usedA; i++) {
+      raA[i] = 360 * u();
+      decA[i] = (Math.asin(2 * u() - 1) * 180) / Math.PI;
+    }
+    const raB = new Float64Array(nB);
+    const decB = new Float64Array(nB);
+    for (let j = 0; j < nB; j++) {
+      const copy = j < 0.7 * nB;
+      raB[j] = copy ? (raA[j]! + (u() - 0.5) * 4e-4 + 360) % 360 : 360 * u();
+      decB[j] = copy ? Math.max(-90, Math.min(90, decA[j]! + (u() - 0.5) * 4e-4)) : (Math.asin(2 * u() - 1) * 180) / Math.PI;
+    }
+    for (const job of degreeBandJobs(raA, decA, raB, decB, radiusRad, 2)) degreeBandPairs(job);
+    blockPairs(positionBlock(raA, decA), positionBlock(raB, decB), nA, radiusRad);
+  }
 }

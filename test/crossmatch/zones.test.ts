@@ -30,7 +30,7 @@ describe("pairsWithin (zone engine)", () => {
       const R = radiusArcsec * ARCSEC;
       const want = brutePairs(a, b, R);
       expect(want.length).toBeGreaterThan(50); // clumps and duplicates guarantee pairs at every radius
-      for (const partitions of [1, 3]) {
+      for (const partitions of [1, 3, 12]) {
         const got = pairsWithin(a, b, R, { partitions });
         expect(asTriples(got)).toEqual(asTriples(want));
         // separations are the same numbers (same formula on the same vectors)
