@@ -3,7 +3,7 @@ import { join } from "node:path";
 import { pathToFileURL } from "node:url";
 import { tableFromColumns, type ColumnData } from "../../src/catalogue/columns.js";
 import { csvBytes } from "../../src/catalogue/formats/csv-write.js";
-import { csvChunksThreaded } from "../../src/catalogue/csv-threads.js";
+import { csvChunksThreaded, startCsvWorker } from "../../src/catalogue/csv-threads.js";
 import { buildOnce, ROOT } from "../cli-helpers.js";
 
 // The worker script is the built one (dist/csv-worker.js); minRows 0 sends even small tables to it.
@@ -75,5 +75,36 @@ describe("csvChunksThreaded", () => {
       expect(Buffer.from(await joined(csvChunksThreaded(t, {}, { minRows: 0 }))).equals(Buffer.from(csvBytes(t)))).toBe(true);
       expect(Buffer.from(await joined(csvChunksThreaded(t, {}, how()))).equals(Buffer.from(csvBytes(t)))).toBe(true);
     }
+  });
+
+  it("uses a worker started ahead and gives the same bytes, then ends it", async () => {
+    const t = table(4001);
+    const ahead = startCsvWorker(how())!;
+    const exited = new Promise((resolve) => ahead.worker.once("exit", resolve));
+    const got = await joined(csvChunksThreaded(t, { delimiter: "\t" }, { minRows: 0, worker: ahead }));
+    expect(Buffer.from(got).equals(Buffer.from(csvBytes(t, { delimiter: "\t" })))).toBe(true);
+    await exited;
+    expect(ahead.alive()).toBe(false);
+  });
+
+  it("writes on this thread when the worker started ahead has already ended, and ends one a small table does not need", async () => {
+    const t = table(1000);
+    const gone = startCsvWorker(how())!;
+    gone.stop();
+    await new Promise((resolve) => gone.worker.once("exit", resolve));
+    expect(Buffer.from(await joined(csvChunksThreaded(t, {}, { minRows: 0, worker: gone }))).equals(Buffer.from(csvBytes(t)))).toBe(true);
+    const unused = startCsvWorker(how())!;
+    const exited = new Promise((resolve) => unused.worker.once("exit", resolve));
+    expect(Buffer.from(await joined(csvChunksThreaded(t, {}, { minRows: 5000, worker: unused }))).equals(Buffer.from(csvBytes(t)))).toBe(true);
+    await exited;
+    expect(unused.alive()).toBe(false);
+  });
+
+  it("ends a worker started ahead when the delimiter is refused", async () => {
+    const ahead = startCsvWorker(how())!;
+    const exited = new Promise((resolve) => ahead.worker.once("exit", resolve));
+    expect(() => csvChunksThreaded(table(10), { delimiter: ";;" }, { worker: ahead })).toThrow(/one ASCII character/);
+    await exited;
+    expect(ahead.alive()).toBe(false);
   });
 });

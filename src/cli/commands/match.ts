@@ -8,7 +8,8 @@ import type { Command, Io } from "../command.js";
 import { COMMON_FLAGS, numberFlag, parseFlags } from "../command.js";
 import { usageError } from "../../errors.js";
 import { CATALOGUE_FLAGS, CATALOGUE_FLAGS_HELP, loadForCommand, parseCatalogueFlags, readAheadForCommand } from "../catalogue-flags.js";
-import { assertNotSameFile, writeFileAtomic, writeTable } from "../../catalogue/io.js";
+import { assertNotSameFile, formatFromPath, isGzipPath, writeFileAtomic, writeTable, type FormatName } from "../../catalogue/io.js";
+import { startCsvWorker } from "../../catalogue/csv-threads.js";
 import { parseAngleArcsec } from "../../crossmatch/radius.js";
 import { availableParallelism } from "node:os";
 import { crossMatchBanded, joinRows, matchCounts, JOIN_MODES, type JoinMode, type MatchOptions } from "../../crossmatch/match.js";
@@ -139,6 +140,8 @@ const command: Command = {
       aliasB = `${aliasB}_b`;
     }
     const flags = parseCatalogueFlags(values);
+    // likewise the worker that formats the second half of a large CSV/TSV output
+    const csvWorker = fileBytes(pathA) + fileBytes(pathB) >= POOL_MIN_BYTES && isTextOutput(out, flags.outFormat) ? startCsvWorker() : undefined;
     // progress: one self-erasing status line, only when stderr is a terminal
     const phase = (what: string) => {
       if (io.progress) io.stderr.write(`\r\x1b[Kmatch: ${what}`);
@@ -209,7 +212,7 @@ const command: Command = {
       rolesB: catB.roles,
     });
     phase(`writing ${out}`);
-    await writeTable(table, out, flags.outFormat ? { format: flags.outFormat } : {});
+    await writeTable(table, out, { ...(flags.outFormat ? { format: flags.outFormat } : {}), ...(csvWorker ? { csvWorker } : {}) });
     phaseDone();
 
     const counts = matchCounts(result);
@@ -251,6 +254,17 @@ const command: Command = {
     return 0;
   },
 };
+
+/** True when `out` will be written as CSV/TSV text without gzip (an unknown extension is an error later). */
+function isTextOutput(out: string, format: FormatName | undefined): boolean {
+  if (isGzipPath(out)) return false;
+  try {
+    const f = format ?? formatFromPath(out);
+    return f === "csv" || f === "tsv";
+  } catch {
+    return false;
+  }
+}
 
 /** Size of a file in bytes, 0 when it cannot be read (the loader reports that). */
 function fileBytes(path: string): number {
