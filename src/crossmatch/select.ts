@@ -225,31 +225,41 @@ export function selectMatches(c: Candidates, mode: SelectMode, nA: number, nB: n
 export function ambiguity(c: Candidates, chosen: Int32Array, nA: number, nB: number, delta = AMBIGUITY_DELTA): Uint8Array {
   void nA;
   // A side: candidates are sorted by A row then score, so a row's best is the first of its run and
-  // its second-best the next one. B side: best and second-best score per B row, with the best's index.
-  const runStart = new Int32Array(c.length);
-  for (let k = 0; k < c.length; k++) runStart[k] = k > 0 && c.a[k] === c.a[k - 1] ? runStart[k - 1]! : k;
-  const best1B = new Float64Array(nB).fill(Infinity);
-  const best2B = new Float64Array(nB).fill(Infinity);
-  const argB = new Int32Array(nB).fill(-1);
-  for (let k = 0; k < c.length; k++) {
-    const s = c.score[k]!;
-    const j = c.b[k]!;
-    if (s < best1B[j]!) {
-      best2B[j] = best1B[j]!;
-      best1B[j] = s;
-      argB[j] = k;
-    } else if (s < best2B[j]!) best2B[j] = s;
+  // its second-best the next one. B side: the best and second-best candidate of each B row, kept as
+  // candidate index + 1 (0: none; an unset score is Infinity), the first of equal scores winning.
+  const ca = c.a;
+  const cb = c.b;
+  const score = c.score;
+  const n = c.length;
+  const best1 = new Int32Array(nB);
+  const best2 = new Int32Array(nB);
+  for (let k = 0; k < n; k++) {
+    const s = score[k]!;
+    const j = cb[k]!;
+    const b1 = best1[j]!;
+    if (s < (b1 === 0 ? Infinity : score[b1 - 1]!)) {
+      best2[j] = b1;
+      best1[j] = k + 1;
+    } else {
+      const b2 = best2[j]!;
+      if (s < (b2 === 0 ? Infinity : score[b2 - 1]!)) best2[j] = k + 1;
+    }
   }
   const out = new Uint8Array(chosen.length);
+  let lo = 0; // start of the A run holding the current chosen candidate (chosen is increasing)
   for (let t = 0; t < chosen.length; t++) {
     const k = chosen[t]!;
-    const s = c.score[k]!;
-    const j = c.b[k]!;
-    const lo = runStart[k]!;
+    if (t === 0 || ca[k] !== ca[lo]) {
+      lo = k;
+      while (lo > 0 && ca[lo - 1] === ca[k]) lo--;
+    }
+    const s = score[k]!;
+    const j = cb[k]!;
     let rivalA: number;
-    if (k !== lo) rivalA = c.score[lo]!;
-    else rivalA = lo + 1 < c.length && c.a[lo + 1] === c.a[lo] ? c.score[lo + 1]! : Infinity;
-    const rivalB = argB[j] === k ? best2B[j]! : best1B[j]!;
+    if (k !== lo) rivalA = score[lo]!;
+    else rivalA = lo + 1 < n && ca[lo + 1] === ca[lo] ? score[lo + 1]! : Infinity;
+    const other = best1[j]! === k + 1 ? best2[j]! : best1[j]!;
+    const rivalB = other === 0 ? Infinity : score[other - 1]!;
     out[t] = rivalA <= s + delta || rivalB <= s + delta ? 1 : 0;
   }
   return out;

@@ -94,9 +94,14 @@ export function occupiedAreaSr(pts: SkyPoints | PositionBlock, rows?: Int32Array
       mark(r, d);
     }
   } else {
+    // the arithmetic of mark, written out (this loop runs over every indexed row)
     const ra = pts.raRad;
     const dec = pts.decRad;
-    for (let k = 0; k < pts.length; k++) mark(ra[k]!, dec[k]!);
+    for (let k = 0; k < pts.length; k++) {
+      const zr = Math.min(179, Math.max(0, Math.floor(dec[k]! / DEG + 90)));
+      const cr = Math.min(359, Math.max(0, Math.floor(ra[k]! / DEG)));
+      seen[zr * 360 + cr] = 1;
+    }
   }
   let area = 0;
   for (let z = 0; z < 180; z++) {
