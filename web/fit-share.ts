@@ -4,25 +4,31 @@
  * workspace (src/flow/recentre-kernels.ts: parameters, chunk sums, input and output rows) for
  * `capacity` rows. Both sides make their views with fitShareViews on the same buffer.
  *
- * A run of a kernel: the page writes the parameters and rows it needs, the row count, the kernel and
- * the chunk count, clears the done flags, opens the chunk counter (CTL_NEXT = 0), bumps CTL_SEQ and
- * wakes the worker. Both threads then claim chunks with Atomics.add on CTL_NEXT, run the kernel on each
- * claimed chunk and set its done flag; the page waits for every flag and closes the counter
- * (CTL_NEXT = CLOSED) before it writes anything else. Running a chunk twice writes the same values,
- * so a late worker can do no harm.
+ * A run of a kernel: the page writes the parameters and rows it needs, the row count and the kernel,
+ * clears the done flags, opens the run by storing its chunk count in the claim word (CTL_CLAIM =
+ * chunks << 16 | next chunk, next = 0), bumps CTL_SEQ and wakes the worker. Both threads then claim
+ * chunks by compare-and-swap on the claim word, which succeeds only while next < chunks of the run the
+ * word describes, run the kernel on each claimed chunk and set its done flag. The page waits for every
+ * flag and closes the run (CTL_CLAIM = 0) before it writes anything else; so a thread holding a claim
+ * always reads the row count, kernel and parameters of the run it claimed from, and no chunk is ever
+ * still running when the next run starts.
  */
 import { chunksOf, KERNELS, workBytes, workOn, type RecentreWork } from "../src/flow/recentre-kernels.js";
 
-/** Control words: the run's number, the worker's readiness, the next chunk to claim, the run's chunks, rows and kernel. */
+/** Control words: the run's number, the worker's readiness, the claim word, the run's rows and kernel. */
 export const CTL_SEQ = 0;
 export const CTL_READY = 1;
-export const CTL_NEXT = 2;
-export const CTL_CHUNKS = 3;
+export const CTL_CLAIM = 2;
 export const CTL_ROWS = 4;
 export const CTL_KERNEL = 5;
 const CTL_WORDS = 8;
-/** CTL_NEXT between runs: no chunk can be claimed. */
-export const CLOSED = 0x3fffffff;
+/** Most chunks a run can have (the claim word keeps the count in 15 bits). */
+export const MAX_CHUNKS = 0x7fff;
+
+/** The claim word of a run of `chunks` chunks, none claimed yet. */
+export function openClaim(chunks: number): number {
+  return chunks << 16;
+}
 
 export interface FitShare {
   buffer: SharedArrayBuffer;
@@ -64,8 +70,10 @@ export function claimChunks(share: FitShare): number {
   const { ctl, done, work } = share;
   let ran = 0;
   for (;;) {
-    const c = Atomics.add(ctl, CTL_NEXT, 1);
-    if (c >= Atomics.load(ctl, CTL_CHUNKS)) return ran;
+    const v = Atomics.load(ctl, CTL_CLAIM);
+    const c = v & 0xffff;
+    if (c >= v >>> 16) return ran;
+    if (Atomics.compareExchange(ctl, CTL_CLAIM, v, v + 1) !== v) continue;
     work.n = Atomics.load(ctl, CTL_ROWS);
     KERNELS[Atomics.load(ctl, CTL_KERNEL)]!(work, c);
     Atomics.store(done, c, 1);

@@ -5,12 +5,14 @@
  * result to the last bit, whichever thread ran which chunk. Re-centring stays a synchronous call: the
  * page runs chunks until none is left and then waits only for those the worker is still on; a worker
  * slow to wake (no free core) costs nothing but its share, as the page takes the chunks it has not claimed.
+ * A claimed chunk is always waited for, never run a second time alongside the worker: a worker still on
+ * a chunk when the next run changed the parameters would write wrong values.
  * Needs a cross-origin isolated page (the view server sends COOP/COEP headers); where the page is not,
  * null is returned and re-centring runs on the page's thread. Fits of fewer than MIN_SPLIT_ROWS rows, or
  * more than the storage holds, also run there.
  */
-import { KERNELS, ONE_THREAD, type KernelId, type RecentreThreads, type RecentreWork } from "../src/flow/recentre-kernels.js";
-import { claimChunks, CLOSED, CTL_CHUNKS, CTL_KERNEL, CTL_NEXT, CTL_READY, CTL_ROWS, CTL_SEQ, fitShareBytes, fitShareViews, type FitShare } from "./fit-share.js";
+import { chunksOf, KERNELS, ONE_THREAD, type KernelId, type RecentreThreads, type RecentreWork } from "../src/flow/recentre-kernels.js";
+import { claimChunks, CTL_CLAIM, CTL_KERNEL, CTL_READY, CTL_ROWS, CTL_SEQ, fitShareBytes, fitShareViews, MAX_CHUNKS, openClaim, type FitShare } from "./fit-share.js";
 
 /** Below this many rows a run is not shared: waking the worker costs more than it saves. */
 export const MIN_SPLIT_ROWS = 8192;
@@ -37,12 +39,12 @@ export class TwoThreads implements RecentreThreads {
     private readonly share: FitShare,
     private readonly worker: Worker,
   ) {
-    Atomics.store(share.ctl, CTL_NEXT, CLOSED);
+    Atomics.store(share.ctl, CTL_CLAIM, 0);
   }
 
   /** Starts the fit worker with room for `capacity` rows; null where the page cannot share memory. */
   static start(capacity: number, workerUrl: URL): TwoThreads | null {
-    if (!(globalThis.crossOriginIsolated && typeof SharedArrayBuffer === "function" && typeof Worker === "function" && capacity >= MIN_SPLIT_ROWS)) return null;
+    if (!(globalThis.crossOriginIsolated && typeof SharedArrayBuffer === "function" && typeof Worker === "function" && capacity >= MIN_SPLIT_ROWS && chunksOf(capacity) <= MAX_CHUNKS)) return null;
     let worker: Worker;
     try {
       worker = new Worker(workerUrl, { type: "module", name: "peculiar fit worker" });
@@ -105,8 +107,7 @@ export class TwoThreads implements RecentreThreads {
     done.fill(0, 0, chunks);
     Atomics.store(ctl, CTL_ROWS, w.n);
     Atomics.store(ctl, CTL_KERNEL, kernel);
-    Atomics.store(ctl, CTL_CHUNKS, chunks);
-    Atomics.store(ctl, CTL_NEXT, 0);
+    Atomics.store(ctl, CTL_CLAIM, openClaim(chunks));
     Atomics.add(ctl, CTL_SEQ, 1);
     Atomics.notify(ctl, CTL_SEQ);
     const mine = claimChunks(share);
@@ -114,7 +115,7 @@ export class TwoThreads implements RecentreThreads {
     for (let c = 0; c < chunks; c++) {
       while (Atomics.load(done, c) === 0) {
         if (performance.now() - t0 > WORKER_TIMEOUT_MS) {
-          // the worker is gone: run its chunk here (the same values it would write) and stop using it
+          // the worker is gone (it held this chunk for seconds): stop it, run the chunk here, and stop using it
           this.broken = true;
           this.worker.terminate();
           KERNELS[kernel]!(w, c);
@@ -122,7 +123,7 @@ export class TwoThreads implements RecentreThreads {
         }
       }
     }
-    Atomics.store(ctl, CTL_NEXT, CLOSED);
+    Atomics.store(ctl, CTL_CLAIM, 0);
     this.splitRuns++;
     this.sharedChunks += chunks;
     this.workerChunks += chunks - mine;
