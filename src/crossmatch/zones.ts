@@ -227,31 +227,24 @@ export function positionBlock(raDeg: ArrayLike<number>, decDeg: ArrayLike<number
 export function bandBlock(raDeg: ArrayLike<number>, decDeg: ArrayLike<number>, loRad: number, hiRad: number, hiInclusive: boolean): PositionBlock {
   if (raDeg.length !== decDeg.length) throw new Error(`raDeg has ${raDeg.length} values but decDeg has ${decDeg.length}`);
   const n = raDeg.length;
-  // the same test twice (count, then fill): one exact allocation instead of full-size arrays cut down
+  // one pass into arrays of the catalogue's length, returned as views of the part filled: the pages
+  // past it are never written, so they take no memory, and no second pass or copy is needed
+  const row = new Int32Array(n);
+  const ra = new Float64Array(n);
+  const dec = new Float64Array(n);
   let m = 0;
   for (let i = 0; i < n; i++) {
     const rd = raDeg[i]!;
     const dd = decDeg[i]!;
     if (!Number.isFinite(rd) || !(dd >= -90 && dd <= 90)) continue;
     const d = dd * DEG;
-    if (d >= loRad && (d < hiRad || (hiInclusive && d <= hiRad))) m++;
-  }
-  const row = new Int32Array(m);
-  const ra = new Float64Array(m);
-  const dec = new Float64Array(m);
-  let t = 0;
-  for (let i = 0; i < n && t < m; i++) {
-    const rd = raDeg[i]!;
-    const dd = decDeg[i]!;
-    if (!Number.isFinite(rd) || !(dd >= -90 && dd <= 90)) continue;
-    const d = dd * DEG;
     if (!(d >= loRad && (d < hiRad || (hiInclusive && d <= hiRad)))) continue;
-    row[t] = i;
-    ra[t] = raRadOfDeg(rd);
-    dec[t] = d;
-    t++;
+    row[m] = i;
+    ra[m] = raRadOfDeg(rd);
+    dec[m] = d;
+    m++;
   }
-  return { row, raRad: ra, decRad: dec, length: m };
+  return { row: row.subarray(0, m), raRad: ra.subarray(0, m), decRad: dec.subarray(0, m), length: m };
 }
 
 /** The usable rows of SkyPoints (all, or the subset `rows`) as a block, in the given order. */
