@@ -267,15 +267,22 @@ export function blockOfPoints(pts: SkyPoints, rows?: Int32Array): PositionBlock 
   return { row: row.subarray(0, m), raRad: ra.subarray(0, m), decRad: dec.subarray(0, m), length: m };
 }
 
-/** A catalogue indexed on a grid: rows in cell order with their unit vectors copied in that order. */
+/**
+ * A catalogue indexed on a grid: rows in cell order with their positions copied in that order. Unit
+ * vectors are made by the query: for each candidate that passes the declination test when few do
+ * (small radii), else once for all rows, kept in xyz.
+ */
 export interface ZoneIndex {
   grid: ZoneGrid;
   /** sorted position -> row of the indexed catalogue */
   rowOf: Int32Array;
   /** cellStart[c] .. cellStart[c + 1] are the sorted positions in cell c. */
   cellStart: Int32Array;
-  /** unit vectors in sorted order */
-  xyz: Float64Array;
+  /** RA in [0, 2 pi) and Dec, radians, in sorted order */
+  raRad: Float64Array;
+  decRad: Float64Array;
+  /** unit vectors in sorted order, once a query has made them (null before) */
+  xyz: Float64Array | null;
   /** number of indexed rows (finite positions) */
   length: number;
 }
@@ -299,34 +306,18 @@ function zoneStarts(grid: ZoneGrid, dec: Float64Array, n: number): Int32Array {
 /**
  * Builds the index of a block on `grid`. The rows are first moved into zone order (a stable counting
  * pass that writes to one place per zone, where a counting sort into ~1e5 cells writes at random),
- * then each zone's run, a few thousand entries that stay in cache, is counting-sorted by RA cell
- * straight into the index, its unit vectors computed there. The zone-ordered rows and positions are
- * kept in the index's own arrays (rows in rowOf, positions in the upper two thirds of xyz, which a
- * zone's unit vectors reach only after the zone's positions were read): no temporaries of the block's size.
+ * straight into the index's arrays; then each zone's run, a few thousand entries that stay in cache,
+ * is copied out and placed back in RA-cell order.
  */
 export function buildZoneIndex(grid: ZoneGrid, blk: PositionBlock): ZoneIndex {
   const n = blk.length;
   const { nZones, nRa, raScale, zoneBase, zoneHeightRad } = grid;
   const nCells = zoneBase[nZones]!;
-  const invH = 1 / zoneHeightRad;
   const zoneStart = zoneStarts(grid, blk.decRad, n);
   const rowOf = new Int32Array(n);
-  const xyz = new Float64Array(3 * n);
-  // zone order: entry t's row in rowOf[t], its RA and Dec in xyz[n + 2t], xyz[n + 2t + 1]
-  {
-    const fill = zoneStart.slice(0, nZones);
-    const br = blk.row;
-    const bra = blk.raRad;
-    const bdec = blk.decRad;
-    for (let k = 0; k < n; k++) {
-      const d = bdec[k]!;
-      const t = fill[zoneIndexOf(d, invH, nZones)]!++;
-      rowOf[t] = br[k]!;
-      xyz[n + 2 * t] = bra[k]!;
-      xyz[n + 2 * t + 1] = d;
-    }
-  }
-  // cell order inside each zone: the zone's run copied out (it stays in cache), then placed by cell
+  const ra = new Float64Array(n);
+  const dec = new Float64Array(n);
+  zoneScatter(zoneStart, nZones, 1 / zoneHeightRad, blk, rowOf, ra, dec);
   const cellStart = new Int32Array(nCells + 1);
   let maxCells = 0;
   let maxRun = 0;
@@ -337,7 +328,8 @@ export function buildZoneIndex(grid: ZoneGrid, blk: PositionBlock): ZoneIndex {
   const count = new Int32Array(maxCells + 1);
   const runCell = new Int32Array(maxRun);
   const runRow = new Int32Array(maxRun);
-  const runPos = new Float64Array(2 * maxRun);
+  const runRa = new Float64Array(maxRun);
+  const runDec = new Float64Array(maxRun);
   for (let z = 0; z < nZones; z++) {
     const lo = zoneStart[z]!;
     const m = zoneStart[z + 1]! - lo;
@@ -346,10 +338,10 @@ export function buildZoneIndex(grid: ZoneGrid, blk: PositionBlock): ZoneIndex {
     const sc = raScale[z]!;
     count.fill(0, 0, nc + 1);
     for (let j = 0; j < m; j++) {
-      const r = xyz[n + 2 * (lo + j)]!;
+      const r = ra[lo + j]!;
       runRow[j] = rowOf[lo + j]!;
-      runPos[2 * j] = r;
-      runPos[2 * j + 1] = xyz[n + 2 * (lo + j) + 1]!;
+      runRa[j] = r;
+      runDec[j] = dec[lo + j]!;
       let c = Math.floor(r * sc);
       if (c < 0) c = 0;
       else if (c >= nc) c = nc - 1;
@@ -358,20 +350,49 @@ export function buildZoneIndex(grid: ZoneGrid, blk: PositionBlock): ZoneIndex {
     }
     for (let c = 0; c < nc; c++) count[c + 1]! += count[c]!;
     for (let c = 0; c < nc; c++) cellStart[base + c] = lo + count[c]!;
-    // writes reach xyz[3 (lo + m) - 1] < n + 2 (lo + m): the later zones' positions are untouched
     for (let j = 0; j < m; j++) {
       const t = lo + count[runCell[j]!]!++;
       rowOf[t] = runRow[j]!;
-      const r = runPos[2 * j]!;
-      const d = runPos[2 * j + 1]!;
-      const cd = Math.cos(d);
-      xyz[3 * t] = cd * Math.cos(r);
-      xyz[3 * t + 1] = cd * Math.sin(r);
-      xyz[3 * t + 2] = Math.sin(d);
+      ra[t] = runRa[j]!;
+      dec[t] = runDec[j]!;
     }
   }
   cellStart[nCells] = n;
-  return { grid, rowOf, cellStart, xyz, length: n };
+  return { grid, rowOf, cellStart, raRad: ra, decRad: dec, xyz: null, length: n };
+}
+
+/** Unit vectors of the index's rows in sorted order (the arithmetic of skyPoints), made once and kept. */
+function indexVectors(index: ZoneIndex): Float64Array {
+  if (index.xyz) return index.xyz;
+  const n = index.length;
+  const ra = index.raRad;
+  const dec = index.decRad;
+  const xyz = new Float64Array(3 * n);
+  for (let t = 0; t < n; t++) {
+    const r = ra[t]!;
+    const d = dec[t]!;
+    const cd = Math.cos(d);
+    xyz[3 * t] = cd * Math.cos(r);
+    xyz[3 * t + 1] = cd * Math.sin(r);
+    xyz[3 * t + 2] = Math.sin(d);
+  }
+  index.xyz = xyz;
+  return xyz;
+}
+
+/**
+ * Whether a query at this radius should make each candidate's unit vector as it passes the declination
+ * test rather than all of them first: when the candidates that pass it (other than true pairs) are
+ * expected to number well under one per indexed row. A query scans about (rows per occupied cell) x
+ * (1 + 2 Rw / h) candidates and a fraction 2 Rw / h of them passes (h: zone height).
+ */
+function vectorsPerCandidate(index: ZoneIndex, nQueries: number, Rw: number): boolean {
+  const cs = index.cellStart;
+  let occupied = 0;
+  for (let c = 0; c + 1 < cs.length; c++) if (cs[c + 1]! > cs[c]!) occupied++;
+  if (occupied === 0) return true;
+  const f = (2 * Rw) / index.grid.zoneHeightRad;
+  return nQueries * (index.length / occupied) * (1 + f) * f < 0.25 * index.length;
 }
 
 /** One stable counting pass of a block into zone order (zoneStart from zoneStarts): rows and positions moved together. */
@@ -471,10 +492,14 @@ export function queryZoneIndex(index: ZoneIndex, q: SortedQueries, radiusRad: nu
   const grid = index.grid;
   const { nZones, nRa, raScale, zoneBase, zoneHeightRad } = grid;
   const cellStart = index.cellStart;
-  const bx = index.xyz;
   const rowOf = index.rowOf;
+  const bra = index.raRad;
+  const bdec = index.decRad;
   const R = Math.min(radiusRad, Math.PI);
   const Rw = R * (1 + CHORD_SLACK) + EPS_RAD;
+  // small radii: a candidate's unit vector is made only when it passes the declination test
+  const perCandidate = vectorsPerCandidate(index, q.length, Rw);
+  const bx = perCandidate ? new Float64Array(0) : indexVectors(index);
   const chord = 2 * Math.sin(Math.min(Rw, Math.PI) / 2);
   const chord2 = chord * chord * (1 + CHORD_SLACK) + 1e-30;
   // Counting only: below this chord the pair is inside R whatever the rounding, so atan2 is skipped.
@@ -507,11 +532,10 @@ export function queryZoneIndex(index: ZoneIndex, q: SortedQueries, radiusRad: nu
     const ra = qra[i]!;
     const dec = qdec[i]!;
     const row = qrow[i]!;
-    // the unit vector, as skyPoints computes it
-    const cd = Math.cos(dec);
-    const ax = cd * Math.cos(ra);
-    const ay = cd * Math.sin(ra);
-    const az = Math.sin(dec);
+    // the query's unit vector (as skyPoints computes it), made at its first candidate
+    let ax = NaN;
+    let ay = NaN;
+    let az = NaN;
     let zq = Math.floor((dec + HALF_PI) * invH);
     if (zq >= nZones) zq = nZones - 1;
     let z0 = Math.floor((dec - Rw + HALF_PI) * invH);
@@ -556,9 +580,30 @@ export function queryZoneIndex(index: ZoneIndex, q: SortedQueries, radiusRad: nu
           hi = cellStart[base + wrapHi + 1]!;
         }
         for (let k = lo; k < hi; k++) {
-          const bxk = bx[3 * k]!;
-          const byk = bx[3 * k + 1]!;
-          const bzk = bx[3 * k + 2]!;
+          // a separation is never below the difference in declination
+          const dk = bdec[k]!;
+          const dd = dk - dec;
+          if (dd > Rw || dd < -Rw) continue;
+          if (ax !== ax) {
+            const cd = Math.cos(dec);
+            ax = cd * Math.cos(ra);
+            ay = cd * Math.sin(ra);
+            az = Math.sin(dec);
+          }
+          let bxk: number;
+          let byk: number;
+          let bzk: number;
+          if (perCandidate) {
+            const r = bra[k]!;
+            const cd = Math.cos(dk);
+            bxk = cd * Math.cos(r);
+            byk = cd * Math.sin(r);
+            bzk = Math.sin(dk);
+          } else {
+            bxk = bx[3 * k]!;
+            byk = bx[3 * k + 1]!;
+            bzk = bx[3 * k + 2]!;
+          }
           const dx = bxk - ax;
           const dy = byk - ay;
           const dz = bzk - az;
