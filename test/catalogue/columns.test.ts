@@ -1,5 +1,6 @@
 import { describe, expect, it } from "vitest";
-import { columnDataOf, float64Column, stringColumn, tableFromColumns, valuesView } from "../../src/catalogue/columns.js";
+import { tableToIPC } from "apache-arrow";
+import { boolDataExcept, columnDataOf, float64Column, sparseUtf8Data, stringColumn, tableFromColumns, valuesView } from "../../src/catalogue/columns.js";
 
 const table = tableFromColumns([
   { name: "s", kind: "utf8", values: ["aa", "b", "", "dddd", "é"], nulls: Uint8Array.of(0, 0, 1, 0, 0) },
@@ -31,5 +32,30 @@ describe("columns of a sliced table", () => {
     expect(valuesView(sliced, "k", "float64")).toBeUndefined();
     expect(valuesView(sliced, "s", "float64")).toBeUndefined();
     expect(Array.from(float64Column(sliced, "k"))).toEqual([20, 30, 40, 50]);
+  });
+});
+
+describe("boolDataExcept and sparseUtf8Data", () => {
+  it("give the same Arrow bytes as the dense columns they stand for (empty, one row, lengths off a multiple of 8)", () => {
+    for (const n of [0, 1, 7, 8, 9, 100]) {
+      const rows = [0, 3, 8, n - 1].filter((r, k, a) => r >= 0 && r < n && a.indexOf(r) === k).sort((p, q) => p - q);
+      const texts: string[] = [];
+      for (const r of rows) texts[r] = `line ${r + 2}: column ra: "ä${r}" is not a number`;
+      const valid = new Uint8Array(n).fill(1);
+      const reason = new Array<string>(n).fill("");
+      for (const r of rows) {
+        valid[r] = 0;
+        reason[r] = texts[r]!;
+      }
+      const dense = tableFromColumns([
+        { name: "valid", kind: "bool", values: valid },
+        { name: "invalid_reason", kind: "utf8", values: reason },
+      ], new Map(), n);
+      const sparse = tableFromColumns([
+        { name: "valid", data: boolDataExcept(n, rows) },
+        { name: "invalid_reason", data: sparseUtf8Data(n, rows, texts) },
+      ], new Map(), n);
+      expect(Buffer.from(tableToIPC(sparse)).equals(Buffer.from(tableToIPC(dense)))).toBe(true);
+    }
   });
 });

@@ -48,3 +48,27 @@ describe("flagRows", () => {
     expect(Array.from(validMask(plain(2)))).toEqual([1, 1]);
   });
 });
+
+describe("validMask and countInvalid on the packed bits", () => {
+  it("agree with the row-by-row values for slices at every bit offset, several chunks and all-valid runs", () => {
+    const n = 1000;
+    const bad = new Uint8Array(n);
+    for (let i = 0; i < n; i++) bad[i] = i % 97 === 5 || (i >= 600 && i < 603) ? 1 : 0;
+    const t = flagRows(plain(n), bad, []);
+    for (let from = 0; from < 10; from++) {
+      for (const part of [t.slice(from, n - from), t.slice(from, 300).concat(t.slice(300 + from, n))]) {
+        const v = part.getChild("valid")!;
+        const want: number[] = [];
+        for (let i = 0; i < part.numRows; i++) want.push(v.get(i) ? 1 : 0);
+        expect(Array.from(validMask(part))).toEqual(want);
+        expect(countInvalid(part)).toBe(want.filter((x) => x === 0).length);
+      }
+    }
+  });
+
+  it("count 0 for an all-valid table whose length is not a multiple of 8, and every row of an all-invalid one", () => {
+    expect(countInvalid(withValidity(plain(13)))).toBe(0);
+    expect(Array.from(validMask(withValidity(plain(13))))).toEqual(new Array(13).fill(1));
+    expect(countInvalid(flagRows(plain(13), new Uint8Array(13).fill(1), []))).toBe(13);
+  });
+});
