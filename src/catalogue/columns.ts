@@ -251,7 +251,7 @@ export function float64Column(table: Table, name: string): Float64Array {
   for (const chunk of v.data) {
     const len = chunk.length;
     const isNumericFlat = chunk.values instanceof Float64Array || chunk.values instanceof Float32Array || chunk.values instanceof Int32Array || chunk.values instanceof Int16Array || chunk.values instanceof Int8Array || chunk.values instanceof Uint8Array && !(chunk.type instanceof Bool) || chunk.values instanceof Uint16Array || chunk.values instanceof Uint32Array;
-    if (isNumericFlat && !(chunk.type instanceof Utf8)) {
+    if (isNumericFlat && !(chunk.type instanceof Utf8) && !isHalfFloat(chunk.type)) {
       // Arrow slices `values` already (chunk.offset only indexes the validity bitmap).
       const vals = chunk.values as ArrayLike<number>;
       for (let k = 0; k < len; k++) out[i + k] = vals[k]!;
@@ -388,6 +388,12 @@ export function kindOf(type: DataType): ColumnKind | undefined {
   return undefined;
 }
 
+/** An Arrow half-precision float (its buffer holds raw 16-bit patterns, read as float64 values). */
+export function isHalfFloat(type: DataType): boolean {
+  const t = type as unknown as { typeId: number; precision?: number };
+  return t.typeId === 3 && t.precision === 0;
+}
+
 const TYPED: Record<Exclude<ColumnKind, "bool" | "utf8">, new (n: number) => NumericArray> = {
   float64: Float64Array,
   float32: Float32Array,
@@ -435,6 +441,11 @@ export function columnDataOf(table: Table, name: string): ColumnData {
     const b = new Uint8Array(n);
     for (let i = 0; i < n; i++) b[i] = !nulls?.[i] && v.get(i) ? 1 : 0;
     values = b;
+  } else if (isHalfFloat(field.type)) {
+    // Arrow decodes the half-precision bit patterns in get(); the buffer itself holds the raw patterns
+    const arr = new Float64Array(n);
+    for (let r = 0; r < n; r++) arr[r] = nulls?.[r] ? NaN : (v.get(r) as number);
+    values = arr;
   } else {
     const arr = new TYPED[kind](n);
     let i = 0;

@@ -11,7 +11,7 @@
  * row of this table (1-based). Each side's own source_row is what row_a/row_b carry.
  */
 import type { Data, Table } from "apache-arrow";
-import { boolDataExcept, sparseUtf8Data, type DataColumn, columnDataOf, columnMeta, float64Column, kindOf, tableFromColumns, takeColumn, valuesView, type ColumnData } from "../catalogue/columns.js";
+import { boolDataExcept, sparseUtf8Data, type DataColumn, columnDataOf, columnMeta, float64Column, isHalfFloat, kindOf, tableFromColumns, takeColumn, valuesView, type ColumnData } from "../catalogue/columns.js";
 import { getRoles, INVALID_REASON, META, recordStep, setJsonMeta, SOURCE_ROW, VALID, type RoleMap } from "../catalogue/meta.js";
 import { validMask } from "../catalogue/validity.js";
 import { PeculiarError } from "../errors.js";
@@ -88,7 +88,7 @@ function gatherColumn(table: Table, name: string, rows: Int32Array): ColumnData 
   const field = table.schema.fields.find((f) => f.name === name);
   if (!v || !field || v.data.length !== 1 || v.nullCount !== 0) return undefined;
   const kind = kindOf(field.type);
-  if (kind === undefined || !GATHER_KINDS.has(kind)) return undefined;
+  if (kind === undefined || !GATHER_KINDS.has(kind) || isHalfFloat(field.type)) return undefined;
   const chunk = v.data[0]!;
   // Arrow slices `values` already (chunk.offset only indexes the validity bitmap)
   const src = chunk.values as Float64Array | Int32Array | Float32Array | Int8Array | Int16Array | Uint8Array | Uint16Array | Uint32Array;

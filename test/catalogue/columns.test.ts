@@ -1,5 +1,8 @@
 import { describe, expect, it } from "vitest";
-import { tableToIPC } from "apache-arrow";
+import { Float16, Float64, Table, tableFromIPC, tableToIPC, vectorFromArray } from "apache-arrow";
+import { readFileSync, writeFileSync } from "node:fs";
+import { join } from "node:path";
+import { buildOnce, runCli, tempDir } from "../cli-helpers.js";
 import { boolDataExcept, columnDataOf, float64Column, sparseUtf8Data, stringColumn, tableFromColumns, valuesView } from "../../src/catalogue/columns.js";
 
 const table = tableFromColumns([
@@ -56,6 +59,40 @@ describe("boolDataExcept and sparseUtf8Data", () => {
         { name: "invalid_reason", data: sparseUtf8Data(n, rows, texts) },
       ], new Map(), n);
       expect(Buffer.from(tableToIPC(sparse)).equals(Buffer.from(tableToIPC(dense)))).toBe(true);
+    }
+  });
+});
+
+describe("half-precision float columns", () => {
+  // 0.5, -2, 1.25, 65504 (the largest half) and 2^-14 are exact in IEEE 754 binary16 (IEEE 754-2008, table 3.5)
+  const exact = [0.5, -2, 1.25, 65504, 2 ** -14];
+  const table = new Table({ h: vectorFromArray(exact, new Float16()), n: vectorFromArray([1, 2, 3, 4, 5], new Float64()) });
+
+  it("are read as their values, not as the raw 16-bit patterns", () => {
+    expect(Array.from(columnDataOf(table, "h").values as Float64Array)).toEqual(exact);
+    expect(Array.from(float64Column(table, "h"))).toEqual(exact);
+    expect(valuesView(table, "h", "float64")).toBeUndefined();
+  });
+
+  it("keep their values through the joined table of 'peculiar match'", () => {
+    buildOnce();
+    const tmp = tempDir("peculiar-half-");
+    try {
+      const file = join(tmp.dir, "halves.arrow");
+      const t = new Table({
+        ra: vectorFromArray([10, 20, 30, 40, 50], new Float64()),
+        dec: vectorFromArray([-5, 0, 5, 10, 15], new Float64()),
+        h: vectorFromArray(exact, new Float16()),
+      });
+      writeFileSync(file, tableToIPC(t, "file"));
+      const out = join(tmp.dir, "out.arrow");
+      const r = runCli(["match", file, file, "-o", out, "--radius", "1arcsec", "-q"]);
+      expect(r.code, r.stderr).toBe(0);
+      const got = tableFromIPC(readFileSync(out));
+      expect(Array.from(float64Column(got, "halves_a_h"))).toEqual(exact);
+      expect(Array.from(float64Column(got, "halves_b_h"))).toEqual(exact);
+    } finally {
+      tmp.cleanup();
     }
   });
 });
