@@ -1,7 +1,7 @@
 /**
  * Re-centring on two threads: the page and a fit worker (fit-worker.ts) share the re-centring workspace
  * (src/flow/recentre-kernels.ts) in one SharedArrayBuffer (fit-share.ts) and claim the chunks of each
- * kernel run from a shared counter. Chunk sums are added in chunk order, so the result is the one-thread
+ * kernel run by compare-and-swap on a shared claim word. Chunk sums are added in chunk order, so the result is the one-thread
  * result to the last bit, whichever thread ran which chunk. Re-centring stays a synchronous call: the
  * page runs chunks until none is left and then waits only for those the worker is still on; a worker
  * slow to wake (no free core) costs nothing but its share, as the page takes the chunks it has not claimed.
