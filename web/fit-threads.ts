@@ -14,8 +14,8 @@
 import { chunksOf, KERNELS, ONE_THREAD, type KernelId, type RecentreThreads, type RecentreWork } from "../src/flow/recentre-kernels.js";
 import { claimChunks, CTL_CLAIM, CTL_KERNEL, CTL_READY, CTL_ROWS, CTL_SEQ, fitShareBytes, fitShareViews, MAX_CHUNKS, openClaim, type FitShare } from "./fit-share.js";
 
-/** Below this many rows a run is not shared: waking the worker costs more than it saves. */
-export const MIN_SPLIT_ROWS = 8192;
+/** Below this many rows a run is not shared: waking the worker costs more than it saves (at 1e4 rows two threads took 17 ms against 12 on one, npm run bench view). */
+export const MIN_SPLIT_ROWS = 32_768;
 /** A chunk the worker claimed and has not finished after this long is run here, and the worker given up. */
 const WORKER_TIMEOUT_MS = 2000;
 

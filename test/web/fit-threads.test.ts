@@ -15,8 +15,8 @@ import { writeViewCatalogue } from "./catalogue.js";
 import { viewDataFromTable } from "../../web/data.js";
 import { galaxyView, originInputs } from "../../web/origin.js";
 
-/** Enough rows for the passes to be shared (MIN_SPLIT_ROWS = 8192 in web/fit-threads.ts). */
-const ROWS = 20_000;
+/** Enough rows for the kernels to be shared (MIN_SPLIT_ROWS = 32 768 in web/fit-threads.ts). */
+const ROWS = 40_000;
 /** The same code on the same numbers in Node and in Chromium: agreement to rounding (common practice). */
 const REL_TOL = 1e-12;
 
