@@ -394,7 +394,8 @@ export function isHalfFloat(type: DataType): boolean {
   return t.typeId === 3 && t.precision === 0;
 }
 
-const TYPED: Record<Exclude<ColumnKind, "bool" | "utf8">, new (n: number) => NumericArray> = {
+/** The typed array that holds each numeric kind's values. */
+export const TYPED: Record<Exclude<ColumnKind, "bool" | "utf8">, new (n: number) => NumericArray> = {
   float64: Float64Array,
   float32: Float32Array,
   int8: Int8Array,

@@ -4,7 +4,7 @@
  * for `.arrows`.
  */
 import { RecordBatchFileWriter, RecordBatchStreamWriter, tableFromIPC, tableToIPC, type Table } from "apache-arrow";
-import { columnDataOf, columnMeta, kindOf, type ColumnData, type ColumnKind } from "../columns.js";
+import { columnDataOf, columnMeta, kindOf, TYPED, type ColumnData, type ColumnKind } from "../columns.js";
 import { PeculiarError } from "../../errors.js";
 import { finishTable, type ParsedColumns } from "./table.js";
 
@@ -41,18 +41,6 @@ export function parseArrowColumns(bytes: Uint8Array, options: { file: string }):
   return { columns: table.schema.fields.map((f) => numericView(table, f.name) ?? columnDataOf(table, f.name)), rows: n, reasons: [], sourceRows, metadata: new Map(table.schema.metadata) };
 }
 
-const VIEW_TYPES: Partial<Record<ColumnKind, Function>> = {
-  float64: Float64Array,
-  float32: Float32Array,
-  int8: Int8Array,
-  int16: Int16Array,
-  int32: Int32Array,
-  int64: BigInt64Array,
-  uint8: Uint8Array,
-  uint16: Uint16Array,
-  uint32: Uint32Array,
-  uint64: BigUint64Array,
-};
 
 /**
  * A numeric column in one chunk without nulls as a view of the file's bytes (no copy: the table
@@ -63,7 +51,7 @@ function numericView(table: Table, name: string): ColumnData | undefined {
   const field = table.schema.fields.find((f) => f.name === name);
   if (!v || !field || v.data.length !== 1 || v.nullCount !== 0) return undefined;
   const kind = kindOf(field.type);
-  const want = kind === undefined ? undefined : VIEW_TYPES[kind];
+  const want = kind === undefined || kind === "bool" || kind === "utf8" ? undefined : TYPED[kind];
   const chunk = v.data[0]!;
   if (kind === undefined || want === undefined || !(chunk.values instanceof want)) return undefined;
   // Arrow slices `values` already (chunk.offset only indexes the validity bitmap)
