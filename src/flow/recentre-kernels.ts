@@ -141,7 +141,9 @@ function putSums(
  * sigmaStar in quadrature (v - H0 s when the slope is held). With P[P_PACK], the log fit's rows too.
  */
 export function setupChunk(w: RecentreWork, c: number): void {
+  // every array is read from w once, here: a property load per row and array cost as much as the arithmetic
   const { x, y, z, vr, vrErr, use, s, vAB, cosL, used, member, P, partials } = w;
+  const { ax: AX, ay: AY, az: AZ, dc: DC, b2: B2, q0: Q0, lnD: LND, f: FR } = w;
   const ox = P[P_OX]!;
   const oy = P[P_OX + 1]!;
   const oz = P[P_OX + 2]!;
@@ -230,14 +232,14 @@ export function setupChunk(w: RecentreWork, c: number): void {
     rows++;
     if (pack) {
       const dc = nbx * ox + nby * oy + nbz * oz;
-      w.ax[i] = nbx;
-      w.ay[i] = nby;
-      w.az[i] = nbz;
-      w.dc[i] = dc;
-      w.b2[i] = Math.max(0, rA2 - dc * dc);
-      w.q0[i] = vr[i]! - (nbx * ovx + nby * ovy + nbz * ovz);
-      w.lnD[i] = Math.log(di);
-      w.f[i] = Number.isFinite(e) ? e / (h0 * di) : 0;
+      AX[i] = nbx;
+      AY[i] = nby;
+      AZ[i] = nbz;
+      DC[i] = dc;
+      B2[i] = Math.max(0, rA2 - dc * dc);
+      Q0[i] = vr[i]! - (nbx * ovx + nby * ovy + nbz * ovz);
+      LND[i] = Math.log(di);
+      FR[i] = Number.isFinite(e) ? e / (h0 * di) : 0;
       member[i] = 1;
     }
   }
