@@ -67,8 +67,8 @@ function composite(ctx: CanvasRenderingContext2D, L: Layer, x0: number, y0: numb
 }
 
 /**
- * Draws the rows of `bins` at (px, py) as squares of half-size r (CSS px); returns how many had a
- * position. The squares are written into a pixel buffer and composited onto the canvas in one
+ * Draws the rows of `bins` (only those in `rows`, increasing, when given) at (px, py) as squares of
+ * half-size r (CSS px); returns how many had a position. The squares are written into a pixel buffer and composited onto the canvas in one
  * drawImage (honouring its clip and `alpha`) of the rectangle they cover: one fillRect per point is
  * ten times slower in a software-rendered canvas at 1e5 points.
  */
@@ -79,6 +79,7 @@ export function drawBinnedPoints(
   bins: BinnedColours,
   r: number,
   alpha = 1,
+  rows?: Int32Array,
 ): number {
   const W = ctx.canvas.width;
   const H = ctx.canvas.height;
@@ -102,22 +103,57 @@ export function drawBinnedPoints(
   const cells = L.bins;
   const bin = bins.bin;
   const n = bin.length;
-  // pass 0: the rows of unknown value, listed in bins.order (in index order); pass 1: all the others
-  const order = bins.order;
+  // pass 0: the rows of unknown value, listed in bins.order (in index order); pass 1: all the others.
+  // With `rows` (increasing; the others have no position), both passes go through rows alone.
   const unknown0 = bins.start[N_BINS]!;
+  const unknownRows = bins.order.subarray(unknown0, bins.start[N_BINS + 1]!);
+  // A square whose corner rounds to [1, W - size] x [1, H - size] lies wholly on the canvas: there the
+  // corner is floor(v + 0.5) (Math.round of v >= 0.5) and no clamp is needed.
+  const xFast = W - size + 0.5;
+  const yFast = H - size + 0.5;
   for (let pass = 0; pass < 2; pass++) {
-    const m = pass === 0 ? bins.start[N_BINS + 1]! - unknown0 : n;
+    const list = rows ?? (pass === 0 ? unknownRows : null);
+    const m = list ? list.length : n;
     for (let j = 0; j < m; j++) {
-      const i = pass === 0 ? order[unknown0 + j]! : j;
+      const i = list ? list[j]! : j;
       const b = bin[i]!;
-      if (pass === 1 && b >= N_BINS) continue;
+      if (pass === 0 ? b !== N_BINS : b >= N_BINS) continue;
       const colour = b + 1;
       const x = px[i]!;
       const y = py[i]!;
       if (x !== x || y !== y) continue;
       drawn++;
-      const x0 = Math.max(0, Math.round(x * k + ox));
-      const y0 = Math.max(0, Math.round(y * k + oy));
+      const vx = x * k + ox;
+      const vy = y * k + oy;
+      if (vx >= 0.5 && vy >= 0.5 && vx < xFast && vy < yFast) {
+        const x0 = (vx + 0.5) | 0;
+        const y0 = (vy + 0.5) | 0;
+        if (x0 < bx0) bx0 = x0;
+        if (x0 + size > bx1) bx1 = x0 + size;
+        if (y0 < by0) by0 = y0;
+        if (y0 + size > by1) by1 = y0 + size;
+        let q = y0 * W + x0;
+        if (size === 3) {
+          // the common case (1.5 px points at 1x), unrolled
+          cells[q] = colour;
+          cells[q + 1] = colour;
+          cells[q + 2] = colour;
+          q += W;
+          cells[q] = colour;
+          cells[q + 1] = colour;
+          cells[q + 2] = colour;
+          q += W;
+          cells[q] = colour;
+          cells[q + 1] = colour;
+          cells[q + 2] = colour;
+          continue;
+        }
+        for (let yy = 0; yy < size; yy++, q += W) for (let xx = q, end = q + size; xx < end; xx++) cells[xx] = colour;
+        continue;
+      }
+      // near or beyond an edge: clamped to the canvas
+      const x0 = Math.max(0, Math.round(vx));
+      const y0 = Math.max(0, Math.round(vy));
       const x1 = Math.min(W, x0 + size);
       const y1 = Math.min(H, y0 + size);
       if (x0 >= x1 || y0 >= y1) continue;
@@ -125,22 +161,6 @@ export function drawBinnedPoints(
       if (x1 > bx1) bx1 = x1;
       if (y0 < by0) by0 = y0;
       if (y1 > by1) by1 = y1;
-      if (size === 3 && x1 - x0 === 3 && y1 - y0 === 3) {
-        // the common case (1.5 px points at 1x), unrolled
-        let q = y0 * W + x0;
-        cells[q] = colour;
-        cells[q + 1] = colour;
-        cells[q + 2] = colour;
-        q += W;
-        cells[q] = colour;
-        cells[q + 1] = colour;
-        cells[q + 2] = colour;
-        q += W;
-        cells[q] = colour;
-        cells[q + 1] = colour;
-        cells[q + 2] = colour;
-        continue;
-      }
       for (let yy = y0; yy < y1; yy++) {
         const row = yy * W;
         for (let xx = row + x0, end = row + x1; xx < end; xx++) cells[xx] = colour;
@@ -202,6 +222,18 @@ function maskFor(kind: "ring" | "cross", radius: number, lineWidth: number, alph
   return m;
 }
 
+const offsetCache = new WeakMap<MarkMask, { width: number; at: Int32Array }>();
+
+/** The mask's pixels as offsets dy * width + dx in a buffer of that row width. */
+function offsetsOf(m: MarkMask, width: number): Int32Array {
+  const c = offsetCache.get(m);
+  if (c && c.width === width) return c.at;
+  const at = new Int32Array(m.alpha.length);
+  for (let q = 0; q < at.length; q++) at[q] = m.dy[q]! * width + m.dx[q]!;
+  offsetCache.set(m, { width, at });
+  return at;
+}
+
 const markedCache = new WeakMap<ViewState["data"], { groupMembers: Int32Array; outliers: Int32Array }>();
 
 /** The rows that carry a mark (members of groups of 2 or more, outliers), listed once per catalogue. */
@@ -237,19 +269,25 @@ export function drawMarks(ctx: CanvasRenderingContext2D, state: ViewState, px: F
   let by1 = 0;
   const stampAll = (mask: MarkMask, colour: string, rows: Int32Array) => {
     const rgb = pixelOf(colour) & 0xffffff;
+    const e = mask.ext;
+    const at = offsetsOf(mask, W);
+    const alpha = mask.alpha;
+    const np = alpha.length;
     for (let j = 0; j < rows.length; j++) {
       const i = rows[j]!;
       const x = px[i]!;
       const y = py[i]!;
       if (x !== x || y !== y) continue;
-      const cx = Math.floor(x * k + t.e);
-      const cy = Math.floor(y * k + t.f);
-      const e = mask.ext;
-      if (cx - e >= 0 && cy - e >= 0 && cx + e < W && cy + e < H) {
-        // the whole mark is on the canvas: no test per pixel
-        for (let q = 0; q < mask.alpha.length; q++) {
-          const p = (cy + mask.dy[q]!) * W + cx + mask.dx[q]!;
-          const a = mask.alpha[q]!;
+      const vx = x * k + t.e;
+      const vy = y * k + t.f;
+      if (vx >= e && vy >= e && vx < W - e && vy < H - e) {
+        // the whole mark is on the canvas (floor(v) - e >= 0 and floor(v) + e < W): no test per pixel
+        const cx = vx | 0;
+        const cy = vy | 0;
+        const c0 = cy * W + cx;
+        for (let q = 0; q < np; q++) {
+          const p = c0 + at[q]!;
+          const a = alpha[q]!;
           if (a > buf[p]! >>> 24) buf[p] = ((a << 24) | rgb) >>> 0;
         }
         if (cx - e < bx0) bx0 = cx - e;
@@ -258,6 +296,8 @@ export function drawMarks(ctx: CanvasRenderingContext2D, state: ViewState, px: F
         if (cy + e >= by1) by1 = cy + e + 1;
         continue;
       }
+      const cx = Math.floor(vx);
+      const cy = Math.floor(vy);
       for (let q = 0; q < mask.alpha.length; q++) {
         const X = cx + mask.dx[q]!;
         const Y = cy + mask.dy[q]!;
@@ -295,7 +335,8 @@ export const DIM_ALPHA = 0.22;
 
 /**
  * All rows with a position, coloured by `values` on `scale`; with a selection, the rest dimmed and the
- * selected rows drawn again on top. Returns the bins of the full pass and the number drawn.
+ * selected rows drawn again on top. `rows` (increasing), when given, lists every row with a position.
+ * Returns the bins of the full pass and the number drawn.
  */
 export function drawPointsWithSelection(
   ctx: CanvasRenderingContext2D,
@@ -305,9 +346,10 @@ export function drawPointsWithSelection(
   values: Float64Array,
   scale: VelocityScale,
   r: number,
+  rows?: Int32Array,
 ): { bins: BinnedColours; drawn: number } {
   const bins = binAll(values, scale);
-  const drawn = drawBinnedPoints(ctx, px, py, bins, r, state.nSelected > 0 ? DIM_ALPHA : 1);
-  if (state.nSelected > 0) drawBinnedPoints(ctx, px, py, binByColour(values, scale, state.selected), r + 0.5, 1);
+  const drawn = drawBinnedPoints(ctx, px, py, bins, r, state.nSelected > 0 ? DIM_ALPHA : 1, rows);
+  if (state.nSelected > 0) drawBinnedPoints(ctx, px, py, binByColour(values, scale, state.selected), r + 0.5, 1, rows);
   return { bins, drawn };
 }
