@@ -7,9 +7,11 @@
 import * as d3 from "d3";
 import { CanvasPanel, type PanelActions } from "./panel.js";
 import type { ViewState } from "./state.js";
+import type { OriginView } from "./origin.js";
 import { BACKGROUND, binAll, FAINT_INK, INK, N_BINS, ORIGIN_MARK, type BinnedColours, type VelocityScale } from "./colour.js";
 import { drawMarks, drawPointsWithSelection } from "./draw.js";
 import { originLimits } from "./limits.js";
+import { slabCandidates, slabIndexOf } from "./slab-index.js";
 
 export type Plane = "xy" | "xz" | "yz";
 const AXES: Record<Plane, [0 | 1 | 2, 0 | 1 | 2, 0 | 1 | 2]> = { xy: [0, 1, 2], xz: [0, 2, 1], yz: [1, 2, 0] };
@@ -20,6 +22,19 @@ const M = { left: 44, right: 10, top: 22, bottom: 34 };
 interface SliceLines {
   start: Int32Array;
   xy: Float64Array;
+}
+
+/** Rows with a non-finite position about the origin (any of the three coordinates), counted once per origin view. */
+const unknownCache = new WeakMap<OriginView, number>();
+function unknownPositions(o: OriginView): number {
+  let u = unknownCache.get(o);
+  if (u === undefined) {
+    u = 0;
+    const { x, y, z } = o;
+    for (let i = 0; i < x.length; i++) if (!Number.isFinite(x[i]! + y[i]! + z[i]!)) u++;
+    unknownCache.set(o, u);
+  }
+  return u;
 }
 
 export class SlicePanel extends CanvasPanel {
@@ -34,6 +49,8 @@ export class SlicePanel extends CanvasPanel {
   /** Velocity lines of the last draw (the vector export writes them out), in lineBuf. */
   private lines: SliceLines | null = null;
   private lineBuf = new Float64Array(0);
+  /** The rows of the last draw, in index order (its first part). */
+  private slabRows = new Int32Array(0);
 
   /** Velocity lines of the last draw, one SVG path per colour bin, when there are at most 20 000 rows. */
   override vectorExtras(): string {
@@ -57,7 +74,7 @@ export class SlicePanel extends CanvasPanel {
    * The velocity lines of the drawn rows, bin by bin: each from (x, y) by (dx, dy) CSS px, u / H Mpc
    * along the direction from the origin (k = px per km/s).
    */
-  private velocityLines(bins: BinnedColours, k: number): SliceLines {
+  private velocityLines(bins: BinnedColours, k: number, rows: Int32Array): SliceLines {
     const o = this.state.origin;
     const [ia, ib] = AXES[this.plane];
     const cols = [o.x, o.y, o.z];
@@ -65,11 +82,12 @@ export class SlicePanel extends CanvasPanel {
     const B = cols[ib]!;
     const px = this.px;
     const py = this.py;
-    // rows in index order (the columns are read in sequence), placed bin by bin by counting
-    const n = px.length;
+    // the drawn rows in index order, placed bin by bin by counting
+    const n = rows.length;
     const bin = bins.bin;
     const count = new Int32Array(N_BINS + 1);
-    for (let i = 0; i < n; i++) {
+    for (let j = 0; j < n; j++) {
+      const i = rows[j]!;
       const bn = bin[i]!;
       if (bn >= N_BINS || px[i] !== px[i]) continue; // unknown colour, or not in the slab
       const s = o.s[i]!;
@@ -82,7 +100,8 @@ export class SlicePanel extends CanvasPanel {
     // one buffer per panel, grown when needed (a fresh 4 n array per draw cost more than the lines)
     if (this.lineBuf.length < 4 * m) this.lineBuf = new Float64Array(Math.max(4 * m, 2 * this.lineBuf.length));
     const xy = this.lineBuf;
-    for (let i = 0; i < n; i++) {
+    for (let j = 0; j < n; j++) {
+      const i = rows[j]!;
       const bn = bin[i]!;
       if (bn >= N_BINS || px[i] !== px[i]) continue;
       const s = o.s[i]!;
@@ -160,19 +179,47 @@ export class SlicePanel extends CanvasPanel {
     const xa = sx(1) - xb;
     const yb = sy(0);
     const ya = sy(1) - yb;
+    // The rows in the slab and the window, in index order (the order they are drawn in).
+    if (this.slabRows.length < d.n) this.slabRows = new Int32Array(d.n);
+    const list = this.slabRows;
+    let m = 0;
     let unknown = 0;
-    for (let i = 0; i < d.n; i++) {
-      const a = A[i]!;
-      const b = B[i]!;
-      const c = C[i]!;
-      if (!Number.isFinite(a + b + c)) {
-        unknown++;
-        continue;
+    const oc = [o.ox, o.oy, o.oz][ic]!;
+    if (Number.isFinite(oc + half)) {
+      // only the rows of the buckets about the slab (slab-index.ts; C = sg - oc, so the test is the same)
+      const base = [o.sg.x, o.sg.y, o.sg.z][ic]!;
+      const ix = slabIndexOf(base);
+      const [from, to] = slabCandidates(ix, oc - half, oc + half);
+      const cand = ix.rows;
+      for (let k = from; k < to; k++) {
+        const i = cand[k]!;
+        const a = A[i]!;
+        const b = B[i]!;
+        const c = C[i]!;
+        if (!Number.isFinite(a + b + c)) continue;
+        if (Math.abs(c) > half || Math.abs(a - ca) > R || Math.abs(b - cb) > R) continue;
+        px[i] = xa * a + xb;
+        py[i] = ya * b + yb;
+        list[m++] = i;
       }
-      if (Math.abs(c) > half || Math.abs(a - ca) > R || Math.abs(b - cb) > R) continue;
-      px[i] = xa * a + xb;
-      py[i] = ya * b + yb;
+      list.subarray(0, m).sort();
+      unknown = unknownPositions(o);
+    } else {
+      for (let i = 0; i < d.n; i++) {
+        const a = A[i]!;
+        const b = B[i]!;
+        const c = C[i]!;
+        if (!Number.isFinite(a + b + c)) {
+          unknown++;
+          continue;
+        }
+        if (Math.abs(c) > half || Math.abs(a - ca) > R || Math.abs(b - cb) > R) continue;
+        px[i] = xa * a + xb;
+        py[i] = ya * b + yb;
+        list[m++] = i;
+      }
     }
+    const rows = list.subarray(0, m);
     ctx.save();
     ctx.beginPath();
     ctx.rect(sx(ca - R), sy(cb + R), side, side);
@@ -184,7 +231,7 @@ export class SlicePanel extends CanvasPanel {
     const k = side / (2 * R) / H; // px per km/s: u / H Mpc times px per Mpc
     ctx.lineWidth = 1;
     ctx.globalAlpha = st.nSelected > 0 ? 0.35 : 0.9;
-    const lines = this.velocityLines(bins, k);
+    const lines = this.velocityLines(bins, k, rows);
     this.lines = lines;
     for (let bn = 0; bn < N_BINS; bn++) {
       const e = lines.start[bn + 1]!;
@@ -201,7 +248,7 @@ export class SlicePanel extends CanvasPanel {
       ctx.stroke();
     }
     ctx.globalAlpha = 1;
-    const { drawn } = drawPointsWithSelection(ctx, st, px, py, o.u, this.scale, this.pointRadius);
+    const { drawn } = drawPointsWithSelection(ctx, st, px, py, o.u, this.scale, this.pointRadius, rows);
     this.bins = bins;
     drawMarks(ctx, st, px, py, this.pointRadius);
     // The origin, and us when re-centred.
