@@ -27,12 +27,10 @@ export interface OriginView {
   ox: number;
   oy: number;
   oz: number;
-  /** Positions relative to the origin, Mpc: x = sg.x - ox (likewise y, z). */
+  /** Positions relative to the origin, Mpc. */
   x: Float64Array;
   y: Float64Array;
   z: Float64Array;
-  /** The supergalactic positions about us that x, y, z are shifted from (the same arrays for every origin). */
-  sg: { x: Float64Array; y: Float64Array; z: Float64Array };
   /** Distance from the origin (Mpc) and radial velocity seen from there (km/s). */
   s: Float64Array;
   v: Float64Array;
@@ -174,7 +172,6 @@ function build(inp: OriginInputs, origin: RecentreOrigin, use: Uint8Array, kind:
     x,
     y,
     z,
-    sg,
     s: r.s,
     v: r.vAB,
     u,

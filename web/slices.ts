@@ -7,11 +7,9 @@
 import * as d3 from "d3";
 import { CanvasPanel, type PanelActions } from "./panel.js";
 import type { ViewState } from "./state.js";
-import type { OriginView } from "./origin.js";
 import { BACKGROUND, binAll, FAINT_INK, INK, N_BINS, ORIGIN_MARK, type BinnedColours, type VelocityScale } from "./colour.js";
 import { drawMarks, drawPointsWithSelection } from "./draw.js";
 import { originLimits } from "./limits.js";
-import { slabCandidates, slabIndexOf } from "./slab-index.js";
 
 export type Plane = "xy" | "xz" | "yz";
 const AXES: Record<Plane, [0 | 1 | 2, 0 | 1 | 2, 0 | 1 | 2]> = { xy: [0, 1, 2], xz: [0, 2, 1], yz: [1, 2, 0] };
@@ -22,19 +20,6 @@ const M = { left: 44, right: 10, top: 22, bottom: 34 };
 interface SliceLines {
   start: Int32Array;
   xy: Float64Array;
-}
-
-/** Rows with a non-finite position about the origin (any of the three coordinates), counted once per origin view. */
-const unknownCache = new WeakMap<OriginView, number>();
-function unknownPositions(o: OriginView): number {
-  let u = unknownCache.get(o);
-  if (u === undefined) {
-    u = 0;
-    const { x, y, z } = o;
-    for (let i = 0; i < x.length; i++) if (!Number.isFinite(x[i]! + y[i]! + z[i]!)) u++;
-    unknownCache.set(o, u);
-  }
-  return u;
 }
 
 export class SlicePanel extends CanvasPanel {
@@ -179,45 +164,25 @@ export class SlicePanel extends CanvasPanel {
     const xa = sx(1) - xb;
     const yb = sy(0);
     const ya = sy(1) - yb;
-    // The rows in the slab and the window, in index order (the order they are drawn in).
+    // The rows in the slab and the window, in index order (the order they are drawn in): one pass over
+    // the columns in sequence. (A bucket index of each coordinate, touching only the rows about the
+    // slab, was slower: its rows are scattered in memory, and their list had to be sorted back.)
     if (this.slabRows.length < d.n) this.slabRows = new Int32Array(d.n);
     const list = this.slabRows;
     let m = 0;
     let unknown = 0;
-    const oc = [o.ox, o.oy, o.oz][ic]!;
-    if (Number.isFinite(oc + half)) {
-      // only the rows of the buckets about the slab (slab-index.ts; C = sg - oc, so the test is the same)
-      const base = [o.sg.x, o.sg.y, o.sg.z][ic]!;
-      const ix = slabIndexOf(base);
-      const [from, to] = slabCandidates(ix, oc - half, oc + half);
-      const cand = ix.rows;
-      for (let k = from; k < to; k++) {
-        const i = cand[k]!;
-        const a = A[i]!;
-        const b = B[i]!;
-        const c = C[i]!;
-        if (!Number.isFinite(a + b + c)) continue;
-        if (Math.abs(c) > half || Math.abs(a - ca) > R || Math.abs(b - cb) > R) continue;
-        px[i] = xa * a + xb;
-        py[i] = ya * b + yb;
-        list[m++] = i;
+    for (let i = 0; i < d.n; i++) {
+      const a = A[i]!;
+      const b = B[i]!;
+      const c = C[i]!;
+      if (!Number.isFinite(a + b + c)) {
+        unknown++;
+        continue;
       }
-      list.subarray(0, m).sort();
-      unknown = unknownPositions(o);
-    } else {
-      for (let i = 0; i < d.n; i++) {
-        const a = A[i]!;
-        const b = B[i]!;
-        const c = C[i]!;
-        if (!Number.isFinite(a + b + c)) {
-          unknown++;
-          continue;
-        }
-        if (Math.abs(c) > half || Math.abs(a - ca) > R || Math.abs(b - cb) > R) continue;
-        px[i] = xa * a + xb;
-        py[i] = ya * b + yb;
-        list[m++] = i;
-      }
+      if (Math.abs(c) > half || Math.abs(a - ca) > R || Math.abs(b - cb) > R) continue;
+      px[i] = xa * a + xb;
+      py[i] = ya * b + yb;
+      list[m++] = i;
     }
     const rows = list.subarray(0, m);
     ctx.save();
