@@ -29,7 +29,8 @@ import type { ColumnData, ColumnKind, ColumnMeta } from "../columns.js";
 import { PeculiarError } from "../../errors.js";
 import { CsvRecords, decodeSpan, NUMBER_DEC, NUMBER_INT, QUOTED, SPECIAL, splitRecords } from "./csv-records.js";
 import { DECIMAL, INTEGER, NOT_NUMBER, scanNumber, scanned } from "./decimal.js";
-import { ecsvKind, isEcsv, parseEcsvHeader } from "./ecsv.js";
+import { readNumericBody } from "./csv-numeric.js";
+import { ecsvKind, isEcsv, parseEcsvHeader, type EcsvHeader } from "./ecsv.js";
 import { addReason, finishTable, type ParsedColumns } from "./table.js";
 
 /** Unquoted cells read as null (case-sensitive). */
@@ -44,6 +45,8 @@ export interface CsvOptions {
   delimiter?: string;
   /** Recorded in peculiar.source (csv or tsv). */
   format?: string;
+  /** Read every file with the general rules, without trying the plain numeric body first (tests compare the two). */
+  generalRules?: boolean;
 }
 
 const INT_RE = /^[+-]?\d+$/;
@@ -460,6 +463,69 @@ function headText(b: Uint8Array, from: number): string {
   }
 }
 
+/** The header row's names, the units row (or none) and the first data record, from the records. */
+function tableHead(recs: CsvRecords, ecsv: EcsvHeader | undefined, file: string): { names: string[]; width: number; units: string[]; first: number } {
+  if (recs.records === 0) throw new PeculiarError("format", "no header row (the file has only comments or blank lines)", { file });
+  const headerCells = recs.recordCells(0);
+  const names = headerNames(headerCells);
+  const width = names.length;
+  if (ecsv) {
+    const listed = ecsv.columns.map((c) => c.name);
+    if (listed.join("\u0000") !== headerCells.map((c) => c.trim()).join("\u0000")) {
+      throw new PeculiarError("format", `ECSV header lists columns ${listed.join(", ")} but the header row has ${headerCells.join(", ")}`, { file, row: recs.recLine[0]! });
+    }
+  }
+  const hasUnits = !ecsv && (recs.marker || isUnitsRow(recs, width));
+  return { names, width, units: hasUnits ? recs.recordCells(1) : [], first: hasUnits ? 2 : 1 };
+}
+
+/** Lines of the head read with the general rules: header, units row, and the rows isUnitsRow looks at. */
+const HEAD_LINES = 256;
+
+/**
+ * The table when its body is plain numbers and empty cells (csv-numeric.ts), its head (header,
+ * units row) read with the general rules; null when the file is of another shape, and the general
+ * rules then read it all (they give the same table for the files read here).
+ */
+export function plainNumericTable(bytes: Uint8Array, from: number, delim: number, file: string): ParsedColumns | null {
+  if (delim === 32 || /[0-9+\-.eEdD]/.test(String.fromCharCode(delim))) return null;
+  const n = bytes.length;
+  let end = from;
+  for (let count = 0; end < n && count < HEAD_LINES; count++) {
+    const nl = bytes.indexOf(10, end);
+    end = nl < 0 ? n : nl + 1;
+  }
+  if (end >= n) return null; // a small file: the general rules alone
+  const head = bytes.subarray(0, end);
+  // quotes may hide line ends; a CR not followed by LF ends a line that indexOf does not see
+  if (head.indexOf(34, from) >= 0) return null;
+  for (let c = head.indexOf(13, from); c >= 0; c = head.indexOf(13, c + 1)) if (head[c + 1] !== 10) return null;
+  const recs = splitRecords(head, from, delim, UNITS_MARKER);
+  const { names, width, units, first } = tableHead(recs, undefined, file);
+  if (recs.records <= first) return null;
+  // the first data record's line, and where it starts (records are lines here: no quotes)
+  const line = recs.recLine[first]!;
+  let start = from;
+  for (let l = 1; l < line; l++) start = bytes.indexOf(10, start) + 1;
+  const body = readNumericBody(bytes, start, line, delim, width);
+  if (!body) return null;
+  const rows = body.rows;
+  const columns: ColumnData[] = [];
+  for (let j = 0; j < width; j++) {
+    const u = units[j]?.trim() ?? "";
+    const v = body.values[j]!;
+    const isNull = body.nulls[j];
+    let empty = 0;
+    if (isNull) for (let i = 0; i < rows; i++) empty += isNull[i]!;
+    // as buildColumn: no value at all is float64 NaN, integers alone are int32 (the range was checked)
+    const c: ColumnData = empty === rows ? { name: names[j]!, kind: "float64", values: v.fill(NaN) } : body.integer[j] ? { name: names[j]!, kind: "int32", values: Int32Array.from(v) } : { name: names[j]!, kind: "float64", values: v };
+    if (unitCell(u) !== "none") c.meta = { unit: u };
+    if (isNull) c.nulls = isNull;
+    columns.push(c);
+  }
+  return { columns, rows, reasons: [], sourceRows: body.lines, metadata: new Map() };
+}
+
 /**
  * Reads CSV/TSV from UTF-8 bytes (a leading byte-order mark is skipped). Numbers are read
  * straight from the bytes; only text cells become strings.
@@ -472,20 +538,12 @@ export function parseCsvBytes(bytes: Uint8Array, options: CsvOptions): ParsedCol
   const from = bytes[0] === 0xef && bytes[1] === 0xbb && bytes[2] === 0xbf ? 3 : 0;
   const head = bytes[from] === 35 || bytes[from] === 0xef ? headText(bytes, from) : "";
   const ecsv = isEcsv(head) ? parseEcsvHeader(leadingComments(head), options.file) : undefined;
-  const recs = splitRecords(bytes, from, (ecsv ? ecsv.delimiter : delim).charCodeAt(0), UNITS_MARKER);
-  if (recs.records === 0) throw new PeculiarError("format", "no header row (the file has only comments or blank lines)", { file: options.file });
-  const headerCells = recs.recordCells(0);
-  const names = headerNames(headerCells);
-  const width = names.length;
-  if (ecsv) {
-    const listed = ecsv.columns.map((c) => c.name);
-    if (listed.join("\u0000") !== headerCells.map((c) => c.trim()).join("\u0000")) {
-      throw new PeculiarError("format", `ECSV header lists columns ${listed.join(", ")} but the header row has ${headerCells.join(", ")}`, { file: options.file, row: recs.recLine[0]! });
-    }
+  if (!ecsv && !options.generalRules) {
+    const plain = plainNumericTable(bytes, from, delim.charCodeAt(0), options.file);
+    if (plain) return plain;
   }
-  const hasUnits = !ecsv && (recs.marker || isUnitsRow(recs, width));
-  const units = hasUnits ? recs.recordCells(1) : [];
-  const first = hasUnits ? 2 : 1;
+  const recs = splitRecords(bytes, from, (ecsv ? ecsv.delimiter : delim).charCodeAt(0), UNITS_MARKER);
+  const { names, width, units, first } = tableHead(recs, ecsv, options.file);
   const rows = Math.max(0, recs.records - first);
   const reasons = new Array<string>(rows).fill("");
   const sourceRows = recs.recLine.slice(first, first + rows);
