@@ -81,14 +81,21 @@ function productError(a: number, b: number, p: number): number {
 
 /**
  * The double nearest to (wh + wl) * 10^q, where wh + wl > 0 is an integer held exactly by the two
- * doubles (|wl| <= ulp(wh) / 2) and |q| <= 64; NaN when too close to a rounding boundary to tell.
+ * doubles (|wl| <= ulp(wh) / 2) and |q| <= 64; NaN when too close to a rounding boundary to tell. The result goes to SCALED[0]: a double returned
+ * from a call that is not inlined is boxed, one heap number per cell read.
  */
-export function scaleDecimal(wh: number, wl: number, q: number): number {
+const SCALED = new Float64Array(1);
+
+function scaleDecimal(wh: number, wl: number, q: number): void {
   if (wl === 0 && wh <= 9007199254740992 && q >= -22 && q <= 22) {
     // Clinger's fast path: both operands exact, one correctly rounded operation.
-    return q >= 0 ? wh * EXACT[q]! : wh / EXACT[-q]!;
+    SCALED[0] = q >= 0 ? wh * EXACT[q]! : wh / EXACT[-q]!;
+    return;
   }
-  if (q < P_MIN || q > P_MAX) return NaN;
+  if (q < P_MIN || q > P_MAX) {
+    SCALED[0] = NaN;
+    return;
+  }
   const ph = powers();
   const ch = ph[q - P_MIN]!;
   const cl = POW_LO[q - P_MIN]!;
@@ -100,10 +107,13 @@ export function scaleDecimal(wh: number, wl: number, q: number): number {
   const hw = U32[HI]!;
   const half = HALF_ULP[(hw >>> 20) & 0x7ff]!;
   const margin = x * TWO_M95;
-  if (err >= 0) return err + margin < half ? x : NaN;
+  if (err >= 0) {
+    SCALED[0] = err + margin < half ? x : NaN;
+    return;
+  }
   // Below a power of two the gap to the next double down is half as wide.
   const below = (hw & 0xfffff) === 0 && U32[LO] === 0 ? half / 2 : half;
-  return margin - err < below ? x : NaN;
+  SCALED[0] = margin - err < below ? x : NaN;
 }
 
 
@@ -233,7 +243,8 @@ export function scanNumberPrefix(b: Uint8Array, s: number, e: number): number {
     const bb = wh - p;
     wl = p - (wh - bb) + (lo9 - bb);
   }
-  const v = scaleDecimal(wh, wl, q);
+  scaleDecimal(wh, wl, q);
+  const v = SCALED[0]!;
   scanned[0] = neg ? -v : v;
   return i;
 }
@@ -350,7 +361,8 @@ export function writeShortest(x: number, out: Uint8Array, pos: number): number {
       const s1 = ah + bk;
       const bb = s1 - ah;
       const wl = ah - (s1 - bb) + (bk - bb);
-      const v = scaleDecimal(s1, wl, n - k);
+      scaleDecimal(s1, wl, n - k);
+      const v = SCALED[0]!;
       if (v !== v) return -1;
       if (v !== ax) {
         if (k === 15 && pow2) return -1;
