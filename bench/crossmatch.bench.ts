@@ -188,7 +188,7 @@ async function main() {
     const one: number[] = [];
     const two: number[] = [];
     {
-      const pool = new BandPool(2, new URL("../../dist/crossmatch-worker.js", import.meta.url));
+      const pool = new BandPool(2, new URL("../../dist/helper-worker.js", import.meta.url));
       const A = { raDeg: p.raA, decDeg: p.decA };
       const Bs = { raDeg: p.raB, decDeg: p.decB };
       await crossMatchBanded(A, Bs, { radiusArcsec: RADIUS_ARCSEC }, 2, pool.run); // the worker's warm-up
@@ -201,7 +201,6 @@ async function main() {
         two.push((performance.now() - t) / 1000);
       }
       if (pool.size === 0) console.log("  (no worker script: npm run build first)");
-      await pool.close();
     }
     const idx: number[] = [];
     const mat: number[] = [];

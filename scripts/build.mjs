@@ -17,14 +17,13 @@ const node = {
 // Code splitting keeps each command's dependencies (arrow, d3, XML, ...) out of start-up: the command
 // table imports commands lazily, and with splitting each lands in its own chunk under dist/chunks/.
 rmSync("dist/chunks", { recursive: true, force: true });
-// dist/crossmatch-worker.js: the worker thread of the cross-match bands (src/crossmatch/threads.ts finds it next to the chunks);
-// dist/read-worker.js reads a second input while the first is read (src/catalogue/read-ahead.ts); dist/csv-worker.js
-// formats half of a large CSV output (src/catalogue/csv-threads.ts).
-// The CLI and its workers carry apache-arrow in the bundle: as ~160 separate ES modules it cost about
+// dist/helper-worker.js: the helper threads (src/helper-threads.ts finds it next to the chunks), shared by every job
+// run off the calling thread: reading a second input ahead, cross-match bands, half of a large CSV output.
+// The CLI and its helper carry apache-arrow in the bundle: as ~160 separate ES modules it cost about
 // 0.2 s of every start-up. The library entry keeps it external, so that a caller's own Arrow tables
 // are the same classes as ours.
 const cliExternal = { ...node, packages: undefined, external: ["d3", "d3-*", "kdbush", "geokdbush", "saxes", "playwright-core"] };
-await build({ ...cliExternal, entryPoints: { cli: "src/cli/main.ts", "crossmatch-worker": "src/crossmatch/worker.ts", "read-worker": "src/catalogue/read-worker.ts", "csv-worker": "src/catalogue/csv-worker.ts" }, outdir: "dist", splitting: true, chunkNames: "chunks/[name]-[hash]" });
+await build({ ...cliExternal, entryPoints: { cli: "src/cli/main.ts", "helper-worker": "src/helper-worker.ts" }, outdir: "dist", splitting: true, chunkNames: "chunks/[name]-[hash]" });
 await build({ ...node, entryPoints: { index: "src/index.ts" }, outdir: "dist" });
 chmodSync("dist/cli.js", 0o755);
 

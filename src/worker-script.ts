@@ -1,5 +1,5 @@
 /**
- * The bundled worker scripts (dist/crossmatch-worker.js, dist/read-worker.js, dist/csv-worker.js) are
+ * The bundled worker scripts (dist/helper-worker.js) are
  * found next to the code that runs: from dist/ or from dist/chunks/. Undefined where there is none
  * (the sources run directly, as under vitest): callers then do the work on their own thread. Node only.
  */

@@ -13,7 +13,7 @@ import { assertNotSameFile, writeFileAtomic } from "./atomic.js";
 import { arrowChunks, arrowFromTable, parseArrowColumns } from "./formats/arrow.js";
 import { parseCsvBytes } from "./formats/csv.js";
 import { csvBytes } from "./formats/csv-write.js";
-import { csvChunksThreaded, type CsvWorker } from "./csv-threads.js";
+import { csvChunksThreaded } from "./csv-threads.js";
 import { parseFitsColumns } from "./formats/fits.js";
 import { fitsFromTable } from "./formats/fits-write.js";
 import { finishTable, type ParsedColumns, type SourceInfo } from "./formats/table.js";
@@ -92,8 +92,6 @@ export interface WriteOptions {
   input?: string;
   /** Arrow: write the stream format (default for `.arrows`, else the file format). */
   stream?: boolean;
-  /** CSV/TSV: a worker started ahead (startCsvWorker) for the second half of a large table; stopped when not used. */
-  csvWorker?: CsvWorker;
 }
 
 async function readBytes(path: string): Promise<Uint8Array> {
@@ -228,25 +226,16 @@ export function encodeTable(table: Table, format: FormatName, options: { stream?
 }
 
 export async function writeTable(table: Table, path: string, options: WriteOptions = {}): Promise<void> {
-  let format: FormatName;
-  try {
-    if (options.input !== undefined) assertNotSameFile(options.input, path);
-    format = options.format ?? formatFromPath(path);
-  } catch (e) {
-    options.csvWorker?.stop();
-    throw e;
-  }
+  if (options.input !== undefined) assertNotSameFile(options.input, path);
+  const format: FormatName = options.format ?? formatFromPath(path);
   const stream = options.stream ?? formatExtension(path) === ".arrows";
   let data: Uint8Array | string | Iterable<Uint8Array> | AsyncIterable<Uint8Array>;
   try {
     // CSV/TSV goes to the file chunk by chunk as it is encoded (never the whole text at once), the
-    // second half of a large table formatted on a worker thread meanwhile (csv-threads.ts).
+    // second half of a large table formatted on a helper thread meanwhile (csv-threads.ts).
     const text = format === "csv" || format === "tsv";
-    if (text && !isGzipPath(path)) data = csvChunksThreaded(table, format === "tsv" ? { delimiter: "\t" } : {}, options.csvWorker ? { worker: options.csvWorker } : {});
-    else {
-      options.csvWorker?.stop();
-      data = format === "arrow" && !isGzipPath(path) ? arrowChunks(table, { stream }) : encodeTable(table, format, { stream });
-    }
+    if (text && !isGzipPath(path)) data = csvChunksThreaded(table, format === "tsv" ? { delimiter: "\t" } : {});
+    else data = format === "arrow" && !isGzipPath(path) ? arrowChunks(table, { stream }) : encodeTable(table, format, { stream });
   } catch (e) {
     if (e instanceof PeculiarError && e.place.file === undefined) throw new PeculiarError(e.code, e.message, { file: path }, { cause: e });
     throw e;

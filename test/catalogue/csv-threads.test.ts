@@ -1,13 +1,17 @@
 import { beforeAll, describe, expect, it } from "vitest";
+import { writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { pathToFileURL } from "node:url";
 import { tableFromColumns, type ColumnData } from "../../src/catalogue/columns.js";
 import { csvBytes } from "../../src/catalogue/formats/csv-write.js";
-import { csvChunksThreaded, startCsvWorker } from "../../src/catalogue/csv-threads.js";
-import { buildOnce, ROOT } from "../cli-helpers.js";
+import { csvChunksThreaded } from "../../src/catalogue/csv-threads.js";
+import { readTableAhead } from "../../src/catalogue/read-ahead.js";
+import { helperThread } from "../../src/helper-threads.js";
+import { buildOnce, ROOT, tempDir } from "../cli-helpers.js";
 
-// The worker script is the built one (dist/csv-worker.js); minRows 0 sends even small tables to it.
-const how = () => ({ workerUrl: pathToFileURL(join(ROOT, "dist", "csv-worker.js")), minRows: 0 });
+// The worker script is the built one (dist/helper-worker.js); minRows 0 sends even small tables to it.
+const url = () => pathToFileURL(join(ROOT, "dist", "helper-worker.js"));
+const how = () => ({ workerUrl: url(), minRows: 0 });
 
 async function joined(it: AsyncIterable<Uint8Array>): Promise<Uint8Array> {
   const parts: Uint8Array[] = [];
@@ -77,34 +81,32 @@ describe("csvChunksThreaded", () => {
     }
   });
 
-  it("uses a worker started ahead and gives the same bytes, then ends it", async () => {
+  it("formats on the helper that read an input before, and on this thread once that helper is stopped", async () => {
+    const { dir } = tempDir();
+    const f = join(dir, "in.csv");
+    writeFileSync(f, "id,ra\n1,2.5\n2,3.5\n");
+    const helper = helperThread(0, url())!;
+    expect((await readTableAhead(f, {}, { workerUrl: url(), minBytes: 0 })).numRows).toBe(2);
+    expect(helperThread(0, url())).toBe(helper); // the same thread, still running
     const t = table(4001);
-    const ahead = startCsvWorker(how())!;
-    const exited = new Promise((resolve) => ahead.worker.once("exit", resolve));
-    const got = await joined(csvChunksThreaded(t, { delimiter: "\t" }, { minRows: 0, worker: ahead }));
+    const got = await joined(csvChunksThreaded(t, { delimiter: "\t" }, how()));
     expect(Buffer.from(got).equals(Buffer.from(csvBytes(t, { delimiter: "\t" })))).toBe(true);
-    await exited;
-    expect(ahead.alive()).toBe(false);
+    expect(helper.alive).toBe(true);
+    helper.stop();
+    expect(helper.alive).toBe(false);
+    // a stopped helper is replaced by a new one when asked for; a job sent to the old one fails
+    await expect(helper.call("csv", {})).rejects.toThrow(/stopped/);
+    expect(helperThread(0, url())).not.toBe(helper);
+    expect(Buffer.from(await joined(csvChunksThreaded(t, {}, how()))).equals(Buffer.from(csvBytes(t)))).toBe(true);
   });
 
-  it("writes on this thread when the worker started ahead has already ended, and ends one a small table does not need", async () => {
+  it("writes on this thread when the helper thread fails", async () => {
     const t = table(1000);
-    const gone = startCsvWorker(how())!;
-    gone.stop();
-    await new Promise((resolve) => gone.worker.once("exit", resolve));
-    expect(Buffer.from(await joined(csvChunksThreaded(t, {}, { minRows: 0, worker: gone }))).equals(Buffer.from(csvBytes(t)))).toBe(true);
-    const unused = startCsvWorker(how())!;
-    const exited = new Promise((resolve) => unused.worker.once("exit", resolve));
-    expect(Buffer.from(await joined(csvChunksThreaded(t, {}, { minRows: 5000, worker: unused }))).equals(Buffer.from(csvBytes(t)))).toBe(true);
-    await exited;
-    expect(unused.alive()).toBe(false);
+    const bad = { workerUrl: new URL("data:text/javascript,throw new Error('no helper here')"), minRows: 0 };
+    expect(Buffer.from(await joined(csvChunksThreaded(t, {}, bad))).equals(Buffer.from(csvBytes(t)))).toBe(true);
   });
 
-  it("ends a worker started ahead when the delimiter is refused", async () => {
-    const ahead = startCsvWorker(how())!;
-    const exited = new Promise((resolve) => ahead.worker.once("exit", resolve));
-    expect(() => csvChunksThreaded(table(10), { delimiter: ";;" }, { worker: ahead })).toThrow(/one ASCII character/);
-    await exited;
-    expect(ahead.alive()).toBe(false);
+  it("refuses a bad delimiter before anything is written", () => {
+    expect(() => csvChunksThreaded(table(10), { delimiter: ";;" }, how())).toThrow(/one ASCII character/);
   });
 });

@@ -6,8 +6,8 @@ import { readTable } from "../../src/catalogue/io.js";
 import { readTableAhead } from "../../src/catalogue/read-ahead.js";
 import { buildOnce, ROOT, tempDir } from "../cli-helpers.js";
 
-// The worker script is the built one (dist/read-worker.js); minBytes 0 sends even small files to it.
-const how = () => ({ workerUrl: pathToFileURL(join(ROOT, "dist", "read-worker.js")), minBytes: 0 });
+// The worker script is the built one (dist/helper-worker.js); minBytes 0 sends even small files to it.
+const how = () => ({ workerUrl: pathToFileURL(join(ROOT, "dist", "helper-worker.js")), minBytes: 0 });
 
 describe("readTableAhead", () => {
   beforeAll(() => buildOnce(), 120_000);

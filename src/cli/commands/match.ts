@@ -9,7 +9,6 @@ import { COMMON_FLAGS, numberFlag, parseFlags } from "../command.js";
 import { usageError } from "../../errors.js";
 import { CATALOGUE_FLAGS, CATALOGUE_FLAGS_HELP, loadForCommand, parseCatalogueFlags, readAheadForCommand } from "../catalogue-flags.js";
 import { assertNotSameFile, formatFromPath, isGzipPath, writeFileAtomic, writeTable, type FormatName } from "../../catalogue/io.js";
-import { startCsvWorker } from "../../catalogue/csv-threads.js";
 import { parseAngleArcsec } from "../../crossmatch/radius.js";
 import { availableParallelism } from "node:os";
 import { crossMatchBanded, joinRows, matchCounts, JOIN_MODES, type JoinMode, type MatchOptions } from "../../crossmatch/match.js";
@@ -126,8 +125,6 @@ const command: Command = {
     const partitions = numberFlag(values.partitions, "partitions", 1, (x) => Number.isInteger(x) && x >= 1 && x <= 4096, "an integer 1..4096");
     const threads = numberFlag(values.threads, "threads", Math.min(MAX_DEFAULT_THREADS, availableParallelism()), (x) => Number.isInteger(x) && x >= 1 && x <= 256, "an integer 1..256");
     const threadsGiven = values.threads !== undefined;
-    // workers start now, so that their start-up overlaps the reading of the catalogues
-    const pool = threads > 1 && (threadsGiven || fileBytes(pathA) + fileBytes(pathB) >= POOL_MIN_BYTES) ? new BandPool(threads) : undefined;
     let aliasA = stem(pathA);
     let aliasB = stem(pathB);
     if (values.alias !== undefined) {
@@ -140,8 +137,6 @@ const command: Command = {
       aliasB = `${aliasB}_b`;
     }
     const flags = parseCatalogueFlags(values);
-    // likewise the worker that formats the second half of a large CSV/TSV output
-    const csvWorker = fileBytes(pathA) + fileBytes(pathB) >= POOL_MIN_BYTES && isTextOutput(out, flags.outFormat) ? startCsvWorker() : undefined;
     // progress: one self-erasing status line, only when stderr is a terminal
     const phase = (what: string) => {
       if (io.progress) io.stderr.write(`\r\x1b[Kmatch: ${what}`);
@@ -154,6 +149,9 @@ const command: Command = {
     phase(`reading ${pathA}`);
     // B is read on a worker thread while A is read here (a large text file; else it is read later here)
     const aheadB = readAheadForCommand(pathB, flags);
+    // the helper threads start now (or have, to read B), so that their start-up overlaps the reading;
+    // after the read job, a helper warms the band kernels (helper-threads.ts)
+    const pool = threads > 1 && (threadsGiven || fileBytes(pathA) + fileBytes(pathB) >= POOL_MIN_BYTES) ? new BandPool(threads) : undefined;
     let catA;
     try {
       catA = await loadForCommand(pathA, flags, noteIo, { index: 1, require: ["ra", "dec"] });
@@ -197,8 +195,6 @@ const command: Command = {
       result = await crossMatchBanded(sideA, sideB, opts, useThreads ? threads : 1, useThreads ? pool.run : undefined);
     } catch (e) {
       throw usageError(e instanceof Error ? e.message : String(e));
-    } finally {
-      void pool?.close();
     }
     if (radiusArcsec === undefined) io.note(`match: search radius ${result.searchRadiusArcsec.toPrecision(4)} arcsec (--sigma ${sigmaK} times the largest combined error)`);
     const rows = joinRows(result, join);
@@ -212,7 +208,7 @@ const command: Command = {
       rolesB: catB.roles,
     });
     phase(`writing ${out}`);
-    await writeTable(table, out, { ...(flags.outFormat ? { format: flags.outFormat } : {}), ...(csvWorker ? { csvWorker } : {}) });
+    await writeTable(table, out, flags.outFormat ? { format: flags.outFormat } : {});
     phaseDone();
 
     const counts = matchCounts(result);
