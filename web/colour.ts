@@ -4,6 +4,7 @@
  * neutral at zero that stands out on the dark plot background. Palette of our own.
  */
 import * as d3 from "d3";
+import { binOf, CELL_BINS } from "./cells.js";
 
 /** From -limit to +limit. */
 export const VPEC_STOPS = ["#2a4f9a", "#3f86c6", "#8fc2e3", "#e9e4d8", "#f4b980", "#e0713a", "#a82c1b"];
@@ -43,7 +44,7 @@ export function symmetricLimitKmS(v: ArrayLike<number>): number {
 }
 
 /** Number of colour bins used to batch canvas drawing (one fillStyle per bin). */
-export const N_BINS = 31;
+export const N_BINS = CELL_BINS;
 /** Bin of an unknown value. */
 export const UNKNOWN_BIN = N_BINS;
 
@@ -70,13 +71,7 @@ export function binByColour(v: ArrayLike<number>, scale: VelocityScale, draw?: U
       bin[i] = 255;
       continue;
     }
-    const x = v[i]!;
-    let b: number;
-    if (!Number.isFinite(x)) b = UNKNOWN_BIN;
-    else {
-      const t = (Math.max(-lim, Math.min(lim, x)) + lim) / (2 * lim);
-      b = Math.min(N_BINS - 1, Math.floor(t * N_BINS));
-    }
+    const b = binOf(v[i]!, lim);
     bin[i] = b;
     count[b + 1]!++;
   }

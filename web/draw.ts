@@ -7,6 +7,7 @@ import * as d3 from "d3";
 import type { BinnedColours, VelocityScale } from "./colour.js";
 import { binAll, binByColour, GROUP_RING, N_BINS, OUTLIER_MARK, SELECTED_RING } from "./colour.js";
 import type { ViewState } from "./state.js";
+import { writeSquares, type CellBox } from "./cells.js";
 
 /** A reusable pixel layer the size of the canvas: points are written straight into its buffer. */
 interface Layer {
@@ -68,9 +69,9 @@ function composite(ctx: CanvasRenderingContext2D, L: Layer, x0: number, y0: numb
 
 /**
  * Draws the rows of `bins` (only those in `rows`, increasing, when given) at (px, py) as squares of
- * half-size r (CSS px); returns how many had a position. The squares are written into a pixel buffer and composited onto the canvas in one
- * drawImage (honouring its clip and `alpha`) of the rectangle they cover: one fillRect per point is
- * ten times slower in a software-rendered canvas at 1e5 points.
+ * half-size r (CSS px); returns how many had a position. The squares are written into a pixel buffer
+ * and composited onto the canvas in one drawImage (honouring its clip and `alpha`) of the rectangle
+ * they cover: one fillRect per point is ten times slower in a software-rendered canvas at 1e5 points.
  */
 export function drawBinnedPoints(
   ctx: CanvasRenderingContext2D,
@@ -86,98 +87,42 @@ export function drawBinnedPoints(
   const t = ctx.getTransform();
   const k = t.a;
   const L = layerFor(W, H);
-  const buf = L.buf;
-  const size = Math.max(1, Math.round(2 * r * k));
-  const ox = t.e - r * k;
-  const oy = t.f - r * k;
-  let drawn = 0;
-  // the pixel rows and columns written, so that only they are cleared, uploaded and composited
-  let bx0 = W;
-  let by0 = H;
-  let bx1 = 0;
-  let by1 = 0;
+  const { size, ox, oy } = squareOf(ctx, r);
   // Unknown values (bin N_BINS) first, so galaxies with a measured velocity are drawn over them; rows in
   // index order within each pass (the columns are read in sequence; no colour is always on top).
+  const unknownRows = bins.order.subarray(bins.start[N_BINS]!, bins.start[N_BINS + 1]!);
+  const box = writeSquares(L.bins, W, H, px, py, bins.bin, k, ox, oy, size, rows ?? null, unknownRows);
+  compositeCells(ctx, L.bins, box, bins.colours, alpha);
+  return box.drawn;
+}
+
+/** Device size and corner offset of the squares of half-size r (CSS px) on ctx. */
+export function squareOf(ctx: CanvasRenderingContext2D, r: number): { size: number; ox: number; oy: number } {
+  const t = ctx.getTransform();
+  const k = t.a;
+  return { size: Math.max(1, Math.round(2 * r * k)), ox: t.e - r * k, oy: t.f - r * k };
+}
+
+/**
+ * Turns the cells of `box` (bin + 1 per device pixel, a buffer the size of ctx's canvas) into colours,
+ * clears them, and composites the rectangle onto ctx (honouring its clip and `alpha`).
+ */
+export function compositeCells(ctx: CanvasRenderingContext2D, cells: Uint8Array, box: CellBox, colours: string[], alpha: number): void {
+  const W = ctx.canvas.width;
+  const L = layerFor(W, ctx.canvas.height);
+  const buf = L.buf;
   const colourOf = new Uint32Array(N_BINS + 2);
-  for (let c = 0; c <= N_BINS; c++) colourOf[c + 1] = pixelOf(bins.colours[c]!);
-  const cells = L.bins;
-  const bin = bins.bin;
-  const n = bin.length;
-  // pass 0: the rows of unknown value, listed in bins.order (in index order); pass 1: all the others.
-  // With `rows` (increasing; the others have no position), both passes go through rows alone.
-  const unknown0 = bins.start[N_BINS]!;
-  const unknownRows = bins.order.subarray(unknown0, bins.start[N_BINS + 1]!);
-  // A square whose corner rounds to [1, W - size] x [1, H - size] lies wholly on the canvas: there the
-  // corner is floor(v + 0.5) (Math.round of v >= 0.5) and no clamp is needed.
-  const xFast = W - size + 0.5;
-  const yFast = H - size + 0.5;
-  for (let pass = 0; pass < 2; pass++) {
-    const list = rows ?? (pass === 0 ? unknownRows : null);
-    const m = list ? list.length : n;
-    for (let j = 0; j < m; j++) {
-      const i = list ? list[j]! : j;
-      const b = bin[i]!;
-      if (pass === 0 ? b !== N_BINS : b >= N_BINS) continue;
-      const colour = b + 1;
-      const x = px[i]!;
-      const y = py[i]!;
-      if (x !== x || y !== y) continue;
-      drawn++;
-      const vx = x * k + ox;
-      const vy = y * k + oy;
-      if (vx >= 0.5 && vy >= 0.5 && vx < xFast && vy < yFast) {
-        const x0 = (vx + 0.5) | 0;
-        const y0 = (vy + 0.5) | 0;
-        if (x0 < bx0) bx0 = x0;
-        if (x0 + size > bx1) bx1 = x0 + size;
-        if (y0 < by0) by0 = y0;
-        if (y0 + size > by1) by1 = y0 + size;
-        let q = y0 * W + x0;
-        if (size === 3) {
-          // the common case (1.5 px points at 1x), unrolled
-          cells[q] = colour;
-          cells[q + 1] = colour;
-          cells[q + 2] = colour;
-          q += W;
-          cells[q] = colour;
-          cells[q + 1] = colour;
-          cells[q + 2] = colour;
-          q += W;
-          cells[q] = colour;
-          cells[q + 1] = colour;
-          cells[q + 2] = colour;
-          continue;
-        }
-        for (let yy = 0; yy < size; yy++, q += W) for (let xx = q, end = q + size; xx < end; xx++) cells[xx] = colour;
-        continue;
-      }
-      // near or beyond an edge: clamped to the canvas
-      const x0 = Math.max(0, Math.round(vx));
-      const y0 = Math.max(0, Math.round(vy));
-      const x1 = Math.min(W, x0 + size);
-      const y1 = Math.min(H, y0 + size);
-      if (x0 >= x1 || y0 >= y1) continue;
-      if (x0 < bx0) bx0 = x0;
-      if (x1 > bx1) bx1 = x1;
-      if (y0 < by0) by0 = y0;
-      if (y1 > by1) by1 = y1;
-      for (let yy = y0; yy < y1; yy++) {
-        const row = yy * W;
-        for (let xx = row + x0, end = row + x1; xx < end; xx++) cells[xx] = colour;
-      }
-    }
-  }
+  for (let c = 0; c <= N_BINS; c++) colourOf[c + 1] = pixelOf(colours[c]!);
   // the bins written become colours (bin 0 of colourOf, 0, is "none"), and the cells are cleared
-  for (let yy = by0; yy < by1; yy++) {
-    for (let q = yy * W + bx0, end = yy * W + bx1; q < end; q++) {
+  for (let yy = box.y0; yy < box.y1; yy++) {
+    for (let q = yy * W + box.x0, end = yy * W + box.x1; q < end; q++) {
       const c = cells[q]!;
       if (c === 0) continue;
       buf[q] = colourOf[c]!;
       cells[q] = 0;
     }
   }
-  composite(ctx, L, bx0, by0, bx1, by1, alpha);
-  return drawn;
+  composite(ctx, L, box.x0, box.y0, box.x1, box.y1, alpha);
 }
 
 /** The pixels of a mark at one device scale: offsets from the centre pixel and their alpha (0-255). */

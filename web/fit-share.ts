@@ -12,8 +12,12 @@
  * flag and closes the run (CTL_CLAIM = 0) before it writes anything else; so a thread holding a claim
  * always reads the row count, kernel and parameters of the run it claimed from, and no chunk is ever
  * still running when the next run starts.
+ *
+ * The same machinery runs one drawing job after a re-centring: the Hubble diagram's points (cells.ts,
+ * kernel HUBBLE_CELLS, one chunk), which the worker takes while the page draws the slices.
  */
 import { chunksOf, KERNELS, workBytes, workOn, type RecentreWork } from "../src/flow/recentre-kernels.js";
+import { HJ_SLOTS, hubbleCells, type HubbleJob } from "./cells.js";
 
 /** Control words: the run's number, the worker's readiness, the claim word, the run's rows and kernel. */
 export const CTL_SEQ = 0;
@@ -24,6 +28,10 @@ export const CTL_KERNEL = 5;
 const CTL_WORDS = 8;
 /** Most chunks a run can have (the claim word keeps the count in 15 bits). */
 export const MAX_CHUNKS = 0x7fff;
+/** The kernel number of the Hubble diagram's points (cells.ts), a run of one chunk; the re-centring kernels are 0.. */
+export const HUBBLE_CELLS = 16;
+/** Device pixels of the largest canvas whose Hubble cells the worker can write (two buffers of this many bytes). */
+export const MAX_CELLS = 1 << 22;
 
 /** The claim word of a run of `chunks` chunks, none claimed yet. */
 export function openClaim(chunks: number): number {
@@ -38,13 +46,31 @@ export interface FitShare {
   done: Int32Array;
   /** The workspace, with room for `capacity` rows (its n is set per run from CTL_ROWS). */
   work: RecentreWork;
+  /** The Hubble diagram's job (cells.ts): inputs and outputs for `capacity` rows, cells for MAX_CELLS pixels. */
+  hubble: HubbleJob;
 }
 
 function layout(capacity: number) {
   const chunks = chunksOf(capacity);
   const doneAt = CTL_WORDS * 4;
   const workAt = Math.ceil((doneAt + chunks * 4) / 8) * 8;
-  return { chunks, doneAt, workAt, bytes: workAt + workBytes(capacity) };
+  const hubbleAt = Math.ceil((workAt + workBytes(capacity)) / 8) * 8;
+  const hubbleBytes = HJ_SLOTS * 8 + 7 * capacity * 8 + capacity + 2 * MAX_CELLS;
+  return { chunks, doneAt, workAt, hubbleAt, bytes: hubbleAt + hubbleBytes };
+}
+
+function hubbleOn(buffer: SharedArrayBuffer, at: number, capacity: number): HubbleJob {
+  const f64 = (len: number) => {
+    const a = new Float64Array(buffer, at, len);
+    at += len * 8;
+    return a;
+  };
+  const u8 = (len: number) => {
+    const a = new Uint8Array(buffer, at, len);
+    at += len;
+    return a;
+  };
+  return { P: f64(HJ_SLOTS), s: f64(capacity), v: f64(capacity), u: f64(capacity), px: f64(capacity), py: f64(capacity), rx: f64(capacity), ry: f64(capacity), bin: u8(capacity), cellsMain: u8(MAX_CELLS), cellsRes: u8(MAX_CELLS) };
 }
 
 export function fitShareBytes(capacity: number): number {
@@ -59,6 +85,7 @@ export function fitShareViews(buffer: SharedArrayBuffer, capacity: number): FitS
     ctl: new Int32Array(buffer, 0, CTL_WORDS),
     done: new Int32Array(buffer, L.doneAt, L.chunks),
     work: workOn(buffer, L.workAt, capacity),
+    hubble: hubbleOn(buffer, L.hubbleAt, capacity),
   };
 }
 
@@ -74,8 +101,12 @@ export function claimChunks(share: FitShare): number {
     const c = v & 0xffff;
     if (c >= v >>> 16) return ran;
     if (Atomics.compareExchange(ctl, CTL_CLAIM, v, v + 1) !== v) continue;
-    work.n = Atomics.load(ctl, CTL_ROWS);
-    KERNELS[Atomics.load(ctl, CTL_KERNEL)]!(work, c);
+    const kernel = Atomics.load(ctl, CTL_KERNEL);
+    if (kernel === HUBBLE_CELLS) hubbleCells(share.hubble);
+    else {
+      work.n = Atomics.load(ctl, CTL_ROWS);
+      KERNELS[kernel]!(work, c);
+    }
     Atomics.store(done, c, 1);
     ran++;
   }

@@ -12,7 +12,8 @@
  * more than the storage holds, also run there.
  */
 import { chunksOf, KERNELS, ONE_THREAD, type KernelId, type RecentreThreads, type RecentreWork } from "../src/flow/recentre-kernels.js";
-import { claimChunks, CTL_CLAIM, CTL_KERNEL, CTL_READY, CTL_ROWS, CTL_SEQ, fitShareBytes, fitShareViews, MAX_CHUNKS, openClaim, type FitShare } from "./fit-share.js";
+import { claimChunks, CTL_CLAIM, CTL_KERNEL, CTL_READY, CTL_ROWS, CTL_SEQ, fitShareBytes, fitShareViews, HUBBLE_CELLS, MAX_CHUNKS, openClaim, type FitShare } from "./fit-share.js";
+import { hubbleCells, type HubbleOffload } from "./cells.js";
 
 /** Below this many rows a run is not shared: waking the worker costs more than it saves (at 1e4 rows two threads took 17 ms against 12 on one, npm run bench view). */
 export const MIN_SPLIT_ROWS = 32_768;
@@ -40,6 +41,43 @@ export class TwoThreads implements RecentreThreads {
     private readonly worker: Worker,
   ) {
     Atomics.store(share.ctl, CTL_CLAIM, 0);
+    this.hubble = {
+      job: this.share.hubble,
+      start: () => {
+        if (!this.ready || this.pendingJob) return false;
+        const { ctl, done } = this.share;
+        done.fill(0, 0, 1);
+        Atomics.store(ctl, CTL_ROWS, 0);
+        Atomics.store(ctl, CTL_KERNEL, HUBBLE_CELLS);
+        Atomics.store(ctl, CTL_CLAIM, openClaim(1));
+        Atomics.add(ctl, CTL_SEQ, 1);
+        Atomics.notify(ctl, CTL_SEQ);
+        this.pendingJob = true;
+        return true;
+      },
+      finish: () => {
+        if (!this.pendingJob) return;
+        const { ctl, done } = this.share;
+        const open = openClaim(1);
+        if (Atomics.compareExchange(ctl, CTL_CLAIM, open, open + 1) === open) {
+          hubbleCells(this.share.hubble);
+          this.jobsHere++;
+        } else {
+          const t0 = performance.now();
+          while (Atomics.load(done, 0) === 0) {
+            if (performance.now() - t0 > WORKER_TIMEOUT_MS) {
+              this.broken = true;
+              this.worker.terminate();
+              hubbleCells(this.share.hubble);
+              break;
+            }
+          }
+          this.jobsThere++;
+        }
+        Atomics.store(ctl, CTL_CLAIM, 0);
+        this.pendingJob = false;
+      },
+    };
   }
 
   /** Starts the fit worker with room for `capacity` rows; null where the page cannot share memory. */
@@ -98,6 +136,7 @@ export class TwoThreads implements RecentreThreads {
   }
 
   run(w: RecentreWork, kernel: KernelId, chunks: number): void {
+    this.hubble.finish();
     if (w !== this.share.work || w.n < MIN_SPLIT_ROWS || !this.ready) {
       ONE_THREAD.run(w, kernel, chunks);
       return;
@@ -128,6 +167,19 @@ export class TwoThreads implements RecentreThreads {
     this.sharedChunks += chunks;
     this.workerChunks += chunks - mine;
   }
+
+  /**
+   * The Hubble diagram's points on the worker (cells.ts): start() opens a run of one chunk that only
+   * the worker claims (the page goes on drawing); finish() claims it here if the worker has not, else
+   * waits for it, then closes the run. No re-centring run may start in between (the page's code is
+   * synchronous from start() to finish()).
+   */
+  readonly hubble: HubbleOffload;
+  /** A drawing job is open (between hubble.start and hubble.finish). */
+  private pendingJob = false;
+  /** Drawing jobs run here (the worker had not taken them) and on the worker. */
+  jobsHere = 0;
+  jobsThere = 0;
 
   results(w: RecentreWork): { s: Float64Array; vAB: Float64Array; cosL: Float64Array; used: Uint8Array } {
     if (w !== this.share.work) return ONE_THREAD.results(w);

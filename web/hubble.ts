@@ -7,8 +7,10 @@
 import * as d3 from "d3";
 import { CanvasPanel, type PanelActions } from "./panel.js";
 import type { ViewState } from "./state.js";
-import { FAINT_INK, INK, ORIGIN_MARK, type VelocityScale } from "./colour.js";
-import { drawMarks, drawPointsWithSelection } from "./draw.js";
+import { binAll, binByColour, FAINT_INK, INK, ORIGIN_MARK, type VelocityScale } from "./colour.js";
+import { compositeCells, DIM_ALPHA, drawBinnedPoints, drawMarks } from "./draw.js";
+import { HJ_H, HJ_K, HJ_LIM, HJ_N, HJ_ORIGIN_ROW, HJ_OUT, HJ_OX, HJ_OY, HJ_RA, HJ_RB, HJ_SIZE, HJ_SLOTS, HJ_W, HJ_XA, HJ_XB, HJ_YA, HJ_YB, hubbleCells, type CellBox, type HubbleOffload } from "./cells.js";
+import { MAX_CELLS } from "./fit-share.js";
 import type { OriginView } from "./origin.js";
 import { originLimits } from "./limits.js";
 
@@ -19,24 +21,40 @@ const M = { left: 62, right: 14, top: 28, bottom: 38, gap: 10 };
 export class HubblePanel extends CanvasPanel {
   readonly scale: VelocityScale;
   /** Screen positions in the residual panel. */
-  private rx = new Float64Array(0);
-  private ry = new Float64Array(0);
+  private rx: Float64Array;
+  private ry: Float64Array;
   /** The view from here, for the dashed comparison line. */
   home: OriginView;
 
-  constructor(parent: HTMLElement, state: ViewState, actions: PanelActions, scale: VelocityScale, home: OriginView, tools: HTMLElement[]) {
+  /** The worker that may make the points (fit-threads.ts), or null; and whether prepare() hands them to it. */
+  private readonly offload: HubbleOffload | null;
+  useWorker = true;
+
+  constructor(parent: HTMLElement, state: ViewState, actions: PanelActions, scale: VelocityScale, home: OriginView, tools: HTMLElement[], offload: HubbleOffload | null = null) {
     super(parent, state, actions, { id: "hubble", title: "Hubble diagram", tools });
     this.scale = scale;
     this.home = home;
     this.pointRadius = 1.4;
+    const n = state.data.n;
+    this.offload = offload && offload.job.px.length >= n ? offload : null;
+    // the points job writes every row of the positions; with a worker they are its shared arrays
+    this.clearsPositions = false;
+    if (this.offload) {
+      const j = this.offload.job;
+      this.px = j.px.subarray(0, n).fill(NaN);
+      this.py = j.py.subarray(0, n).fill(NaN);
+      this.rx = j.rx.subarray(0, n).fill(NaN);
+      this.ry = j.ry.subarray(0, n).fill(NaN);
+    } else {
+      this.rx = new Float64Array(n).fill(NaN);
+      this.ry = new Float64Array(n).fill(NaN);
+    }
   }
 
-  protected draw(ctx: CanvasRenderingContext2D): number {
+  /** The scales of the diagram and the residual panel at a panel size (CSS px). */
+  private geometry(w: number, h: number) {
     const st = this.state;
-    const d = st.data;
     const o = st.origin;
-    const w = this.width;
-    const h = this.height;
     const plotH = h - M.top - M.bottom - M.gap;
     const mainH = Math.round(plotH * 0.68);
     const y0 = M.top;
@@ -53,40 +71,116 @@ export class HubblePanel extends CanvasPanel {
       .nice();
     const uLim = Number.isFinite(uAbs) && uAbs > 0 ? uAbs * 1.15 : 500;
     const yr = d3.scaleLinear().domain([-uLim, uLim]).range([r0 + resH, r0]).nice();
+    return { mainH, y0, r0, resH, H, x, y, yr };
+  }
 
+  /**
+   * The points job's parameters (cells.ts) for scales g on a canvas of W x H device pixels drawn at
+   * scale k: screen x = xa s + xb etc. (the linear scales as a x + b, so the loop over 1e5 rows makes
+   * no function calls), the squares' size and corner offset as drawBinnedPoints has them.
+   */
+  private jobParams(g: ReturnType<HubblePanel["geometry"]>, W: number, H: number, k: number, e: number, f: number): Float64Array {
+    const lin = (fn: d3.ScaleLinear<number, number>): [number, number] => {
+      const b = fn(0);
+      return [fn(1) - b, b];
+    };
+    const [xa, xb] = lin(g.x);
+    const [ya, yb] = lin(g.y);
+    const [ra, rb] = lin(g.yr);
+    const r = this.pointRadius;
+    const P = new Float64Array(HJ_SLOTS);
+    P[HJ_N] = this.state.data.n;
+    P[HJ_XA] = xa;
+    P[HJ_XB] = xb;
+    P[HJ_YA] = ya;
+    P[HJ_YB] = yb;
+    P[HJ_RA] = ra;
+    P[HJ_RB] = rb;
+    P[HJ_LIM] = this.scale.limit;
+    P[HJ_K] = k;
+    P[HJ_OX] = e - r * k;
+    P[HJ_OY] = f - r * k;
+    P[HJ_SIZE] = Math.max(1, Math.round(2 * r * k));
+    P[HJ_W] = W;
+    P[HJ_H] = H;
+    P[HJ_ORIGIN_ROW] = this.state.origin.row;
+    return P;
+  }
+
+  /** The job handed to the worker by prepare(), for the origin it was made for. */
+  private prepared: { origin: OriginView; P: Float64Array } | null = null;
+  /** Page-side buffers of the points job (when it runs here). */
+  private local: { W: number; H: number; bin: Uint8Array; cellsMain: Uint8Array; cellsRes: Uint8Array } | null = null;
+
+  /**
+   * Hands this panel's points (positions, bins and cells of both clouds) to the worker, to be picked up
+   * by the next draw while the page draws other panels. Does nothing without a worker or when the
+   * canvas is larger than its cell buffers; the draw then makes them itself (the same code, the same cells).
+   */
+  prepare(): void {
+    const off = this.offload;
+    if (!off || !this.useWorker || this.prepared) return;
+    const [w, h, dpr] = this.plannedSize();
+    const W = Math.round(w * dpr);
+    const H = Math.round(h * dpr);
+    const n = this.state.data.n;
+    if (W * H > MAX_CELLS || n > off.job.s.length) return;
+    const o = this.state.origin;
+    const P = this.jobParams(this.geometry(w, h), W, H, dpr, 0, 0);
+    const job = off.job;
+    job.P.set(P);
+    job.s.set(o.s);
+    job.v.set(o.v);
+    job.u.set(o.u);
+    if (off.start()) this.prepared = { origin: o, P };
+  }
+
+  /** The outputs of the points job for these parameters: the prepared one if it matches, else run here. */
+  private runPoints(P: Float64Array): { cellsMain: Uint8Array; cellsRes: Uint8Array; out: Float64Array } {
+    const o = this.state.origin;
+    const prep = this.prepared;
+    this.prepared = null;
+    if (prep && this.offload) {
+      this.offload.finish();
+      const job = this.offload.job;
+      if (prep.origin === o && prep.P.every((v, i) => Object.is(v, P[i]))) return { cellsMain: job.cellsMain, cellsRes: job.cellsRes, out: job.P.subarray(HJ_OUT) };
+      // made for another origin or size: its cells are cleared and the job is run here
+      const W = job.P[HJ_W]!;
+      for (const [cells, at] of [[job.cellsMain, HJ_OUT], [job.cellsRes, HJ_OUT + 4]] as const) {
+        const [x0, y0, x1, y1] = job.P.subarray(at, at + 4);
+        for (let yy = y0!; yy < y1!; yy++) cells.fill(0, yy * W + x0!, yy * W + x1!);
+      }
+    }
+    const W = P[HJ_W]!;
+    const H = P[HJ_H]!;
+    if (!this.local || this.local.W !== W || this.local.H !== H) {
+      this.local = { W, H, bin: new Uint8Array(this.state.data.n), cellsMain: new Uint8Array(W * H), cellsRes: new Uint8Array(W * H) };
+    }
+    const L = this.local;
+    hubbleCells({ P, s: o.s, v: o.v, u: o.u, px: this.px, py: this.py, rx: this.rx, ry: this.ry, bin: L.bin, cellsMain: L.cellsMain, cellsRes: L.cellsRes });
+    return { cellsMain: L.cellsMain, cellsRes: L.cellsRes, out: P.subarray(HJ_OUT) };
+  }
+
+  protected draw(ctx: CanvasRenderingContext2D): number {
+    const st = this.state;
+    const o = st.origin;
+    const w = this.width;
+    const h = this.height;
+    const geo = this.geometry(w, h);
+    const { mainH, y0, r0, resH, H, x, y, yr } = geo;
     const px = this.px;
     const py = this.py;
-    const n = d.n;
-    let unknown = 0;
-    let drawn = 0;
-    // Main panel points (px/py hold the main-panel positions for picking); residual points separately.
-    if (this.rx.length !== n) {
-      this.rx = new Float64Array(n);
-      this.ry = new Float64Array(n);
-    }
-    const rx = this.rx.fill(NaN);
-    const ry = this.ry.fill(NaN);
-    // The linear scales as a x + b, so the loop over 1e5 rows makes no function calls.
-    const lin = (f: d3.ScaleLinear<number, number>): [number, number] => {
-      const b = f(0);
-      return [f(1) - b, b];
-    };
-    const [xa, xb] = lin(x);
-    const [ya, yb] = lin(y);
-    const [ra, rb] = lin(yr);
-    for (let i = 0; i < n; i++) {
-      const s = o.s[i]!;
-      const v = o.v[i]!;
-      if (!Number.isFinite(s) || !Number.isFinite(v)) {
-        if (i !== o.row) unknown++;
-        continue;
-      }
-      px[i] = xa * s + xb;
-      py[i] = ya * v + yb;
-      rx[i] = px[i]!;
-      ry[i] = ra * o.u[i]! + rb;
-      drawn++;
-    }
+    const rx = this.rx;
+    const ry = this.ry;
+    const t = ctx.getTransform();
+    const pts = this.runPoints(this.jobParams(geo, ctx.canvas.width, ctx.canvas.height, t.a, t.e, t.f));
+    const box = (at: number): CellBox => ({ x0: pts.out[at]!, y0: pts.out[at + 1]!, x1: pts.out[at + 2]!, y1: pts.out[at + 3]!, drawn: 0 });
+    const drawn = pts.out[8]!;
+    const unknown = pts.out[9]!;
+    const bins = binAll(o.u, this.scale);
+    this.bins = bins;
+    const alpha = st.nSelected > 0 ? DIM_ALPHA : 1;
+    const selectedBins = st.nSelected > 0 ? binByColour(o.u, this.scale, st.selected) : null;
     // Frames and zero lines.
     ctx.strokeStyle = "#2a3039";
     ctx.lineWidth = 1;
@@ -97,8 +191,8 @@ export class HubblePanel extends CanvasPanel {
     ctx.rect(M.left, y0, w - M.left - M.right, mainH);
     ctx.clip();
     if (drawn <= MAX_POINTS_WITH_ERROR_BARS) this.errorBars(ctx, x, y, H);
-    const { bins } = drawPointsWithSelection(ctx, st, px, py, o.u, this.scale, this.pointRadius);
-    this.bins = bins;
+    compositeCells(ctx, pts.cellsMain, box(0), bins.colours, alpha);
+    if (selectedBins) drawBinnedPoints(ctx, px, py, selectedBins, this.pointRadius + 0.5, 1);
     drawMarks(ctx, st, px, py, this.pointRadius);
     ctx.restore();
     ctx.save();
@@ -112,7 +206,8 @@ export class HubblePanel extends CanvasPanel {
     ctx.lineTo(w - M.right, yr(0));
     ctx.stroke();
     ctx.globalAlpha = 1;
-    drawPointsWithSelection(ctx, st, rx, ry, o.u, this.scale, this.pointRadius);
+    compositeCells(ctx, pts.cellsRes, box(4), bins.colours, alpha);
+    if (selectedBins) drawBinnedPoints(ctx, rx, ry, selectedBins, this.pointRadius + 0.5, 1);
     drawMarks(ctx, st, rx, ry, this.pointRadius);
     ctx.restore();
 

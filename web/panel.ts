@@ -98,11 +98,17 @@ export abstract class CanvasPanel {
   /** Fills px/py for the rows it draws, draws the canvas and the overlay; returns the number drawn. */
   protected abstract draw(ctx: CanvasRenderingContext2D): number;
 
-  render(): void {
+  /** The size (CSS px) and device pixel ratio the next render() draws at. */
+  protected plannedSize(): [number, number, number] {
     const [bw, bh] = (this.bodySize ??= [this.body.clientWidth, this.body.clientHeight]);
-    const w = Math.max(50, Math.floor(bw));
-    const h = Math.max(50, Math.floor(bh));
-    const dpr = window.devicePixelRatio || 1;
+    return [Math.max(50, Math.floor(bw)), Math.max(50, Math.floor(bh)), window.devicePixelRatio || 1];
+  }
+
+  /** render() sets px and py to NaN before draw(); a panel whose draw writes every row turns this off. */
+  protected clearsPositions = true;
+
+  render(): void {
+    const [w, h, dpr] = this.plannedSize();
     if (w !== this.width || h !== this.height || this.canvas.width !== Math.round(w * dpr)) {
       this.width = w;
       this.height = h;
@@ -116,8 +122,10 @@ export abstract class CanvasPanel {
     ctx.setTransform(dpr, 0, 0, dpr, 0, 0);
     ctx.fillStyle = BACKGROUND;
     ctx.fillRect(0, 0, w, h);
-    this.px.fill(NaN);
-    this.py.fill(NaN);
+    if (this.clearsPositions) {
+      this.px.fill(NaN);
+      this.py.fill(NaN);
+    }
     this.layer.selectAll("*").remove();
     this.drawn = this.draw(ctx);
     this.index = null;

@@ -110,4 +110,35 @@ describe("the page's re-centring fit on two threads", () => {
       node.forEach((x, j) => expect(Math.abs(fits.two[k]![j]! - x)).toBeLessThanOrEqual(REL_TOL * Math.abs(x)));
     });
   });
+
+  it("draws the Hubble diagram's points on the worker with the pixels the page alone draws", async () => {
+    const r = await view<{ two: string[]; one: string[]; there: number; here: number }>(`(() => {
+      const hash = () => {
+        const c = v.panels.hubble.canvas;
+        const d = c.getContext("2d").getImageData(0, 0, c.width, c.height).data;
+        let h = 2166136261 >>> 0;
+        for (let i = 0; i < d.length; i++) h = Math.imul(h ^ d[i], 16777619) >>> 0;
+        return h.toString(16) + " " + v.panels.hubble.drawn;
+      };
+      const before = v.fitThreads();
+      const two = [], one = [];
+      for (const row of ${JSON.stringify(rows)}) {
+        v.useFitThreads(true);
+        v.recentreOn(row);
+        two.push(hash());
+        v.useFitThreads(false);
+        v.recentreOn(row);
+        one.push(hash());
+      }
+      v.useFitThreads(true);
+      v.goHome();
+      const after = v.fitThreads();
+      return { two, one, there: after.drawJobsThere - before.drawJobsThere, here: after.drawJobsHere - before.drawJobsHere };
+    })()`);
+    expect(r.two).toEqual(r.one);
+    // each re-centring with the worker handed the points on; the page runs a job the worker has not
+    // taken by the time it needs it (a worker without a free core), so only some need be the worker's
+    expect(r.there + r.here).toBeGreaterThanOrEqual(rows.length);
+    expect(r.there).toBeGreaterThan(0);
+  });
 });

@@ -1,0 +1,211 @@
+/**
+ * Points as colour-bin cells: the part of drawing that is arithmetic on typed arrays (no DOM), so that
+ * the page and its fit worker run the same code. A cell buffer holds one byte per device pixel, colour
+ * bin + 1 (0 = nothing); draw.ts turns the cells into pixels and composites them.
+ *
+ *  - binOf: the colour bin of a value on the symmetric velocity scale (colour.ts bins with it);
+ *  - writeSquares: points as squares of cells, unknown values first, rows in index order;
+ *  - hubbleCells: the Hubble diagram's two point clouds (diagram and residual panel) from s, v and u.
+ */
+
+/** Number of colour bins (colour.ts's N_BINS; here so that the worker needs no DOM module). */
+export const CELL_BINS = 31;
+
+/** The bin of x on the scale -lim .. +lim (clamped); CELL_BINS for a value that is not finite. */
+export function binOf(x: number, lim: number): number {
+  if (!Number.isFinite(x)) return CELL_BINS;
+  const t = (Math.max(-lim, Math.min(lim, x)) + lim) / (2 * lim);
+  return Math.min(CELL_BINS - 1, Math.floor(t * CELL_BINS));
+}
+
+/** Where squares were written: the device-pixel rectangle [x0, x1) x [y0, y1) (empty when x1 <= x0), and the rows drawn. */
+export interface CellBox {
+  x0: number;
+  y0: number;
+  x1: number;
+  y1: number;
+  drawn: number;
+}
+
+/**
+ * Writes each row's square (size x size cells, corner round(p * k + o), clamped to the W x H buffer) as
+ * bin + 1: first the rows of bin CELL_BINS (unknown value), then those of bins below it, each pass in
+ * index order, so a measured value is drawn over an unknown one and a later row over an earlier one.
+ * Rows of other bins (255: not drawn) and rows without a position are skipped. `rows` (increasing)
+ * limits both passes to those rows; `unknownRows` (increasing), when given, lists the unknown rows
+ * for the first pass (else it scans every row).
+ */
+export function writeSquares(
+  cells: Uint8Array,
+  W: number,
+  H: number,
+  px: Float64Array,
+  py: Float64Array,
+  bin: Uint8Array,
+  k: number,
+  ox: number,
+  oy: number,
+  size: number,
+  rows: Int32Array | null,
+  unknownRows: Int32Array | null,
+): CellBox {
+  let bx0 = W;
+  let by0 = H;
+  let bx1 = 0;
+  let by1 = 0;
+  let drawn = 0;
+  const n = bin.length;
+  // A square whose corner rounds to [1, W - size] x [1, H - size] lies wholly in the buffer: there the
+  // corner is floor(v + 0.5) (Math.round of v >= 0.5) and no clamp is needed.
+  const xFast = W - size + 0.5;
+  const yFast = H - size + 0.5;
+  for (let pass = 0; pass < 2; pass++) {
+    const list = rows ?? (pass === 0 ? unknownRows : null);
+    const m = list ? list.length : n;
+    for (let j = 0; j < m; j++) {
+      const i = list ? list[j]! : j;
+      const b = bin[i]!;
+      if (pass === 0 ? b !== CELL_BINS : b >= CELL_BINS) continue;
+      const colour = b + 1;
+      const x = px[i]!;
+      const y = py[i]!;
+      if (x !== x || y !== y) continue;
+      drawn++;
+      const vx = x * k + ox;
+      const vy = y * k + oy;
+      if (vx >= 0.5 && vy >= 0.5 && vx < xFast && vy < yFast) {
+        const x0 = (vx + 0.5) | 0;
+        const y0 = (vy + 0.5) | 0;
+        if (x0 < bx0) bx0 = x0;
+        if (x0 + size > bx1) bx1 = x0 + size;
+        if (y0 < by0) by0 = y0;
+        if (y0 + size > by1) by1 = y0 + size;
+        let q = y0 * W + x0;
+        if (size === 3) {
+          // the common case (1.5 px points at 1x), unrolled
+          cells[q] = colour;
+          cells[q + 1] = colour;
+          cells[q + 2] = colour;
+          q += W;
+          cells[q] = colour;
+          cells[q + 1] = colour;
+          cells[q + 2] = colour;
+          q += W;
+          cells[q] = colour;
+          cells[q + 1] = colour;
+          cells[q + 2] = colour;
+          continue;
+        }
+        for (let yy = 0; yy < size; yy++, q += W) for (let xx = q, end = q + size; xx < end; xx++) cells[xx] = colour;
+        continue;
+      }
+      // near or beyond an edge: clamped to the buffer
+      const x0 = Math.max(0, Math.round(vx));
+      const y0 = Math.max(0, Math.round(vy));
+      const x1 = Math.min(W, x0 + size);
+      const y1 = Math.min(H, y0 + size);
+      if (x0 >= x1 || y0 >= y1) continue;
+      if (x0 < bx0) bx0 = x0;
+      if (x1 > bx1) bx1 = x1;
+      if (y0 < by0) by0 = y0;
+      if (y1 > by1) by1 = y1;
+      for (let yy = y0; yy < y1; yy++) {
+        const row = yy * W;
+        for (let xx = row + x0, end = row + x1; xx < end; xx++) cells[xx] = colour;
+      }
+    }
+  }
+  return { x0: bx0, y0: by0, x1: bx1, y1: by1, drawn };
+}
+
+/** Slots of the Hubble job's parameters (a Float64Array, shared with the worker). */
+export const HJ_N = 0;
+export const HJ_XA = 1; // screen x = xa s + xb (CSS px), y = ya v + yb, residual y = ra u + rb
+export const HJ_XB = 2;
+export const HJ_YA = 3;
+export const HJ_YB = 4;
+export const HJ_RA = 5;
+export const HJ_RB = 6;
+export const HJ_LIM = 7; // colour scale limit (km/s)
+export const HJ_K = 8; // device px per CSS px
+export const HJ_OX = 9; // device offset of a square's corner
+export const HJ_OY = 10;
+export const HJ_SIZE = 11;
+export const HJ_W = 12; // canvas, device px
+export const HJ_H = 13;
+export const HJ_ORIGIN_ROW = 14;
+/** Outputs: main box (4), residual box (4), rows drawn, rows with unknown distance or velocity. */
+export const HJ_OUT = 16;
+export const HJ_SLOTS = 32;
+
+export interface HubbleJob {
+  P: Float64Array;
+  s: Float64Array;
+  v: Float64Array;
+  u: Float64Array;
+  /** Outputs: screen positions (CSS px, NaN when not drawn), the rows' bins, and the two cell buffers (W x H each). */
+  px: Float64Array;
+  py: Float64Array;
+  rx: Float64Array;
+  ry: Float64Array;
+  bin: Uint8Array;
+  cellsMain: Uint8Array;
+  cellsRes: Uint8Array;
+}
+
+/**
+ * The Hubble diagram's points: each row's position in the diagram (s, v) and in the residual panel
+ * (s, u), its colour bin of u, and both clouds written as cells (writeSquares); boxes and counts go to
+ * P[HJ_OUT ...]. Every row of px, py, rx, ry and bin is written.
+ */
+export function hubbleCells(job: HubbleJob): void {
+  const { P, s: S, v: V, u: U, px, py, rx, ry, bin } = job;
+  const n = P[HJ_N]!;
+  const xa = P[HJ_XA]!;
+  const xb = P[HJ_XB]!;
+  const ya = P[HJ_YA]!;
+  const yb = P[HJ_YB]!;
+  const ra = P[HJ_RA]!;
+  const rb = P[HJ_RB]!;
+  const lim = P[HJ_LIM]!;
+  const originRow = P[HJ_ORIGIN_ROW]!;
+  let unknown = 0;
+  for (let i = 0; i < n; i++) {
+    const s = S[i]!;
+    const v = V[i]!;
+    bin[i] = binOf(U[i]!, lim);
+    if (!Number.isFinite(s) || !Number.isFinite(v)) {
+      if (i !== originRow) unknown++;
+      px[i] = NaN;
+      py[i] = NaN;
+      rx[i] = NaN;
+      ry[i] = NaN;
+      continue;
+    }
+    const x = xa * s + xb;
+    px[i] = x;
+    py[i] = ya * v + yb;
+    rx[i] = x;
+    ry[i] = ra * U[i]! + rb;
+  }
+  const W = P[HJ_W]!;
+  const H = P[HJ_H]!;
+  const k = P[HJ_K]!;
+  const ox = P[HJ_OX]!;
+  const oy = P[HJ_OY]!;
+  const size = P[HJ_SIZE]!;
+  const b = bin.subarray(0, n);
+  const main = writeSquares(job.cellsMain, W, H, px, py, b, k, ox, oy, size, null, null);
+  const res = writeSquares(job.cellsRes, W, H, rx, ry, b, k, ox, oy, size, null, null);
+  P.set([main.x0, main.y0, main.x1, main.y1, res.x0, res.y0, res.x1, res.y1, main.drawn, unknown], HJ_OUT);
+}
+
+/** Runs the Hubble job on another thread (fit-threads.ts) while the page draws other panels. */
+export interface HubbleOffload {
+  /** The shared job: the panel writes P and the inputs, and reads the outputs after finish(). */
+  readonly job: HubbleJob;
+  /** Hands the job to the worker; false when the worker cannot take it now (then run it here). */
+  start(): boolean;
+  /** Returns once the job has run: here, if the worker has not taken it yet, else when the worker is done. */
+  finish(): void;
+}
