@@ -9,6 +9,7 @@ import { readTable, writeTable, formatFromPath, assertNotSameFile, parseFormatNa
 import { tableFromColumns, columnMeta, float64Column } from "../../src/catalogue/columns.js";
 import { META } from "../../src/catalogue/meta.js";
 import { PeculiarError } from "../../src/errors.js";
+import { writeFileAtomic } from "../../src/catalogue/atomic.js";
 
 let dir = "";
 beforeAll(() => {
@@ -245,6 +246,26 @@ describe("atomic writes", () => {
     await writeTable(sample(), path);
     expect(readdirSync(sub)).toEqual(["out.csv"]);
     expect(readFileSync(path, "utf8")).toContain("g1");
+  });
+
+  it("writes chunks made while earlier ones are written, in order, and leaves nothing when making them fails", async () => {
+    const sub = join(dir, "sub-chunks");
+    await import("node:fs").then((fs) => fs.mkdirSync(sub));
+    // 40 chunks of 300 000 bytes: several batches of 4 MiB, the last one short
+    const chunk = (k: number) => new Uint8Array(300_000).fill(65 + (k % 26));
+    async function* chunks(failAt = -1) {
+      for (let k = 0; k < 40; k++) {
+        if (k === failAt) throw new Error("formatting failed");
+        yield chunk(k);
+        if (k % 7 === 0) await new Promise((r) => setImmediate(r));
+      }
+    }
+    await writeFileAtomic(join(sub, "big.bin"), chunks());
+    const got = readFileSync(join(sub, "big.bin"));
+    expect(got.length).toBe(40 * 300_000);
+    for (let k = 0; k < 40; k++) expect(got[k * 300_000]).toBe(65 + (k % 26));
+    await expect(writeFileAtomic(join(sub, "cut.bin"), chunks(30))).rejects.toThrow("formatting failed");
+    expect(readdirSync(sub)).toEqual(["big.bin"]);
   });
 
   it("writeTable refuses to write over the input it is told about, and leaves it as it was", async () => {
