@@ -11,7 +11,7 @@
  * null is returned and re-centring runs on the page's thread. Fits of fewer than MIN_SPLIT_ROWS rows, or
  * more than the storage holds, also run there.
  */
-import { chunksOf, KERNELS, ONE_THREAD, type KernelId, type RecentreThreads, type RecentreWork } from "../src/flow/recentre-kernels.js";
+import { chunksOf, KERNELS, ONE_THREAD, P_H0, P_HAS_ERR, POINT_ROWS, type KernelId, type RecentreThreads, type RecentreWork } from "../src/flow/recentre-kernels.js";
 import { claimChunks, CTL_CLAIM, CTL_KERNEL, CTL_READY, CTL_ROWS, CTL_SEQ, fitShareBytes, fitShareViews, HUBBLE_CELLS, MAX_CHUNKS, openClaim, type FitShare } from "./fit-share.js";
 import { hubbleCells, type HubbleOffload } from "./cells.js";
 
@@ -180,6 +180,23 @@ export class TwoThreads implements RecentreThreads {
   /** Drawing jobs run here (the worker had not taken them) and on the worker. */
   jobsHere = 0;
   jobsThere = 0;
+
+  /** The parameters (P_H0, P_HAS_ERR) the shared point rows were made for; NaN: not made. */
+  private pointRowsFor: [number, number] = [NaN, NaN];
+
+  /**
+   * The adopted points stay from fit to fit, so the log fit's rows that depend on them alone are made
+   * once (POINT_ROWS, shared like any run) and SETUP reads them; other points make them in SETUP.
+   */
+  pointRows(w: RecentreWork, chunks: number): boolean {
+    if (w !== this.share.work || !this.adopted) return false;
+    const key: [number, number] = [w.P[P_H0]!, w.P[P_HAS_ERR]!];
+    if (key[0] !== this.pointRowsFor[0] || key[1] !== this.pointRowsFor[1]) {
+      this.run(w, POINT_ROWS, chunks);
+      this.pointRowsFor = key;
+    }
+    return true;
+  }
 
   results(w: RecentreWork): { s: Float64Array; vAB: Float64Array; cosL: Float64Array; used: Uint8Array } {
     if (w !== this.share.work) return ONE_THREAD.results(w);

@@ -9,6 +9,8 @@
  *             fit's normal equations; with P[PACK], the log fit's rows (below).
  *   LOG_PASS  one Gauss-Newton step of the log fit's normal equations (logStepSums).
  *   RESIDUAL  sum of squared residuals of the final parameters over the used rows.
+ *   POINT_ROWS the log fit's rows that depend on the point alone (unit vector, ln D, fractional error),
+ *             for every row, once for points that stay from fit to fit (the view's); SETUP reads them.
  *
  * The log fit's rows, indexed like the input rows (member = 1 for those in the fit): a = unit line of
  * sight, dc = a . r_A (closest approach), b2 = |r_A|^2 - dc^2, q0 = V_B - a . v_A, lnD = ln D_obs, f =
@@ -46,12 +48,14 @@ export const P_PACK = 21; // SETUP also writes the log fit's rows
 export const P_H = 22; // current slope (LOG_PASS, RESIDUAL)
 export const P_D = 23; // current dipole (3)
 export const P_FROZEN = 26; // LOG_PASS: rows keep their side
+export const P_POINT_ROWS = 27; // SETUP: ax, ay, az, lnD and f already hold every row's values (POINT_ROWS ran)
 export const PARAMS = 32;
 
 export const SETUP = 0;
 export const LOG_PASS = 1;
 export const RESIDUAL = 2;
-export type KernelId = typeof SETUP | typeof LOG_PASS | typeof RESIDUAL;
+export const POINT_ROWS = 3;
+export type KernelId = typeof SETUP | typeof LOG_PASS | typeof RESIDUAL | typeof POINT_ROWS;
 
 export interface RecentreWork {
   /** Rows of this fit (the arrays may be longer). */
@@ -166,6 +170,7 @@ export function setupChunk(w: RecentreWork, c: number): void {
   const hasErr = P[P_HAS_ERR] !== 0;
   const hasUse = P[P_HAS_USE] !== 0;
   const pack = P[P_PACK] !== 0;
+  const madeRows = P[P_POINT_ROWS] !== 0;
   const rA2 = ox * ox + oy * oy + oz * oz;
   let a00 = 0, a01 = 0, a02 = 0, a03 = 0, a11 = 0, a12 = 0, a13 = 0, a22 = 0, a23 = 0, a33 = 0;
   let b0 = 0, b1 = 0, b2 = 0, b3 = 0, wyy = 0;
@@ -186,11 +191,23 @@ export function setupChunk(w: RecentreWork, c: number): void {
     const ux = dx / si;
     const uy = dy / si;
     const uz = dz / si;
-    const di = norm3(x[i]!, y[i]!, z[i]!);
-    if (!(di > 0)) continue;
-    const nbx = x[i]! / di;
-    const nby = y[i]! / di;
-    const nbz = z[i]! / di;
+    let nbx: number;
+    let nby: number;
+    let nbz: number;
+    let di = NaN;
+    if (madeRows) {
+      // POINT_ROWS's unit vector (NaN where |r| is not > 0, and such a row ends unused either way)
+      nbx = AX[i]!;
+      nby = AY[i]!;
+      nbz = AZ[i]!;
+      if (nbx !== nbx) continue;
+    } else {
+      di = norm3(x[i]!, y[i]!, z[i]!);
+      if (!(di > 0)) continue;
+      nbx = x[i]! / di;
+      nby = y[i]! / di;
+      nbz = z[i]! / di;
+    }
     const cl = nbx * ux + nby * uy + nbz * uz;
     cosL[i] = cl;
     let v: number;
@@ -232,18 +249,46 @@ export function setupChunk(w: RecentreWork, c: number): void {
     rows++;
     if (pack) {
       const dc = nbx * ox + nby * oy + nbz * oz;
-      AX[i] = nbx;
-      AY[i] = nby;
-      AZ[i] = nbz;
       DC[i] = dc;
       B2[i] = Math.max(0, rA2 - dc * dc);
       Q0[i] = vr[i]! - (nbx * ovx + nby * ovy + nbz * ovz);
-      LND[i] = Math.log(di);
-      FR[i] = Number.isFinite(e) ? e / (h0 * di) : 0;
+      if (!madeRows) {
+        AX[i] = nbx;
+        AY[i] = nby;
+        AZ[i] = nbz;
+        LND[i] = Math.log(di);
+        FR[i] = Number.isFinite(e) ? e / (h0 * di) : 0;
+      }
       member[i] = 1;
     }
   }
   putSums(partials, c, a00, a01, a02, a03, a11, a12, a13, a22, a23, a33, b0, b1, b2, b3, wyy, rows);
+}
+
+/**
+ * POINT_ROWS for one chunk: every row's ax, ay, az, lnD and f (as SETUP makes them for its members; ax
+ * = NaN where |r| is not > 0), for a workspace whose points stay from fit to fit, so that SETUP
+ * (with P[P_POINT_ROWS]) reads them instead of making them again. Reads P[P_H0] and P[P_HAS_ERR].
+ */
+export function pointRowsChunk(w: RecentreWork, c: number): void {
+  const { x, y, z, vrErr, ax: AX, ay: AY, az: AZ, lnD: LND, f: FR, P } = w;
+  const h0 = P[P_H0]!;
+  const hasErr = P[P_HAS_ERR] !== 0;
+  const i1 = Math.min(w.n, (c + 1) * CHUNK_ROWS);
+  for (let i = c * CHUNK_ROWS; i < i1; i++) {
+    // the expressions of SETUP, so that the values are its values to the last bit
+    const di = norm3(x[i]!, y[i]!, z[i]!);
+    if (!(di > 0)) {
+      AX[i] = NaN;
+      continue;
+    }
+    const e = hasErr ? vrErr[i]! : 0;
+    AX[i] = x[i]! / di;
+    AY[i] = y[i]! / di;
+    AZ[i] = z[i]! / di;
+    LND[i] = Math.log(di);
+    FR[i] = Number.isFinite(e) ? e / (h0 * di) : 0;
+  }
 }
 
 /**
@@ -361,7 +406,7 @@ export function residualChunk(w: RecentreWork, c: number): void {
   partials[at + 15] = nR;
 }
 
-export const KERNELS: readonly ((w: RecentreWork, c: number) => void)[] = [setupChunk, logPassChunk, residualChunk];
+export const KERNELS: readonly ((w: RecentreWork, c: number) => void)[] = [setupChunk, logPassChunk, residualChunk, pointRowsChunk];
 
 /**
  * Where re-centring's chunks run. work() gives the workspace for the points of one fit: the caller's
@@ -374,6 +419,12 @@ export interface RecentreThreads {
   work(points: { x: Float64Array; y: Float64Array; z: Float64Array; vr: Float64Array; vrErr?: Float64Array; use?: Uint8Array }, withLogRows: boolean): RecentreWork;
   run(w: RecentreWork, kernel: KernelId, chunks: number): void;
   results(w: RecentreWork): { s: Float64Array; vAB: Float64Array; cosL: Float64Array; used: Uint8Array };
+  /**
+   * Optional: true when w's ax, ay, az, lnD and f hold every row's point rows for the parameters in
+   * w.P (P_H0, P_HAS_ERR), having run POINT_ROWS if they did not (only for points that stay from fit
+   * to fit). SETUP then reads them.
+   */
+  pointRows?(w: RecentreWork, chunks: number): boolean;
 }
 
 const EMPTY_F64 = new Float64Array(0);

@@ -51,6 +51,7 @@ import {
   P_OVX,
   P_OX,
   P_PACK,
+  P_POINT_ROWS,
   P_SS2,
   PARTIAL_SUMS,
   RESIDUAL,
@@ -194,6 +195,8 @@ export function recentre(points: RecentrePoints, origin: RecentreOrigin, opts: R
   P[P_HAS_USE] = points.use ? 1 : 0;
   P[P_PACK] = mayLog ? 1 : 0;
   const chunks = chunksOf(n);
+  // the log fit's rows of the points alone, made once for points that stay (threads.pointRows)
+  if (mayLog && threads.pointRows?.(w, chunks)) P[P_POINT_ROWS] = 1;
   // the linear fit's normal equations (fitHubbleFlow's, with the slope held at h0 when fitH0 is false),
   // summed as the rows are made: v_AB = H s + d . e_AB, error sigma_i and sigmaStar in quadrature
   threads.run(w, SETUP, chunks);

@@ -6,7 +6,7 @@
  */
 import { describe, expect, it } from "vitest";
 import { recentre, type Recentred } from "../../src/flow/recentre.js";
-import { CHUNK_ROWS, KERNELS, ONE_THREAD, P_H0, P_HAS_ERR, P_PACK, P_SS2, SETUP, workBytes, workOn, type RecentreThreads, type RecentreWork } from "../../src/flow/recentre-kernels.js";
+import { CHUNK_ROWS, KERNELS, ONE_THREAD, P_H0, P_HAS_ERR, P_PACK, P_SS2, POINT_ROWS, SETUP, workBytes, workOn, type KernelId, type RecentreThreads, type RecentreWork } from "../../src/flow/recentre-kernels.js";
 import { makeMockUniverse } from "../../src/flow/mock.js";
 import { flowPoints } from "../../src/flow/bulkflow.js";
 import { flowRowsOf } from "./mock-rows.js";
@@ -32,7 +32,7 @@ function sharedInOrder(capacity: number, order: (chunks: number) => number[]): R
       if (points.use) w.use.set(points.use);
       return w;
     },
-    run(work: RecentreWork, kernel: 0 | 1 | 2, chunks: number) {
+    run(work: RecentreWork, kernel: KernelId, chunks: number) {
       for (const c of order(chunks)) KERNELS[kernel]!(work, c);
       self.runs++;
     },
@@ -86,6 +86,37 @@ describe("re-centring's chunk kernels", () => {
     sameFit(recentre(pts, { index: 11 }, opts), recentre(pts, { index: 11 }, { ...opts, threads: shared }));
     // the linear estimator and the major form through the same workspace
     for (const o of [{ ...opts, estimator: "linear" as const }, { ...opts, form: "major" as const }]) sameFit(recentre(pts, { index: 12 }, o), recentre(pts, { index: 12 }, { ...o, threads: shared }));
+  });
+
+  it("give the same fit to the last bit when the rows of the points alone are made once and kept (POINT_ROWS)", () => {
+    const kept = sharedInOrder(n, range);
+    let made = 0;
+    let madeFor = NaN;
+    const threads: RecentreThreads = {
+      ...kept,
+      pointRows(w, chunks) {
+        if (w.P[P_H0] !== madeFor) {
+          kept.run(w, POINT_ROWS, chunks);
+          madeFor = w.P[P_H0]!;
+          made++;
+        }
+        return true;
+      },
+    };
+    // origins on and off the catalogue, rows left out, and another H0 (the fractional errors change)
+    const use = new Uint8Array(n).fill(1);
+    for (let i = 0; i < n; i += 5) use[i] = 0;
+    for (const [index, p, o] of [
+      [3, pts, opts],
+      [777, { ...pts, use }, opts],
+      [n - 1, pts, { ...opts, h0: 73 }],
+      [40, pts, { ...opts, h0: 73 }],
+    ] as const) {
+      sameFit(recentre(p, { index }, o), recentre(p, { index }, { ...o, threads }));
+    }
+    const free = { x: 10, y: -20, z: 5, vr: 900 };
+    sameFit(recentre(pts, free, opts), recentre(pts, free, { ...opts, threads }));
+    expect(made).toBe(3);
   });
 
   it("write only their own chunk's rows", () => {
