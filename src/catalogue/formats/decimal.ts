@@ -323,7 +323,8 @@ export function writeShortest(x: number, out: Uint8Array, pos: number): number {
   const Bi = B | 0; // < 1e8: integer arithmetic from here on
   for (let k = 15; k <= 17; k++) {
     const unit = UNIT[k]!;
-    const tail = (Bi % unit) + frac; // V minus floor(V / unit) * unit
+    const below = (Bi / unit) | 0; // floor(V / unit) - A * 10^(k - 9): one division, its remainder by product
+    const tail = Bi - below * unit + frac; // V minus floor(V / unit) * unit
     const halfUnit = unit / 2;
     if (Math.abs(tail - halfUnit) < 1e-6) {
       // A near tie at 15 digits lies far outside the interval (both neighbours fail); later ones need the exact rule.
@@ -342,7 +343,7 @@ export function writeShortest(x: number, out: Uint8Array, pos: number): number {
       continue;
     }
     let a = A | 0;
-    let bk = ((Bi / unit) | 0) + (up ? 1 : 0);
+    let bk = below + (up ? 1 : 0);
     const bMax = UNIT[26 - k]!; // 10^(k - 9)
     if (bk >= bMax) {
       bk -= bMax;
