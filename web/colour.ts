@@ -49,8 +49,8 @@ export const N_BINS = CELL_BINS;
 export const UNKNOWN_BIN = N_BINS;
 
 export interface BinnedColours {
-  /** Row order sorted by bin (counting sort), and where each bin starts in it; bin N_BINS = unknown. */
-  order: Int32Array;
+  /** Row order sorted by bin (counting sort; made when first read), and where each bin starts in it; bin N_BINS = unknown. */
+  readonly order: Int32Array;
   start: Int32Array;
   colours: string[];
   /** Each row's bin (255: not drawn). */
@@ -76,18 +76,28 @@ export function binByColour(v: ArrayLike<number>, scale: VelocityScale, draw?: U
     count[b + 1]!++;
   }
   for (let b = 1; b < N_BINS + 2; b++) count[b]! += count[b - 1]!;
-  const start = count.slice();
-  const fill = count.slice(0, N_BINS + 1);
-  const order = new Int32Array(start[N_BINS + 1]!);
-  for (let i = 0; i < n; i++) {
-    const b = bin[i]!;
-    if (b === 255) continue;
-    order[fill[b]!++] = i;
-  }
+  const start = count;
   const colours: string[] = [];
   for (let b = 0; b < N_BINS; b++) colours.push(scale(-lim + ((b + 0.5) / N_BINS) * 2 * lim));
   colours.push(UNKNOWN_COLOUR);
-  return { order, start, colours, bin };
+  // the row order is made when first asked for (the vector export): drawing needs only the bins
+  let order: Int32Array | null = null;
+  return {
+    start,
+    colours,
+    bin,
+    get order(): Int32Array {
+      if (order) return order;
+      const fill = start.slice(0, N_BINS + 1);
+      order = new Int32Array(start[N_BINS + 1]!);
+      for (let i = 0; i < n; i++) {
+        const b = bin[i]!;
+        if (b === 255) continue;
+        order[fill[b]!++] = i;
+      }
+      return order;
+    },
+  };
 }
 
 const binCache = new WeakMap<object, { scale: VelocityScale; bins: BinnedColours }>();

@@ -90,11 +90,14 @@ export function drawBinnedPoints(
   const { size, ox, oy } = squareOf(ctx, r);
   // Unknown values (bin N_BINS) first, so galaxies with a measured velocity are drawn over them; rows in
   // index order within each pass (the columns are read in sequence; no colour is always on top).
-  const unknownRows = bins.order.subarray(bins.start[N_BINS]!, bins.start[N_BINS + 1]!);
-  const box = writeSquares(L.bins, W, H, px, py, bins.bin, k, ox, oy, size, rows ?? null, unknownRows);
+  // (no unknown row: the first pass has nothing to look for; else it looks through the bins)
+  const noUnknown = bins.start[N_BINS] === bins.start[N_BINS + 1];
+  const box = writeSquares(L.bins, W, H, px, py, bins.bin, k, ox, oy, size, rows ?? null, noUnknown ? NO_ROWS : null);
   compositeCells(ctx, L.bins, box, bins.colours, alpha);
   return box.drawn;
 }
+
+const NO_ROWS = new Int32Array(0);
 
 /** Device size and corner offset of the squares of half-size r (CSS px) on ctx. */
 export function squareOf(ctx: CanvasRenderingContext2D, r: number): { size: number; ox: number; oy: number } {

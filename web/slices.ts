@@ -41,7 +41,7 @@ export class SlicePanel extends CanvasPanel {
   override vectorExtras(): string {
     const bins = this.bins;
     const L = this.lines;
-    if (!bins || !L || bins.order.length > 20_000) return super.vectorExtras();
+    if (!bins || !L || bins.start[N_BINS + 1]! > 20_000) return super.vectorExtras();
     let lineSvg = "";
     for (let bn = 0; bn < N_BINS; bn++) {
       if (L.start[bn] === L.start[bn + 1]) continue;
