@@ -3,7 +3,7 @@
  * (src/helper-worker.ts), each started when first asked for and then shared by every job this
  * process sends off its own thread: reading an input ahead (catalogue/read-ahead.ts), cross-match
  * bands (crossmatch/threads.ts), the second half of a CSV output (catalogue/csv-threads.ts). A run
- * so pays for one thread start-up, not one per job. A job is one message {id, job, ...}; the reply
+ * so pays for one thread start-up, not one per job. A job is one message {id, job, data}; the reply
  * carries the id back, and the helper runs its jobs in the order they were sent. An idle helper does
  * not keep the process alive. Where no worker script is found (vitest runs the sources directly),
  * helperThread gives undefined and callers do the work on their own thread.
@@ -40,16 +40,16 @@ export class HelperThread {
   }
 
   /**
-   * Sends a job; the promise is the helper's reply (the job's own fields, errors included), or a
+   * Sends a job with its data; the promise is the helper's reply (the job's own fields, errors included), or a
    * rejection when the thread fails or stops before it replies. `transfer` lists buffers to move, not copy.
    */
-  call<R>(job: HelperJob, message: object, transfer: ArrayBuffer[] = []): Promise<R> {
+  call<R>(job: HelperJob, data: object, transfer: ArrayBuffer[] = []): Promise<R> {
     if (this.dead) return Promise.reject(new Error("helper thread stopped"));
     const id = this.nextId++;
     return new Promise<R>((resolve, reject) => {
       this.pending.set(id, { resolve: resolve as (reply: unknown) => void, reject });
       this.worker.ref(); // a job in flight keeps the process alive until its reply is back
-      this.worker.postMessage({ ...message, id, job }, transfer);
+      this.worker.postMessage({ id, job, data }, transfer);
     });
   }
 

@@ -13,9 +13,9 @@ type Handler = (m: never) => { reply: object; transfer: ArrayBuffer[] } | Promis
 const JOBS: Record<HelperJob, Handler> = { read: readJob, csv: csvJob, band: bandJob, "warm-bands": warmBandsJob };
 
 const port = parentPort;
-port?.on("message", async (m: { id: number; job: HelperJob }) => {
+port?.on("message", async (m: { id: number; job: HelperJob; data: unknown }) => {
   try {
-    const { reply, transfer } = await JOBS[m.job](m as never);
+    const { reply, transfer } = await JOBS[m.job](m.data as never);
     port.postMessage({ ...reply, id: m.id }, transfer);
   } catch (e) {
     port.postMessage({ id: m.id, error: { message: e instanceof Error ? e.message : String(e) } });

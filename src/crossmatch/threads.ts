@@ -12,6 +12,8 @@ import type { PairList } from "./zones.js";
 
 export class BandPool {
   private readonly helpers: HelperThread[] = [];
+  /** Bands whose pairs came back from a helper (the others ran on the calling thread). */
+  bandsOnHelpers = 0;
 
   /**
    * `threads` in all, this one included: helpers 0 .. threads - 2 (the process's shared ones, started
@@ -45,6 +47,7 @@ export class BandPool {
           const m = await h.call<{ a?: Int32Array; b?: Int32Array; sepRad?: Float64Array; error?: { message: string } }>("band", { job: shared[k]! });
           if (m.error || !m.a || !m.b || !m.sepRad) throw new Error(m.error?.message ?? "band job failed");
           out[k] = { a: m.a, b: m.b, sepRad: m.sepRad, length: m.a.length };
+          this.bandsOnHelpers++;
         } catch {
           out[k] = degreeBandPairs(shared[k]!); // a failed helper's band runs here
           return;

@@ -57,11 +57,13 @@ describe("the worker pool", () => {
     const pool = new BandPool(2, workerUrl);
     expect(pool.size).toBe(1);
     for (const bands of [2, 3]) same(await crossMatchBanded(sideA, sideB, { radiusArcsec: 5 }, bands, pool.run), crossMatch(sideA, sideB, { radiusArcsec: 5 }));
+    expect(pool.bandsOnHelpers).toBeGreaterThan(0);
   });
 
   it("runs a failed helper's bands on the calling thread", async () => {
     const pool = new BandPool(2, new URL("data:text/javascript,throw new Error('no worker here')"));
     same(await crossMatchBanded(sideA, sideB, { radiusArcsec: 5 }, 4, pool.run), crossMatch(sideA, sideB, { radiusArcsec: 5 }));
+    expect(pool.bandsOnHelpers).toBe(0);
   });
 
   it("without a worker script runs every band here", async () => {
