@@ -200,12 +200,140 @@ export function hubbleCells(job: HubbleJob): void {
   P.set([main.x0, main.y0, main.x1, main.y1, res.x0, res.y0, res.x1, res.y1, main.drawn, unknown], HJ_OUT);
 }
 
-/** Runs the Hubble job on another thread (fit-threads.ts) while the page draws other panels. */
-export interface HubbleOffload {
-  /** The shared job: the panel writes P and the inputs, and reads the outputs after finish(). */
-  readonly job: HubbleJob;
-  /** Hands the job to the worker; false when the worker cannot take it now (then run it here). */
-  start(): boolean;
-  /** Returns once the job has run: here, if the worker has not taken it yet, else when the worker is done. */
-  finish(): void;
+/** Slots of a slice job's parameters (a Float64Array, shared with the worker). */
+export const SJ_N = 0;
+export const SJ_IA = 1; // the axes (0 = SGX, 1 = SGY, 2 = SGZ) across, up, and across the slab
+export const SJ_IB = 2;
+export const SJ_IC = 3;
+export const SJ_OA = 4; // the origin's coordinates on those axes (the positions are sg - origin)
+export const SJ_OB = 5;
+export const SJ_OC = 6;
+export const SJ_HALF = 7; // half the slab, Mpc
+export const SJ_CA = 8; // window centre and half-width, Mpc
+export const SJ_CB = 9;
+export const SJ_R = 10;
+export const SJ_XA = 11; // screen x = xa a + xb (CSS px), y = ya b + yb
+export const SJ_XB = 12;
+export const SJ_YA = 13;
+export const SJ_YB = 14;
+export const SJ_KV = 15; // line length per km/s of u over s (px)
+export const SJ_LIM = 16;
+export const SJ_K = 17; // device px per CSS px, squares' corner offset and size, canvas size
+export const SJ_OX = 18;
+export const SJ_OY = 19;
+export const SJ_SIZE = 20;
+export const SJ_W = 21;
+export const SJ_H = 22;
+/** Outputs: box (4), rows drawn, rows in the slab (m), rows with an unknown position. */
+export const SJ_OUT = 24;
+export const SJ_SLOTS = 32;
+
+export interface SliceJob {
+  P: Float64Array;
+  /** Supergalactic positions about us (the catalogue's), and s, u seen from the origin. */
+  sg: [Float64Array, Float64Array, Float64Array];
+  s: Float64Array;
+  u: Float64Array;
+  /** Outputs: every row's screen position (NaN outside the slab and window), the rows drawn in index order, their bins. */
+  px: Float64Array;
+  py: Float64Array;
+  rows: Int32Array;
+  bin: Uint8Array;
+  /** Velocity lines bin by bin: bin b's are q in [lineStart[b], lineStart[b + 1]), xy[4q..4q+3] = x, y, dx, dy. */
+  lineStart: Int32Array;
+  xy: Float64Array;
+  cells: Uint8Array;
+}
+
+/**
+ * A slice's rows and points: the rows in the slab |c| <= half and the window (one pass over the columns
+ * in sequence, positions sg - origin), their screen positions and bins, the velocity lines of the rows
+ * with s > 0 and a finite u (u k / s px along the direction from the origin), grouped by bin in index
+ * order, and the points as cells (writeSquares over those rows).
+ */
+export function sliceCells(job: SliceJob): void {
+  const { P, px, py, rows, bin, lineStart, xy, s: S, u: U } = job;
+  const n = P[SJ_N]!;
+  const A = job.sg[P[SJ_IA]!]!;
+  const B = job.sg[P[SJ_IB]!]!;
+  const C = job.sg[P[SJ_IC]!]!;
+  const oa = P[SJ_OA]!;
+  const ob = P[SJ_OB]!;
+  const oc = P[SJ_OC]!;
+  const half = P[SJ_HALF]!;
+  const ca = P[SJ_CA]!;
+  const cb = P[SJ_CB]!;
+  const R = P[SJ_R]!;
+  const xa = P[SJ_XA]!;
+  const xb = P[SJ_XB]!;
+  const ya = P[SJ_YA]!;
+  const yb = P[SJ_YB]!;
+  const lim = P[SJ_LIM]!;
+  let m = 0;
+  let unknown = 0;
+  for (let i = 0; i < n; i++) {
+    const a = A[i]! - oa;
+    const b = B[i]! - ob;
+    const c = C[i]! - oc;
+    px[i] = NaN;
+    py[i] = NaN;
+    if (!Number.isFinite(a + b + c)) {
+      unknown++;
+      continue;
+    }
+    if (Math.abs(c) > half || Math.abs(a - ca) > R || Math.abs(b - cb) > R) continue;
+    px[i] = xa * a + xb;
+    py[i] = ya * b + yb;
+    rows[m++] = i;
+  }
+  // the lines, placed bin by bin by counting
+  const kv = P[SJ_KV]!;
+  lineStart.fill(0);
+  for (let j = 0; j < m; j++) {
+    const i = rows[j]!;
+    const bn = binOf(U[i]!, lim);
+    bin[i] = bn;
+    if (bn >= CELL_BINS) continue;
+    const s = S[i]!;
+    if (!(s > 0) || !Number.isFinite(U[i]!)) continue;
+    lineStart[bn + 1]!++;
+  }
+  for (let bn = 0; bn < CELL_BINS; bn++) lineStart[bn + 1]! += lineStart[bn]!;
+  const fill = lineStart.slice(0, CELL_BINS);
+  for (let j = 0; j < m; j++) {
+    const i = rows[j]!;
+    const bn = bin[i]!;
+    if (bn >= CELL_BINS) continue;
+    const s = S[i]!;
+    const u = U[i]!;
+    if (!(s > 0) || !Number.isFinite(u)) continue;
+    const L = (u * kv) / s;
+    const q = 4 * fill[bn]!++;
+    xy[q] = px[i]!;
+    xy[q + 1] = py[i]!;
+    xy[q + 2] = (A[i]! - oa) * L;
+    xy[q + 3] = -(B[i]! - ob) * L;
+  }
+  const box = writeSquares(job.cells, P[SJ_W]!, P[SJ_H]!, px, py, bin, P[SJ_K]!, P[SJ_OX]!, P[SJ_OY]!, P[SJ_SIZE]!, rows.subarray(0, m), null);
+  P.set([box.x0, box.y0, box.x1, box.y1, box.drawn, m, unknown], SJ_OUT);
+}
+
+/** Drawing jobs of one redraw: job kinds (HUBBLE_JOB, or SLICE_JOB + the slice's number) in the order they are needed. */
+export const HUBBLE_JOB = 0;
+export const SLICE_JOB = 1;
+
+/**
+ * Runs drawing jobs on another thread (fit-threads.ts) while the page draws: start() queues jobs
+ * (their P and inputs written), finish(k) returns once the k-th of them has run (here, if the worker
+ * has not taken it yet).
+ */
+export interface DrawJobs {
+  readonly hubble: HubbleJob;
+  readonly slices: SliceJob[];
+  /** Hands the jobs to the worker in this order; false when it cannot take them now (then run them here). */
+  start(kinds: number[]): boolean;
+  /** Returns once the k-th job of the last start() has run. */
+  finish(k: number): void;
+  /** Returns once every job of the last start() has run, and closes the run. */
+  finishAll(): void;
 }

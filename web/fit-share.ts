@@ -13,11 +13,11 @@
  * always reads the row count, kernel and parameters of the run it claimed from, and no chunk is ever
  * still running when the next run starts.
  *
- * The same machinery runs one drawing job after a re-centring: the Hubble diagram's points (cells.ts,
- * kernel HUBBLE_CELLS, one chunk), which the worker takes while the page draws the slices.
+ * The same machinery runs drawing jobs after a re-centring (kernel DRAW_JOBS, chunk c = job c of the
+ * jobs table: cells.ts's Hubble diagram and slice points), which the worker takes while the page draws.
  */
 import { chunksOf, KERNELS, workBytes, workOn, type RecentreWork } from "../src/flow/recentre-kernels.js";
-import { HJ_SLOTS, hubbleCells, type HubbleJob } from "./cells.js";
+import { HJ_SLOTS, HUBBLE_JOB, hubbleCells, SJ_SLOTS, sliceCells, type HubbleJob, type SliceJob } from "./cells.js";
 
 /** Control words: the run's number, the worker's readiness, the claim word, the run's rows and kernel. */
 export const CTL_SEQ = 0;
@@ -28,10 +28,16 @@ export const CTL_KERNEL = 5;
 const CTL_WORDS = 8;
 /** Most chunks a run can have (the claim word keeps the count in 15 bits). */
 export const MAX_CHUNKS = 0x7fff;
-/** The kernel number of the Hubble diagram's points (cells.ts), a run of one chunk; the re-centring kernels are 0.. */
-export const HUBBLE_CELLS = 16;
+/** The kernel number of a run of drawing jobs (cells.ts), chunk c = job c of the jobs table; the re-centring kernels are 0.. */
+export const DRAW_JOBS = 16;
+/** Most drawing jobs in one run. */
+export const MAX_JOBS = 8;
 /** Device pixels of the largest canvas whose Hubble cells the worker can write (two buffers of this many bytes). */
 export const MAX_CELLS = 1 << 22;
+/** The same for each slice (one buffer). */
+export const MAX_SLICE_CELLS = 1 << 21;
+/** Slices with a job of their own. */
+export const SLICE_JOBS = 3;
 
 /** The claim word of a run of `chunks` chunks, none claimed yet. */
 export function openClaim(chunks: number): number {
@@ -48,6 +54,10 @@ export interface FitShare {
   work: RecentreWork;
   /** The Hubble diagram's job (cells.ts): inputs and outputs for `capacity` rows, cells for MAX_CELLS pixels. */
   hubble: HubbleJob;
+  /** The slices' jobs: the supergalactic positions (shared by all three), s and u of the Hubble job, their own outputs. */
+  slices: SliceJob[];
+  /** The kinds of the current run's drawing jobs (cells.ts HUBBLE_JOB, SLICE_JOB + k). */
+  jobs: Int32Array;
 }
 
 function layout(capacity: number) {
@@ -56,7 +66,44 @@ function layout(capacity: number) {
   const workAt = Math.ceil((doneAt + chunks * 4) / 8) * 8;
   const hubbleAt = Math.ceil((workAt + workBytes(capacity)) / 8) * 8;
   const hubbleBytes = HJ_SLOTS * 8 + 7 * capacity * 8 + capacity + 2 * MAX_CELLS;
-  return { chunks, doneAt, workAt, hubbleAt, bytes: hubbleAt + hubbleBytes };
+  const slicesAt = Math.ceil((hubbleAt + hubbleBytes) / 8) * 8;
+  // sg (3 columns), then per slice: P, px, py, xy (4 a row), rows, lineStart (32), bin, cells
+  const sliceBytes = SJ_SLOTS * 8 + 6 * capacity * 8 + capacity * 4 + 32 * 4 + capacity + MAX_SLICE_CELLS;
+  const slicesBytes = 3 * capacity * 8 + SLICE_JOBS * (Math.ceil(sliceBytes / 8) * 8);
+  const jobsAt = slicesAt + slicesBytes;
+  return { chunks, doneAt, workAt, hubbleAt, slicesAt, jobsAt, bytes: jobsAt + MAX_JOBS * 4 };
+}
+
+function slicesOn(buffer: SharedArrayBuffer, at: number, capacity: number, hubble: HubbleJob): SliceJob[] {
+  const f64 = (len: number) => {
+    at = Math.ceil(at / 8) * 8;
+    const a = new Float64Array(buffer, at, len);
+    at += len * 8;
+    return a;
+  };
+  const i32 = (len: number) => {
+    const a = new Int32Array(buffer, at, len);
+    at += len * 4;
+    return a;
+  };
+  const u8 = (len: number) => {
+    const a = new Uint8Array(buffer, at, len);
+    at += len;
+    return a;
+  };
+  const sg: [Float64Array, Float64Array, Float64Array] = [f64(capacity), f64(capacity), f64(capacity)];
+  const out: SliceJob[] = [];
+  for (let k = 0; k < SLICE_JOBS; k++) {
+    out.push({ P: f64(SJ_SLOTS), sg, s: hubble.s, u: hubble.u, px: f64(capacity), py: f64(capacity), xy: f64(4 * capacity), rows: i32(capacity), lineStart: i32(32), bin: u8(capacity), cells: u8(MAX_SLICE_CELLS) });
+  }
+  return out;
+}
+
+/** Runs job c of the current run of drawing jobs. */
+export function runDrawJob(share: FitShare, c: number): void {
+  const kind = share.jobs[c]!;
+  if (kind === HUBBLE_JOB) hubbleCells(share.hubble);
+  else sliceCells(share.slices[kind - 1]!);
 }
 
 function hubbleOn(buffer: SharedArrayBuffer, at: number, capacity: number): HubbleJob {
@@ -79,13 +126,16 @@ export function fitShareBytes(capacity: number): number {
 
 export function fitShareViews(buffer: SharedArrayBuffer, capacity: number): FitShare {
   const L = layout(capacity);
+  const hubble = hubbleOn(buffer, L.hubbleAt, capacity);
   return {
     buffer,
     capacity,
     ctl: new Int32Array(buffer, 0, CTL_WORDS),
     done: new Int32Array(buffer, L.doneAt, L.chunks),
     work: workOn(buffer, L.workAt, capacity),
-    hubble: hubbleOn(buffer, L.hubbleAt, capacity),
+    hubble,
+    slices: slicesOn(buffer, L.slicesAt, capacity, hubble),
+    jobs: new Int32Array(buffer, L.jobsAt, MAX_JOBS),
   };
 }
 
@@ -102,7 +152,7 @@ export function claimChunks(share: FitShare): number {
     if (c >= v >>> 16) return ran;
     if (Atomics.compareExchange(ctl, CTL_CLAIM, v, v + 1) !== v) continue;
     const kernel = Atomics.load(ctl, CTL_KERNEL);
-    if (kernel === HUBBLE_CELLS) hubbleCells(share.hubble);
+    if (kernel === DRAW_JOBS) runDrawJob(share, c);
     else {
       work.n = Atomics.load(ctl, CTL_ROWS);
       KERNELS[kernel]!(work, c);

@@ -12,8 +12,8 @@
  * more than the storage holds, also run there.
  */
 import { chunksOf, KERNELS, ONE_THREAD, P_H0, P_HAS_ERR, POINT_ROWS, type KernelId, type RecentreThreads, type RecentreWork } from "../src/flow/recentre-kernels.js";
-import { claimChunks, CTL_CLAIM, CTL_KERNEL, CTL_READY, CTL_ROWS, CTL_SEQ, fitShareBytes, fitShareViews, HUBBLE_CELLS, MAX_CHUNKS, openClaim, type FitShare } from "./fit-share.js";
-import { hubbleCells, type HubbleOffload } from "./cells.js";
+import { claimChunks, CTL_CLAIM, CTL_KERNEL, CTL_READY, CTL_ROWS, CTL_SEQ, DRAW_JOBS, fitShareBytes, fitShareViews, MAX_CHUNKS, MAX_JOBS, openClaim, runDrawJob, type FitShare } from "./fit-share.js";
+import type { DrawJobs } from "./cells.js";
 
 /** Below this many rows a run is not shared: waking the worker costs more than it saves (at 1e4 rows two threads took 17 ms against 12 on one, npm run bench view). */
 export const MIN_SPLIT_ROWS = 32_768;
@@ -41,41 +41,61 @@ export class TwoThreads implements RecentreThreads {
     private readonly worker: Worker,
   ) {
     Atomics.store(share.ctl, CTL_CLAIM, 0);
-    this.hubble = {
-      job: this.share.hubble,
-      start: () => {
-        if (!this.ready || this.pendingJob) return false;
-        const { ctl, done } = this.share;
-        done.fill(0, 0, 1);
+    this.draw = {
+      hubble: share.hubble,
+      slices: share.slices,
+      start: (kinds) => {
+        if (!this.ready || this.jobsOpen > 0 || kinds.length === 0 || kinds.length > MAX_JOBS) return false;
+        const { ctl, done, jobs } = this.share;
+        jobs.set(kinds);
+        done.fill(0, 0, kinds.length);
         Atomics.store(ctl, CTL_ROWS, 0);
-        Atomics.store(ctl, CTL_KERNEL, HUBBLE_CELLS);
-        Atomics.store(ctl, CTL_CLAIM, openClaim(1));
+        Atomics.store(ctl, CTL_KERNEL, DRAW_JOBS);
+        Atomics.store(ctl, CTL_CLAIM, openClaim(kinds.length));
         Atomics.add(ctl, CTL_SEQ, 1);
         Atomics.notify(ctl, CTL_SEQ);
-        this.pendingJob = true;
+        this.jobsOpen = kinds.length;
+        this.runHere = 0;
         return true;
       },
-      finish: () => {
-        if (!this.pendingJob) return;
+      finish: (k) => {
+        if (k >= this.jobsOpen) return;
         const { ctl, done } = this.share;
-        const open = openClaim(1);
-        if (Atomics.compareExchange(ctl, CTL_CLAIM, open, open + 1) === open) {
-          hubbleCells(this.share.hubble);
-          this.jobsHere++;
-        } else {
-          const t0 = performance.now();
-          while (Atomics.load(done, 0) === 0) {
-            if (performance.now() - t0 > WORKER_TIMEOUT_MS) {
-              this.broken = true;
-              this.worker.terminate();
-              hubbleCells(this.share.hubble);
-              break;
+        const t0 = performance.now();
+        while (Atomics.load(done, k) === 0) {
+          // a job up to k that the worker has not taken yet is run here
+          const v = Atomics.load(ctl, CTL_CLAIM);
+          const c = v & 0xffff;
+          if (c <= k && c < v >>> 16) {
+            if (Atomics.compareExchange(ctl, CTL_CLAIM, v, v + 1) === v) {
+              runDrawJob(this.share, c);
+              Atomics.store(done, c, 1);
+              this.jobsHere++;
+              this.runHere++;
+            }
+            continue;
+          }
+          if (performance.now() - t0 > WORKER_TIMEOUT_MS) {
+            // the worker is gone (it held a job for seconds): stop it, run its jobs here, and stop using it
+            this.broken = true;
+            this.worker.terminate();
+            for (let j = 0; j < this.jobsOpen; j++) {
+              if (Atomics.load(done, j) !== 0) continue;
+              runDrawJob(this.share, j);
+              Atomics.store(done, j, 1);
+              this.jobsHere++;
+              this.runHere++;
             }
           }
-          this.jobsThere++;
         }
-        Atomics.store(ctl, CTL_CLAIM, 0);
-        this.pendingJob = false;
+      },
+      finishAll: () => {
+        const m = this.jobsOpen;
+        if (m === 0) return;
+        for (let j = 0; j < m; j++) this.draw.finish(j);
+        this.jobsThere += m - this.runHere;
+        Atomics.store(this.share.ctl, CTL_CLAIM, 0);
+        this.jobsOpen = 0;
       },
     };
   }
@@ -136,7 +156,7 @@ export class TwoThreads implements RecentreThreads {
   }
 
   run(w: RecentreWork, kernel: KernelId, chunks: number): void {
-    this.hubble.finish();
+    this.draw.finishAll();
     if (w !== this.share.work || w.n < MIN_SPLIT_ROWS || !this.ready) {
       ONE_THREAD.run(w, kernel, chunks);
       return;
@@ -169,14 +189,15 @@ export class TwoThreads implements RecentreThreads {
   }
 
   /**
-   * The Hubble diagram's points on the worker (cells.ts): start() opens a run of one chunk that only
-   * the worker claims (the page goes on drawing); finish() claims it here if the worker has not, else
-   * waits for it, then closes the run. No re-centring run may start in between (the page's code is
-   * synchronous from start() to finish()).
+   * Drawing jobs on the worker (cells.ts): start() opens a run whose chunks are the jobs, which only
+   * the worker claims while the page goes on drawing; finish(k) runs here any job up to k the worker has
+   * not taken, else waits for it; finishAll() closes the run. No re-centring run starts while jobs are
+   * open (run() closes them first; the page's code is synchronous from start() to finishAll()).
    */
-  readonly hubble: HubbleOffload;
-  /** A drawing job is open (between hubble.start and hubble.finish). */
-  private pendingJob = false;
+  readonly draw: DrawJobs;
+  /** Jobs in the open run of drawing jobs (0: none), and those of it run here. */
+  private jobsOpen = 0;
+  private runHere = 0;
   /** Drawing jobs run here (the worker had not taken them) and on the worker. */
   jobsHere = 0;
   jobsThere = 0;

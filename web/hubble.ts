@@ -9,8 +9,7 @@ import { CanvasPanel, type PanelActions } from "./panel.js";
 import type { ViewState } from "./state.js";
 import { binAll, binByColour, FAINT_INK, INK, ORIGIN_MARK, type VelocityScale } from "./colour.js";
 import { compositeCells, DIM_ALPHA, drawBinnedPoints, drawMarks } from "./draw.js";
-import { HJ_H, HJ_K, HJ_LIM, HJ_N, HJ_ORIGIN_ROW, HJ_OUT, HJ_OX, HJ_OY, HJ_RA, HJ_RB, HJ_SIZE, HJ_SLOTS, HJ_W, HJ_XA, HJ_XB, HJ_YA, HJ_YB, hubbleCells, type CellBox, type HubbleOffload } from "./cells.js";
-import { MAX_CELLS } from "./fit-share.js";
+import { HJ_H, HJ_K, HJ_LIM, HJ_N, HJ_ORIGIN_ROW, HJ_OUT, HJ_OX, HJ_OY, HJ_RA, HJ_RB, HJ_SIZE, HJ_SLOTS, HJ_W, HJ_XA, HJ_XB, HJ_YA, HJ_YB, HUBBLE_JOB, hubbleCells, type CellBox, type DrawJobs } from "./cells.js";
 import type { OriginView } from "./origin.js";
 import { originLimits } from "./limits.js";
 
@@ -26,21 +25,21 @@ export class HubblePanel extends CanvasPanel {
   /** The view from here, for the dashed comparison line. */
   home: OriginView;
 
-  /** The worker that may make the points (fit-threads.ts), or null; and whether prepare() hands them to it. */
-  private readonly offload: HubbleOffload | null;
+  /** The worker's drawing jobs (fit-threads.ts), or null; and whether queue() hands the points to it. */
+  private readonly jobs: DrawJobs | null;
   useWorker = true;
 
-  constructor(parent: HTMLElement, state: ViewState, actions: PanelActions, scale: VelocityScale, home: OriginView, tools: HTMLElement[], offload: HubbleOffload | null = null) {
+  constructor(parent: HTMLElement, state: ViewState, actions: PanelActions, scale: VelocityScale, home: OriginView, tools: HTMLElement[], jobs: DrawJobs | null = null) {
     super(parent, state, actions, { id: "hubble", title: "Hubble diagram", tools });
     this.scale = scale;
     this.home = home;
     this.pointRadius = 1.4;
     const n = state.data.n;
-    this.offload = offload && offload.job.px.length >= n ? offload : null;
+    this.jobs = jobs && jobs.hubble.px.length >= n ? jobs : null;
     // the points job writes every row of the positions; with a worker they are its shared arrays
     this.clearsPositions = false;
-    if (this.offload) {
-      const j = this.offload.job;
+    if (this.jobs) {
+      const j = this.jobs.hubble;
       this.px = j.px.subarray(0, n).fill(NaN);
       this.py = j.py.subarray(0, n).fill(NaN);
       this.rx = j.rx.subarray(0, n).fill(NaN);
@@ -107,48 +106,68 @@ export class HubblePanel extends CanvasPanel {
     return P;
   }
 
-  /** The job handed to the worker by prepare(), for the origin it was made for. */
-  private prepared: { origin: OriginView; P: Float64Array } | null = null;
+  /** The job as handed to the worker by queue(), for the origin it was made for. */
+  private queued: { origin: OriginView; P: Float64Array; index: number } | null = null;
   /** Page-side buffers of the points job (when it runs here). */
   private local: { W: number; H: number; bin: Uint8Array; cellsMain: Uint8Array; cellsRes: Uint8Array } | null = null;
 
   /**
-   * Hands this panel's points (positions, bins and cells of both clouds) to the worker, to be picked up
-   * by the next draw while the page draws other panels. Does nothing without a worker or when the
-   * canvas is larger than its cell buffers; the draw then makes them itself (the same code, the same cells).
+   * Copies the origin's s, v and u into the worker's shared job (the slices' jobs read s and u there
+   * too); false without a worker.
    */
-  prepare(): void {
-    const off = this.offload;
-    if (!off || !this.useWorker || this.prepared) return;
-    const [w, h, dpr] = this.plannedSize();
-    const W = Math.round(w * dpr);
-    const H = Math.round(h * dpr);
-    const n = this.state.data.n;
-    if (W * H > MAX_CELLS || n > off.job.s.length) return;
+  writeInputs(): boolean {
+    if (!this.jobs || !this.useWorker) return false;
+    this.jobs.finishAll();
     const o = this.state.origin;
-    const P = this.jobParams(this.geometry(w, h), W, H, dpr, 0, 0);
-    const job = off.job;
-    job.P.set(P);
+    const job = this.jobs.hubble;
     job.s.set(o.s);
     job.v.set(o.v);
     job.u.set(o.u);
-    if (off.start()) this.prepared = { origin: o, P };
+    return true;
   }
 
-  /** The outputs of the points job for these parameters: the prepared one if it matches, else run here. */
+  /**
+   * Writes this panel's points job (positions, bins and cells of both clouds) for the next draw into
+   * the worker's shared job and adds it to `kinds`, when the canvas fits its cell buffers (after
+   * writeInputs). The draw then takes the worker's result; otherwise it makes the same cells itself.
+   */
+  queue(kinds: number[]): void {
+    if (!this.jobs || !this.useWorker) return;
+    const [w, h, dpr] = this.plannedSize();
+    const W = Math.round(w * dpr);
+    const H = Math.round(h * dpr);
+    if (W * H > this.jobs.hubble.cellsMain.length) return;
+    const P = this.jobParams(this.geometry(w, h), W, H, dpr, 0, 0);
+    this.jobs.hubble.P.set(P);
+    this.queued = { origin: this.state.origin, P, index: kinds.length };
+    kinds.push(HUBBLE_JOB);
+  }
+
+  /** The run of jobs was not opened: the queued job is forgotten (the draw runs it here). */
+  unqueue(): void {
+    this.queued = null;
+  }
+
+  /** The outputs of the points job for these parameters: the worker's if it was queued with them, else run here. */
   private runPoints(P: Float64Array): { cellsMain: Uint8Array; cellsRes: Uint8Array; out: Float64Array } {
     const o = this.state.origin;
-    const prep = this.prepared;
-    this.prepared = null;
-    if (prep && this.offload) {
-      this.offload.finish();
-      const job = this.offload.job;
-      if (prep.origin === o && prep.P.every((v, i) => Object.is(v, P[i]))) return { cellsMain: job.cellsMain, cellsRes: job.cellsRes, out: job.P.subarray(HJ_OUT) };
-      // made for another origin or size: its cells are cleared and the job is run here
-      const W = job.P[HJ_W]!;
-      for (const [cells, at] of [[job.cellsMain, HJ_OUT], [job.cellsRes, HJ_OUT + 4]] as const) {
-        const [x0, y0, x1, y1] = job.P.subarray(at, at + 4);
-        for (let yy = y0!; yy < y1!; yy++) cells.fill(0, yy * W + x0!, yy * W + x1!);
+    const q = this.queued;
+    this.queued = null;
+    if (this.jobs) {
+      const job = this.jobs.hubble;
+      if (q && q.origin === o && q.P.every((v, i) => Object.is(v, P[i]))) {
+        this.jobs.finish(q.index);
+        return { cellsMain: job.cellsMain, cellsRes: job.cellsRes, out: job.P.subarray(HJ_OUT) };
+      }
+      // made for another origin or size: wait for it and clear its cells (not queued: no job of the
+      // open run, if any, is on this panel's arrays); the job is run here
+      if (q) {
+        this.jobs.finish(q.index);
+        const W = job.P[HJ_W]!;
+        for (const [cells, at] of [[job.cellsMain, HJ_OUT], [job.cellsRes, HJ_OUT + 4]] as const) {
+          const [x0, y0, x1, y1] = job.P.subarray(at, at + 4);
+          for (let yy = y0!; yy < y1!; yy++) cells.fill(0, yy * W + x0!, yy * W + x1!);
+        }
       }
     }
     const W = P[HJ_W]!;

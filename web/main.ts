@@ -176,10 +176,19 @@ async function start(): Promise<void> {
   const rowSlices = $("row-slices");
   const rowBottom = $("row-bottom");
   const sky: SkyMap = new SkyMap(rowTop, state, actions, scale, exportTools("sky", () => sky, "sky map"));
-  const hubble: HubblePanel = new HubblePanel(rowTop, state, actions, scale, home, exportTools("hubble", () => hubble, "Hubble diagram"), fitThreads?.hubble ?? null);
+  const drawJobs = fitThreads?.draw ?? null;
+  if (drawJobs) {
+    // the slices' jobs read the catalogue's supergalactic positions from the shared memory
+    const sg = drawJobs.slices[0]!.sg;
+    sg[0].set(data.col.sgx);
+    sg[1].set(data.col.sgy);
+    sg[2].set(data.col.sgz);
+  }
+  const hubble: HubblePanel = new HubblePanel(rowTop, state, actions, scale, home, exportTools("hubble", () => hubble, "Hubble diagram"), drawJobs);
   const slices: SlicePanel[] = [];
   for (const plane of ["xy", "xz", "yz"] as const) {
-    const sp: SlicePanel = new SlicePanel(rowSlices, state, actions, scale, plane, exportTools(`slice-${plane}`, () => sp, `${plane} slice`));
+    const shared = drawJobs ? { jobs: drawJobs, slot: slices.length } : null;
+    const sp: SlicePanel = new SlicePanel(rowSlices, state, actions, scale, plane, exportTools(`slice-${plane}`, () => sp, `${plane} slice`), shared);
     slices.push(sp);
   }
   panels.push(sky, hubble, ...slices);
@@ -298,15 +307,25 @@ async function start(): Promise<void> {
   });
   state.on("origin", () => {
     const ms: Record<string, number> = {};
-    // the fit worker makes the Hubble diagram's points while the page draws the slices
+    // the fit worker makes the points of two slices and of the Hubble diagram while the page draws
+    // the first slice (its points too) and the rest of the others, in the order the page needs them
     let t0 = performance.now();
-    hubble.prepare();
-    ms["hubble (handed on)"] = performance.now() - t0;
+    if (drawJobs && hubble.writeInputs()) {
+      const kinds: number[] = [];
+      slices[1]!.queue(kinds);
+      slices[2]!.queue(kinds);
+      hubble.queue(kinds);
+      if (kinds.length > 0 && !drawJobs.start(kinds)) {
+        for (const p of [...slices, hubble]) p.unqueue();
+      }
+    }
+    ms["jobs handed on"] = performance.now() - t0;
     for (const p of [...slices, hubble]) {
       t0 = performance.now();
       p.render();
       ms[p.name] = performance.now() - t0;
     }
+    drawJobs?.finishAll();
     t0 = performance.now();
     sky.updateOrigin();
     showOrigin();

@@ -7,9 +7,11 @@
 import * as d3 from "d3";
 import { CanvasPanel, type PanelActions } from "./panel.js";
 import type { ViewState } from "./state.js";
-import { BACKGROUND, binAll, FAINT_INK, INK, N_BINS, ORIGIN_MARK, type BinnedColours, type VelocityScale } from "./colour.js";
-import { drawMarks, drawPointsWithSelection } from "./draw.js";
+import { BACKGROUND, binAll, binByColour, FAINT_INK, INK, N_BINS, ORIGIN_MARK, type VelocityScale } from "./colour.js";
+import { compositeCells, DIM_ALPHA, drawBinnedPoints, drawMarks } from "./draw.js";
 import { originLimits } from "./limits.js";
+import type { OriginView } from "./origin.js";
+import { SJ_CA, SJ_CB, SJ_H, SJ_HALF, SJ_IA, SJ_IB, SJ_IC, SJ_K, SJ_KV, SJ_LIM, SJ_N, SJ_OA, SJ_OB, SJ_OC, SJ_OUT, SJ_OX, SJ_OY, SJ_R, SJ_SIZE, SJ_SLOTS, SJ_W, SJ_XA, SJ_XB, SJ_YA, SJ_YB, SLICE_JOB, sliceCells, type DrawJobs, type SliceJob } from "./cells.js";
 
 export type Plane = "xy" | "xz" | "yz";
 const AXES: Record<Plane, [0 | 1 | 2, 0 | 1 | 2, 0 | 1 | 2]> = { xy: [0, 1, 2], xz: [0, 2, 1], yz: [1, 2, 0] };
@@ -31,11 +33,20 @@ export class SlicePanel extends CanvasPanel {
   private centre: [number, number] = [0, 0];
   private pxPerMpc = 1;
 
-  /** Velocity lines of the last draw (the vector export writes them out), in lineBuf. */
+  /** Velocity lines of the last draw (the vector export writes them out), in the job's arrays. */
   private lines: SliceLines | null = null;
-  private lineBuf = new Float64Array(0);
-  /** The rows of the last draw, in index order (its first part). */
-  private slabRows = new Int32Array(0);
+  /**
+   * The points job (cells.ts sliceCells): the worker's shared one, or this panel's own arrays. Its px
+   * and py are the panel's; it writes every row of them.
+   */
+  private readonly job: SliceJob;
+  private readonly shared: boolean;
+  /** The number of its shared job (cells.ts SLICE_JOB + slot). */
+  private readonly slot: number;
+  /** The job as handed to the worker by queue(), for the origin it was made for. */
+  private queued: { origin: OriginView; P: Float64Array; index: number } | null = null;
+  /** Waits for the k-th drawing job of the open run, and closes the run (fit-threads.ts). */
+  private jobs: DrawJobs | null = null;
 
   /** Velocity lines of the last draw, one SVG path per colour bin, when there are at most 20 000 rows. */
   override vectorExtras(): string {
@@ -53,53 +64,6 @@ export class SlicePanel extends CanvasPanel {
       lineSvg += `<path fill="none" stroke="${bins.colours[bn]}" stroke-opacity="0.9" d="${d}"/>`;
     }
     return lineSvg + super.vectorExtras();
-  }
-
-  /**
-   * The velocity lines of the drawn rows, bin by bin: each from (x, y) by (dx, dy) CSS px, u / H Mpc
-   * along the direction from the origin (k = px per km/s).
-   */
-  private velocityLines(bins: BinnedColours, k: number, rows: Int32Array): SliceLines {
-    const o = this.state.origin;
-    const [ia, ib] = AXES[this.plane];
-    const cols = [o.x, o.y, o.z];
-    const A = cols[ia]!;
-    const B = cols[ib]!;
-    const px = this.px;
-    const py = this.py;
-    // the drawn rows in index order, placed bin by bin by counting
-    const n = rows.length;
-    const bin = bins.bin;
-    const count = new Int32Array(N_BINS + 1);
-    for (let j = 0; j < n; j++) {
-      const i = rows[j]!;
-      const bn = bin[i]!;
-      if (bn >= N_BINS || px[i] !== px[i]) continue; // unknown colour, or not in the slab
-      const s = o.s[i]!;
-      if (!(s > 0) || !Number.isFinite(o.u[i]!)) continue;
-      count[bn + 1]!++;
-    }
-    for (let bn = 0; bn < N_BINS; bn++) count[bn + 1]! += count[bn]!;
-    const start = count.slice();
-    const m = start[N_BINS]!;
-    // one buffer per panel, grown when needed (a fresh 4 n array per draw cost more than the lines)
-    if (this.lineBuf.length < 4 * m) this.lineBuf = new Float64Array(Math.max(4 * m, 2 * this.lineBuf.length));
-    const xy = this.lineBuf;
-    for (let j = 0; j < n; j++) {
-      const i = rows[j]!;
-      const bn = bin[i]!;
-      if (bn >= N_BINS || px[i] !== px[i]) continue;
-      const s = o.s[i]!;
-      const u = o.u[i]!;
-      if (!(s > 0) || !Number.isFinite(u)) continue;
-      const L = (u * k) / s;
-      const q = 4 * count[bn]!++;
-      xy[q] = px[i]!;
-      xy[q + 1] = py[i]!;
-      xy[q + 2] = A[i]! * L;
-      xy[q + 3] = -B[i]! * L;
-    }
-    return { start, xy: xy.subarray(0, 4 * m) };
   }
 
   protected override zoomAt(x: number, y: number, factor: number): boolean {
@@ -129,62 +93,162 @@ export class SlicePanel extends CanvasPanel {
     return true;
   }
 
-  constructor(parent: HTMLElement, state: ViewState, actions: PanelActions, scale: VelocityScale, plane: Plane, tools: HTMLElement[]) {
+  constructor(parent: HTMLElement, state: ViewState, actions: PanelActions, scale: VelocityScale, plane: Plane, tools: HTMLElement[], shared: { jobs: DrawJobs; slot: number } | null = null) {
     const [a, b, c] = AXES[plane];
     super(parent, state, actions, { id: `slice-${plane}`, title: `${NAMES[a]}–${NAMES[b]} slice (|${NAMES[c]}| ≤ half the slab)`, tools });
     this.plane = plane;
     this.scale = scale;
     this.pointRadius = 1.3;
+    const d = state.data;
+    const n = d.n;
+    this.clearsPositions = false;
+    const sj = shared?.jobs.slices[shared.slot];
+    this.slot = shared?.slot ?? -1;
+    if (shared && sj && sj.px.length >= n) {
+      const j = sj;
+      this.jobs = shared.jobs;
+      this.shared = true;
+      this.px = j.px.subarray(0, n).fill(NaN);
+      this.py = j.py.subarray(0, n).fill(NaN);
+      this.job = { ...j, px: this.px, py: this.py };
+    } else {
+      this.shared = false;
+      this.job = {
+        P: new Float64Array(SJ_SLOTS),
+        sg: [d.col.sgx, d.col.sgy, d.col.sgz],
+        s: new Float64Array(0),
+        u: new Float64Array(0),
+        px: this.px,
+        py: this.py,
+        rows: new Int32Array(n),
+        bin: new Uint8Array(n),
+        lineStart: new Int32Array(N_BINS + 1),
+        xy: new Float64Array(4 * n),
+        cells: new Uint8Array(0),
+      };
+    }
   }
 
-  protected draw(ctx: CanvasRenderingContext2D): number {
+  /** The window of the slab at a panel size (CSS px): scales and the job's parameters. */
+  private geometry(w: number, h: number) {
     const st = this.state;
-    const d = st.data;
     const o = st.origin;
     const [ia, ib, ic] = AXES[this.plane];
-    const cols = [o.x, o.y, o.z];
-    const A = cols[ia]!;
-    const B = cols[ib]!;
-    const C = cols[ic]!;
     const R = originLimits(o).extentMpc / this.zoom;
-    const w = this.width;
-    const h = this.height;
     const side = Math.max(10, Math.min(w - M.left - M.right, h - M.top - M.bottom));
     const cx = M.left + (w - M.left - M.right) / 2;
     const cy = M.top + (h - M.top - M.bottom) / 2;
     const [ca, cb] = this.centre;
     const sx = d3.scaleLinear().domain([ca - R, ca + R]).range([cx - side / 2, cx + side / 2]);
     const sy = d3.scaleLinear().domain([cb - R, cb + R]).range([cy + side / 2, cy - side / 2]);
-    this.pxPerMpc = side / (2 * R);
-    const half = st.slabMpc / 2;
     const H = Number.isFinite(o.h0) ? o.h0 : st.h0Ref;
+    return { ia, ib, ic, R, side, cx, cy, ca, cb, sx, sy, H };
+  }
+
+  /** The job's parameters for geometry g on a canvas of W x H device pixels drawn at scale k, offset (e, f). */
+  private jobParams(g: ReturnType<SlicePanel["geometry"]>, W: number, H: number, k: number, e: number, f: number): Float64Array {
+    const o = this.state.origin;
+    const org = [o.ox, o.oy, o.oz];
+    const xb = g.sx(0);
+    const yb = g.sy(0);
+    const r = this.pointRadius;
+    const P = new Float64Array(SJ_SLOTS);
+    P[SJ_N] = this.state.data.n;
+    P[SJ_IA] = g.ia;
+    P[SJ_IB] = g.ib;
+    P[SJ_IC] = g.ic;
+    P[SJ_OA] = org[g.ia]!;
+    P[SJ_OB] = org[g.ib]!;
+    P[SJ_OC] = org[g.ic]!;
+    P[SJ_HALF] = this.state.slabMpc / 2;
+    P[SJ_CA] = g.ca;
+    P[SJ_CB] = g.cb;
+    P[SJ_R] = g.R;
+    P[SJ_XA] = g.sx(1) - xb;
+    P[SJ_XB] = xb;
+    P[SJ_YA] = g.sy(1) - yb;
+    P[SJ_YB] = yb;
+    P[SJ_KV] = g.side / (2 * g.R) / g.H; // px per km/s: u / H Mpc times px per Mpc
+    P[SJ_LIM] = this.scale.limit;
+    P[SJ_K] = k;
+    P[SJ_OX] = e - r * k;
+    P[SJ_OY] = f - r * k;
+    P[SJ_SIZE] = Math.max(1, Math.round(2 * r * k));
+    P[SJ_W] = W;
+    P[SJ_H] = H;
+    return P;
+  }
+
+  /**
+   * Writes this panel's job for the next draw into the worker's shared job and adds it to `kinds`,
+   * when the panel has a shared job and its canvas fits; the shared job reads s and u from the Hubble
+   * job's inputs, which the caller has written for this origin (HubblePanel.writeInputs).
+   */
+  queue(kinds: number[]): void {
+    if (!this.shared || !this.jobs) return;
+    const [w, h, dpr] = this.plannedSize();
+    const W = Math.round(w * dpr);
+    const H = Math.round(h * dpr);
+    if (W * H > this.job.cells.length) return;
+    const P = this.jobParams(this.geometry(w, h), W, H, dpr, 0, 0);
+    this.job.P.set(P);
+    this.queued = { origin: this.state.origin, P, index: kinds.length };
+    kinds.push(SLICE_JOB + this.slot);
+  }
+
+  /** The run of jobs was not opened: the queued job is forgotten (the draw runs it here). */
+  unqueue(): void {
+    this.queued = null;
+  }
+
+  /** Runs the job for parameters P: takes the worker's if it was queued with them, else runs it here. */
+  private runJob(P: Float64Array): SliceJob {
+    const o = this.state.origin;
+    const q = this.queued;
+    this.queued = null;
+    const job = this.job;
+    if (q && this.jobs) {
+      if (q.origin === o && q.P.every((v, i) => Object.is(v, P[i]))) {
+        this.jobs.finish(q.index);
+        return job;
+      }
+      // made for another origin or size: wait for it, clear its cells, and run the job here
+      this.jobs.finish(q.index);
+      const W = job.P[SJ_W]!;
+      const [x0, y0, x1, y1] = job.P.subarray(SJ_OUT, SJ_OUT + 4);
+      for (let yy = y0!; yy < y1!; yy++) job.cells.fill(0, yy * W + x0!, yy * W + x1!);
+    }
+    // (not queued: no job of the open run, if any, is on this panel's arrays)
+    const W = P[SJ_W]!;
+    const H = P[SJ_H]!;
+    const here = { ...job, P, s: o.s, u: o.u };
+    if (here.cells.length < W * H) here.cells = this.ownCells(W * H);
+    sliceCells(here);
+    return here;
+  }
+
+  private ownCellsBuf = new Uint8Array(0);
+  private ownCells(size: number): Uint8Array {
+    if (this.ownCellsBuf.length !== size) this.ownCellsBuf = new Uint8Array(size);
+    return this.ownCellsBuf;
+  }
+
+  protected draw(ctx: CanvasRenderingContext2D): number {
+    const st = this.state;
+    const o = st.origin;
+    const w = this.width;
+    const h = this.height;
+    const geo = this.geometry(w, h);
+    const { ia, ib, R, side, cx, cy, ca, cb, sx, sy } = geo;
+    this.pxPerMpc = side / (2 * R);
     const px = this.px;
     const py = this.py;
-    const xb = sx(0);
-    const xa = sx(1) - xb;
-    const yb = sy(0);
-    const ya = sy(1) - yb;
-    // The rows in the slab and the window, in index order (the order they are drawn in): one pass over
-    // the columns in sequence. (A bucket index of each coordinate, touching only the rows about the
-    // slab, was slower: its rows are scattered in memory, and their list had to be sorted back.)
-    if (this.slabRows.length < d.n) this.slabRows = new Int32Array(d.n);
-    const list = this.slabRows;
-    let m = 0;
-    let unknown = 0;
-    for (let i = 0; i < d.n; i++) {
-      const a = A[i]!;
-      const b = B[i]!;
-      const c = C[i]!;
-      if (!Number.isFinite(a + b + c)) {
-        unknown++;
-        continue;
-      }
-      if (Math.abs(c) > half || Math.abs(a - ca) > R || Math.abs(b - cb) > R) continue;
-      px[i] = xa * a + xb;
-      py[i] = ya * b + yb;
-      list[m++] = i;
-    }
-    const rows = list.subarray(0, m);
+    const t = ctx.getTransform();
+    const job = this.runJob(this.jobParams(geo, ctx.canvas.width, ctx.canvas.height, t.a, t.e, t.f));
+    const out = job.P.subarray(SJ_OUT);
+    const m = out[5]!;
+    const unknown = out[6]!;
+    const rows = job.rows.subarray(0, m);
     ctx.save();
     ctx.beginPath();
     ctx.rect(sx(ca - R), sy(cb + R), side, side);
@@ -193,10 +257,9 @@ export class SlicePanel extends CanvasPanel {
     ctx.fillRect(sx(ca - R), sy(cb + R), side, side);
     // Velocity lines, one stroke per colour bin.
     const bins = binAll(o.u, this.scale);
-    const k = side / (2 * R) / H; // px per km/s: u / H Mpc times px per Mpc
     ctx.lineWidth = 1;
     ctx.globalAlpha = st.nSelected > 0 ? 0.35 : 0.9;
-    const lines = this.velocityLines(bins, k, rows);
+    const lines = { start: job.lineStart, xy: job.xy.subarray(0, 4 * job.lineStart[N_BINS]!) };
     this.lines = lines;
     for (let bn = 0; bn < N_BINS; bn++) {
       const e = lines.start[bn + 1]!;
@@ -213,7 +276,9 @@ export class SlicePanel extends CanvasPanel {
       ctx.stroke();
     }
     ctx.globalAlpha = 1;
-    const { drawn } = drawPointsWithSelection(ctx, st, px, py, o.u, this.scale, this.pointRadius, rows);
+    compositeCells(ctx, job.cells, { x0: out[0]!, y0: out[1]!, x1: out[2]!, y1: out[3]!, drawn: 0 }, bins.colours, st.nSelected > 0 ? DIM_ALPHA : 1);
+    if (st.nSelected > 0) drawBinnedPoints(ctx, px, py, binByColour(o.u, this.scale, st.selected), this.pointRadius + 0.5, 1, rows);
+    const drawn = out[4]!;
     this.bins = bins;
     drawMarks(ctx, st, px, py, this.pointRadius);
     // The origin, and us when re-centred.
