@@ -211,6 +211,11 @@ export function countWithin(a: SkyPoints, b: SkyPoints, radiusRad: number, rowsP
 const WARM_ABOVE_ROWS = 200000;
 let warmed = false;
 
+/** Warms the kernels now when a pair search with at least `rows` rows would (a thread with time to spare). */
+export function warmKernelsFor(rows: number): void {
+  if (rows > WARM_ABOVE_ROWS) warmKernels();
+}
+
 /**
  * Runs the pair kernels, once per thread, on small seeded inputs of odd sizes (a few milliseconds).
  * V8 compiles a hot loop while it runs on the first large input, and when the loop's tail has never

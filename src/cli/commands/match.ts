@@ -12,6 +12,7 @@ import { assertNotSameFile, formatFromPath, isGzipPath, writeFileAtomic, writeTa
 import { parseAngleArcsec } from "../../crossmatch/radius.js";
 import { availableParallelism } from "node:os";
 import { crossMatchBanded, joinRows, matchCounts, JOIN_MODES, type JoinMode, type MatchOptions } from "../../crossmatch/match.js";
+import { warmKernelsFor } from "../../crossmatch/pairs.js";
 import { BandPool } from "../../crossmatch/threads.js";
 import { AMBIGUITY_DELTA, SELECT_MODES, type SelectMode } from "../../crossmatch/select.js";
 import { sideExtras } from "../../crossmatch/inputs.js";
@@ -159,6 +160,8 @@ const command: Command = {
       aheadB.cancel();
       throw e;
     }
+    // while B may still be read on a helper: the kernels the match would warm later are warmed now
+    warmKernelsFor(catA.raDeg.length);
     phase(`reading ${pathB}`);
     const catB = await loadForCommand(pathB, flags, noteIo, { index: 2, require: ["ra", "dec"], table: aheadB });
     const xa = sideExtras(catA.table, catA.roles, pathA);
