@@ -77,9 +77,7 @@ export function binByColour(v: ArrayLike<number>, scale: VelocityScale, draw?: U
   }
   for (let b = 1; b < N_BINS + 2; b++) count[b]! += count[b - 1]!;
   const start = count;
-  const colours: string[] = [];
-  for (let b = 0; b < N_BINS; b++) colours.push(scale(-lim + ((b + 0.5) / N_BINS) * 2 * lim));
-  colours.push(UNKNOWN_COLOUR);
+  const colours = coloursOf(scale);
   // the row order is made when first asked for (the vector export): drawing needs only the bins
   let order: Int32Array | null = null;
   return {
@@ -96,6 +94,40 @@ export function binByColour(v: ArrayLike<number>, scale: VelocityScale, draw?: U
         order[fill[b]!++] = i;
       }
       return order;
+    },
+  };
+}
+
+const colourCache = new WeakMap<VelocityScale, string[]>();
+
+/** The colour of each bin (its centre on the scale), then UNKNOWN_COLOUR. */
+export function coloursOf(scale: VelocityScale): string[] {
+  let colours = colourCache.get(scale);
+  if (colours) return colours;
+  const lim = scale.limit;
+  colours = [];
+  for (let b = 0; b < N_BINS; b++) colours.push(scale(-lim + ((b + 0.5) / N_BINS) * 2 * lim));
+  colours.push(UNKNOWN_COLOUR);
+  colourCache.set(scale, colours);
+  return colours;
+}
+
+/**
+ * binAll(v, scale) made only when its rows are first asked for (the vector export): a panel whose
+ * points come as cells needs only the colours.
+ */
+export function binsWhenAsked(v: Float64Array, scale: VelocityScale): BinnedColours {
+  const all = () => binAll(v, scale);
+  return {
+    colours: coloursOf(scale),
+    get start() {
+      return all().start;
+    },
+    get bin() {
+      return all().bin;
+    },
+    get order() {
+      return all().order;
     },
   };
 }

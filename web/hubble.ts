@@ -7,7 +7,7 @@
 import * as d3 from "d3";
 import { CanvasPanel, type PanelActions } from "./panel.js";
 import type { ViewState } from "./state.js";
-import { binAll, binByColour, FAINT_INK, INK, ORIGIN_MARK, type VelocityScale } from "./colour.js";
+import { binByColour, binsWhenAsked, FAINT_INK, INK, ORIGIN_MARK, type VelocityScale } from "./colour.js";
 import { compositeCells, DIM_ALPHA, drawBinnedPoints, drawMarks } from "./draw.js";
 import { HJ_H, HJ_K, HJ_LIM, HJ_N, HJ_ORIGIN_ROW, HJ_OUT, HJ_OX, HJ_OY, HJ_RA, HJ_RB, HJ_SIZE, HJ_SLOTS, HJ_W, HJ_XA, HJ_XB, HJ_YA, HJ_YB, HUBBLE_JOB, hubbleCells, type CellBox, type DrawJobs } from "./cells.js";
 import type { OriginView } from "./origin.js";
@@ -196,7 +196,7 @@ export class HubblePanel extends CanvasPanel {
     const box = (at: number): CellBox => ({ x0: pts.out[at]!, y0: pts.out[at + 1]!, x1: pts.out[at + 2]!, y1: pts.out[at + 3]!, drawn: 0 });
     const drawn = pts.out[8]!;
     const unknown = pts.out[9]!;
-    const bins = binAll(o.u, this.scale);
+    const bins = binsWhenAsked(o.u, this.scale);
     this.bins = bins;
     const alpha = st.nSelected > 0 ? DIM_ALPHA : 1;
     const selectedBins = st.nSelected > 0 ? binByColour(o.u, this.scale, st.selected) : null;

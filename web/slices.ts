@@ -7,7 +7,7 @@
 import * as d3 from "d3";
 import { CanvasPanel, type PanelActions } from "./panel.js";
 import type { ViewState } from "./state.js";
-import { BACKGROUND, binAll, binByColour, FAINT_INK, INK, N_BINS, ORIGIN_MARK, type VelocityScale } from "./colour.js";
+import { BACKGROUND, binByColour, binsWhenAsked, FAINT_INK, INK, N_BINS, ORIGIN_MARK, type VelocityScale } from "./colour.js";
 import { compositeCells, DIM_ALPHA, drawBinnedPoints, drawMarks } from "./draw.js";
 import { originLimits } from "./limits.js";
 import type { OriginView } from "./origin.js";
@@ -256,7 +256,7 @@ export class SlicePanel extends CanvasPanel {
     ctx.fillStyle = "#171b22";
     ctx.fillRect(sx(ca - R), sy(cb + R), side, side);
     // Velocity lines, one stroke per colour bin.
-    const bins = binAll(o.u, this.scale);
+    const bins = binsWhenAsked(o.u, this.scale);
     ctx.lineWidth = 1;
     ctx.globalAlpha = st.nSelected > 0 ? 0.35 : 0.9;
     const lines = { start: job.lineStart, xy: job.xy.subarray(0, 4 * job.lineStart[N_BINS]!) };
