@@ -5,10 +5,11 @@ import { beforeAll, describe, expect, it } from "vitest";
 import { writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { pathToFileURL } from "node:url";
-import { tableFromIPC, tableToIPC } from "apache-arrow";
+import { tableToIPC } from "apache-arrow";
 import { tableFromColumns } from "../src/catalogue/columns.js";
 import { csvBytes } from "../src/catalogue/formats/csv-write.js";
 import { readTable } from "../src/catalogue/io.js";
+import { tableFromParts, type TableParts } from "../src/catalogue/transfer.js";
 import { degreeBandJobs, degreeBandPairs } from "../src/crossmatch/pairs.js";
 import { HelperThread } from "../src/helper-threads.js";
 import { buildOnce, ROOT, tempDir } from "./cli-helpers.js";
@@ -24,10 +25,10 @@ describe("a helper thread", () => {
       const { dir } = tempDir();
       const f = join(dir, "in.csv");
       writeFileSync(f, "id,ra,dec\n1,10.5,-3.25\n2,200.125,45\n");
-      const read = await h.call<{ bytes?: Uint8Array; error?: unknown }>("read", { path: f, options: {} });
+      const read = await h.call<{ parts?: TableParts; error?: unknown }>("read", { path: f, options: {} });
       expect(read.error).toBeUndefined();
       const here = await readTable(f);
-      expect(JSON.stringify(tableFromIPC(read.bytes!).toArray())).toBe(JSON.stringify(here.toArray()));
+      expect(JSON.stringify(tableFromParts(read.parts!).toArray())).toBe(JSON.stringify(here.toArray()));
 
       const t = tableFromColumns([{ name: "x", kind: "float64", values: Float64Array.from([0.1, -2.5e-7, 3]) }]);
       const ipc = tableToIPC(t, "stream");

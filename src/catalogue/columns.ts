@@ -70,7 +70,7 @@ export interface ColumnData {
   meta?: ColumnMeta;
 }
 
-const ARROW_TYPES: Record<ColumnKind, () => DataType> = {
+export const ARROW_TYPES: Record<ColumnKind, () => DataType> = {
   float64: () => new Float64(),
   float32: () => new Float32(),
   int8: () => new Int8(),

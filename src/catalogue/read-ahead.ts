@@ -1,7 +1,7 @@
 /**
  * Reading a catalogue on a helper thread (helper-threads.ts) while this thread does something else
  * (the second input of `match` while the first is read here): the same readTable, run by the
- * helper's read job (read-worker.ts), the table coming back as Arrow IPC. Where no worker script is
+ * helper's read job (read-worker.ts), the table's buffers coming back moved, not copied (transfer.ts). Where no worker script is
  * found (the sources run directly, as under vitest), for Arrow files (already fast to read) and for
  * small files, it is readTable here. Errors are the same errors, with the same messages (file, row
  * and column).
@@ -10,6 +10,7 @@ import { statSync } from "node:fs";
 import { tableFromIPC, type Table } from "apache-arrow";
 import { formatFromPath, readTable, type ReadOptions } from "./io.js";
 import type { ReadReply } from "./read-worker.js";
+import { tableFromParts } from "./transfer.js";
 import { PeculiarError } from "../errors.js";
 import { helperThread } from "../helper-threads.js";
 
@@ -32,6 +33,7 @@ export function readTableAhead(path: string, options: ReadOptions = {}, how: { w
   if (!helper) return Object.assign(readTable(path, options), { cancel: () => {} });
   const p = helper.call<ReadReply>("read", { path, options }).then(
     (m) => {
+      if (m.parts) return tableFromParts(m.parts);
       if (m.bytes) return tableFromIPC(m.bytes);
       if (m.error?.code) {
         const e = new PeculiarError(m.error.code, "", m.error.place ?? {});

@@ -1,12 +1,15 @@
 /**
  * The read job of a helper thread (src/helper-worker.ts): reads one table with readTable and replies
- * with it as Arrow IPC bytes (transferred), or with the error it raised. See read-ahead.ts.
+ * with its column buffers (transfer.ts; moved, not copied), as Arrow IPC bytes when it has columns
+ * of other kinds, or with the error it raised. See read-ahead.ts.
  */
 import { tableToIPC } from "apache-arrow";
 import { readTable, type ReadOptions } from "./io.js";
+import { tablePartsOf, type TableParts } from "./transfer.js";
 import { PeculiarError, type ErrorCode, type ErrorPlace } from "../errors.js";
 
 export interface ReadReply {
+  parts?: TableParts;
   bytes?: Uint8Array;
   error?: { code?: ErrorCode; message: string; place?: ErrorPlace };
 }
@@ -14,6 +17,8 @@ export interface ReadReply {
 export async function readJob(m: { path: string; options: ReadOptions }): Promise<{ reply: ReadReply; transfer: ArrayBuffer[] }> {
   try {
     const table = await readTable(m.path, m.options);
+    const moved = tablePartsOf(table);
+    if (moved) return { reply: { parts: moved.parts }, transfer: moved.transfer };
     const bytes = tableToIPC(table, "stream");
     return { reply: { bytes }, transfer: [bytes.buffer as ArrayBuffer] };
   } catch (e) {
