@@ -103,7 +103,9 @@ export function originLimits(o: OriginView): OriginLimits {
   const [sMax] = sampledQuantiles(o.s, [0.998]);
   const [vLo, vHi] = sampledQuantiles(o.v, [0.001, 0.999]);
   const [uAbs] = sampledQuantiles(o.u, [0.99], Math.abs);
-  const [ext] = sampledQuantiles(o.x, [0.99], (x, i) => Math.max(Math.abs(x), Math.abs(o.y[i]!), Math.abs(o.z[i]!)));
+  // positions about the origin as sg - origin, value for value what o.x, o.y, o.z hold (without making them)
+  const { x: sx, y: sy, z: sz } = o.sg;
+  const [ext] = sampledQuantiles(sx, [0.99], (x, i) => Math.max(Math.abs(x - o.ox), Math.abs(sy[i]! - o.oy), Math.abs(sz[i]! - o.oz)));
   const out = { sMax: sMax!, vLo: vLo!, vHi: vHi!, uAbs: uAbs!, extentMpc: Number.isFinite(ext!) ? Math.max(1, ext! * 1.05) : 100 };
   cache.set(o, out);
   return out;

@@ -27,10 +27,12 @@ export interface OriginView {
   ox: number;
   oy: number;
   oz: number;
-  /** Positions relative to the origin, Mpc. */
-  x: Float64Array;
-  y: Float64Array;
-  z: Float64Array;
+  /** Positions relative to the origin, Mpc: sg - (ox, oy, oz) (made when first read). */
+  readonly x: Float64Array;
+  readonly y: Float64Array;
+  readonly z: Float64Array;
+  /** The catalogue's supergalactic positions about us (the same arrays for every origin), Mpc. */
+  sg: { x: Float64Array; y: Float64Array; z: Float64Array };
   /** Distance from the origin (Mpc) and radial velocity seen from there (km/s). */
   s: Float64Array;
   v: Float64Array;
@@ -149,18 +151,21 @@ function build(inp: OriginInputs, origin: RecentreOrigin, use: Uint8Array, kind:
   const kernelMs = performance.now() - t0;
   const n = p.x.length;
   const [ox, oy, oz] = rotate(GAL_TO_SG, o.x, o.y, o.z);
-  const x = new Float64Array(n);
-  const y = new Float64Array(n);
-  const z = new Float64Array(n);
   const u = new Float64Array(n);
   const h = Number.isFinite(r.h0There) ? r.h0There : inp.cosmology.h0;
+  for (let i = 0; i < n; i++) u[i] = r.vAB[i]! - h * r.s[i]!;
+  // positions about the origin, made when first read (the slices and the plot limits use sg - origin as they go)
   const sg = inp.sg;
-  for (let i = 0; i < n; i++) {
-    x[i] = sg.x[i]! - ox;
-    y[i] = sg.y[i]! - oy;
-    z[i] = sg.z[i]! - oz;
-    u[i] = r.vAB[i]! - h * r.s[i]!;
-  }
+  const rel = (c: Float64Array, oc: number) => {
+    let a: Float64Array | null = null;
+    return () => {
+      if (a) return a;
+      a = new Float64Array(n);
+      for (let i = 0; i < n; i++) a[i] = c[i]! - oc;
+      return a;
+    };
+  };
+  const [x, y, z] = [rel(sg.x, ox), rel(sg.y, oy), rel(sg.z, oz)];
   return {
     kind,
     row,
@@ -169,9 +174,16 @@ function build(inp: OriginInputs, origin: RecentreOrigin, use: Uint8Array, kind:
     ox,
     oy,
     oz,
-    x,
-    y,
-    z,
+    get x() {
+      return x();
+    },
+    get y() {
+      return y();
+    },
+    get z() {
+      return z();
+    },
+    sg,
     s: r.s,
     v: r.vAB,
     u,
