@@ -1,7 +1,8 @@
 /**
  * The page's fit worker: claims and runs chunks of the re-centring kernels (src/flow/recentre-kernels.ts,
- * the library's own code) on the workspace the page shares with it (fit-share.ts), then sleeps until the
- * next run. Started by fit-threads.ts with one message { buffer, capacity }.
+ * the library's own code) on the workspace the page shares with it (fit-share.ts), and the drawing jobs
+ * that follow a re-centring (cells.ts: the slices' and the Hubble diagram's points), then sleeps until
+ * the next run. Started by fit-threads.ts with one message { buffer, capacity }.
  */
 import { recentre } from "../src/flow/recentre.js";
 import { claimChunks, CTL_READY, CTL_SEQ, fitShareViews } from "./fit-share.js";
