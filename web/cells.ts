@@ -118,6 +118,124 @@ export function writeSquares(
   return { x0: bx0, y0: by0, x1: bx1, y1: by1, drawn };
 }
 
+/** The pixels of a mark at one device scale: offsets from the centre pixel and their alpha (0-255). */
+export interface MarkMask {
+  dx: Int16Array;
+  dy: Int16Array;
+  alpha: Uint8Array;
+  /** No offset is larger than this in x or y. */
+  ext: number;
+}
+const masks = new Map<string, MarkMask>();
+
+/**
+ * A ring of radius `radius`, or a cross of half-size `radius` (CSS px), as pixel coverage: 1 within
+ * half the line width of the curve, falling to 0 over one pixel (a box-filtered stroke).
+ */
+export function maskFor(kind: "ring" | "cross", radius: number, lineWidth: number, alpha: number, scale: number): MarkMask {
+  const key = `${kind} ${radius} ${lineWidth} ${alpha} ${scale}`;
+  let m = masks.get(key);
+  if (m) return m;
+  const R = radius * scale;
+  const hw = (lineWidth * scale) / 2;
+  const ext = Math.ceil(R + hw + 1);
+  const dx: number[] = [];
+  const dy: number[] = [];
+  const a: number[] = [];
+  for (let y = -ext; y <= ext; y++) {
+    for (let x = -ext; x <= ext; x++) {
+      let dist: number;
+      if (kind === "ring") dist = Math.abs(Math.hypot(x, y) - R);
+      else dist = Math.max(Math.abs(Math.abs(x) - Math.abs(y)) / Math.SQRT2, Math.max(Math.abs(x), Math.abs(y)) - R);
+      const cover = Math.min(1, Math.max(0, hw + 0.5 - dist));
+      if (cover <= 0) continue;
+      dx.push(x);
+      dy.push(y);
+      a.push(Math.round(255 * alpha * cover));
+    }
+  }
+  m = { dx: Int16Array.from(dx), dy: Int16Array.from(dy), alpha: Uint8Array.from(a), ext };
+  if (masks.size > 64) masks.clear();
+  masks.set(key, m);
+  return m;
+}
+
+const offsetCache = new WeakMap<MarkMask, { width: number; at: Int32Array }>();
+
+/** The mask's pixels as offsets dy * width + dx in a buffer of that row width. */
+function offsetsOf(m: MarkMask, width: number): Int32Array {
+  const c = offsetCache.get(m);
+  if (c && c.width === width) return c.at;
+  const at = new Int32Array(m.alpha.length);
+  for (let q = 0; q < at.length; q++) at[q] = m.dy[q]! * width + m.dx[q]!;
+  offsetCache.set(m, { width, at });
+  return at;
+}
+
+/** A device-pixel rectangle [x0, x1) x [y0, y1) that marks were written in (grown by stampMarks). */
+export interface MarkBox {
+  x0: number;
+  y0: number;
+  x1: number;
+  y1: number;
+}
+
+/**
+ * Stamps `mask` in colour rgb (0xBBGGRR) at each of `rows` that has a position (px, py CSS px; device
+ * position v * k + offset, floored) into buf (RGBA pixels, W x H): where marks overlap the more opaque
+ * pixel wins. Grows `box` to cover what was written.
+ */
+export function stampMarks(buf: Uint32Array, W: number, H: number, px: Float64Array, py: Float64Array, rows: Int32Array, mask: MarkMask, rgb: number, k: number, e0: number, f0: number, box: MarkBox): void {
+  const e = mask.ext;
+  const at = offsetsOf(mask, W);
+  const alpha = mask.alpha;
+  const np = alpha.length;
+  let { x0: bx0, y0: by0, x1: bx1, y1: by1 } = box;
+  for (let j = 0; j < rows.length; j++) {
+    const i = rows[j]!;
+    const x = px[i]!;
+    const y = py[i]!;
+    if (x !== x || y !== y) continue;
+    const vx = x * k + e0;
+    const vy = y * k + f0;
+    if (vx >= e && vy >= e && vx < W - e && vy < H - e) {
+      // the whole mark is on the canvas (floor(v) - e >= 0 and floor(v) + e < W): no test per pixel
+      const cx = vx | 0;
+      const cy = vy | 0;
+      const c0 = cy * W + cx;
+      for (let q = 0; q < np; q++) {
+        const p = c0 + at[q]!;
+        const a = alpha[q]!;
+        if (a > buf[p]! >>> 24) buf[p] = ((a << 24) | rgb) >>> 0;
+      }
+      if (cx - e < bx0) bx0 = cx - e;
+      if (cx + e >= bx1) bx1 = cx + e + 1;
+      if (cy - e < by0) by0 = cy - e;
+      if (cy + e >= by1) by1 = cy + e + 1;
+      continue;
+    }
+    const cx = Math.floor(vx);
+    const cy = Math.floor(vy);
+    for (let q = 0; q < np; q++) {
+      const X = cx + mask.dx[q]!;
+      const Y = cy + mask.dy[q]!;
+      if (X < 0 || Y < 0 || X >= W || Y >= H) continue;
+      const p = Y * W + X;
+      const a = alpha[q]!;
+      // overlapping marks: the more opaque pixel wins
+      if (a > buf[p]! >>> 24) buf[p] = ((a << 24) | rgb) >>> 0;
+      if (X < bx0) bx0 = X;
+      if (X >= bx1) bx1 = X + 1;
+      if (Y < by0) by0 = Y;
+      if (Y >= by1) by1 = Y + 1;
+    }
+  }
+  box.x0 = bx0;
+  box.y0 = by0;
+  box.x1 = bx1;
+  box.y1 = by1;
+}
+
 /** Slots of the Hubble job's parameters (a Float64Array, shared with the worker). */
 export const HJ_N = 0;
 export const HJ_XA = 1; // screen x = xa s + xb (CSS px), y = ya v + yb, residual y = ra u + rb
@@ -134,9 +252,17 @@ export const HJ_SIZE = 11;
 export const HJ_W = 12; // canvas, device px
 export const HJ_H = 13;
 export const HJ_ORIGIN_ROW = 14;
-/** Outputs: main box (4), residual box (4), rows drawn, rows with unknown distance or velocity. */
-export const HJ_OUT = 16;
-export const HJ_SLOTS = 32;
+export const HJ_E = 15; // device offset of CSS (0, 0) (the canvas transform's e, f)
+export const HJ_F = 16;
+export const HJ_MARKS = 17; // 1: stamp the group rings and outlier crosses too (into marksMain, marksRes)
+export const HJ_R = 18; // point radius, CSS px (the marks are sized from it)
+export const HJ_NG = 19; // rows in groupRows, outlierRows
+export const HJ_NO = 20;
+export const HJ_RING_RGB = 21; // 0xBBGGRR of the rings and crosses
+export const HJ_CROSS_RGB = 22;
+/** Outputs: main box (4), residual box (4), rows drawn, rows with unknown distance or velocity, main and residual marks' boxes (4 + 4). */
+export const HJ_OUT = 24;
+export const HJ_SLOTS = 48;
 
 export interface HubbleJob {
   P: Float64Array;
@@ -151,6 +277,11 @@ export interface HubbleJob {
   bin: Uint8Array;
   cellsMain: Uint8Array;
   cellsRes: Uint8Array;
+  /** With P[HJ_MARKS]: the rows marked as group members and as outliers (draw.ts markedRows), and the RGBA buffers the marks are stamped into. */
+  groupRows?: Int32Array;
+  outlierRows?: Int32Array;
+  marksMain?: Uint32Array;
+  marksRes?: Uint32Array;
 }
 
 /**
@@ -197,7 +328,24 @@ export function hubbleCells(job: HubbleJob): void {
   const b = bin.subarray(0, n);
   const main = writeSquares(job.cellsMain, W, H, px, py, b, k, ox, oy, size, null, null);
   const res = writeSquares(job.cellsRes, W, H, rx, ry, b, k, ox, oy, size, null, null);
-  P.set([main.x0, main.y0, main.x1, main.y1, res.x0, res.y0, res.x1, res.y1, main.drawn, unknown], HJ_OUT);
+  const mMain: MarkBox = { x0: W, y0: H, x1: 0, y1: 0 };
+  const mRes: MarkBox = { ...mMain };
+  const { groupRows, outlierRows, marksMain, marksRes } = job;
+  if (P[HJ_MARKS] && groupRows && outlierRows && marksMain && marksRes && W * H <= marksMain.length) {
+    // as draw.ts drawMarks stamps them: rings, then crosses, in each panel
+    const r = P[HJ_R]!;
+    const e = P[HJ_E]!;
+    const f = P[HJ_F]!;
+    const ring = maskFor("ring", r + 1.5, 0.8, 0.7, k);
+    const cross = maskFor("cross", r + 2.5, 1.2, 1, k);
+    const g = groupRows.subarray(0, P[HJ_NG]!);
+    const o = outlierRows.subarray(0, P[HJ_NO]!);
+    stampMarks(marksMain, W, H, px, py, g, ring, P[HJ_RING_RGB]!, k, e, f, mMain);
+    stampMarks(marksMain, W, H, px, py, o, cross, P[HJ_CROSS_RGB]!, k, e, f, mMain);
+    stampMarks(marksRes, W, H, rx, ry, g, ring, P[HJ_RING_RGB]!, k, e, f, mRes);
+    stampMarks(marksRes, W, H, rx, ry, o, cross, P[HJ_CROSS_RGB]!, k, e, f, mRes);
+  }
+  P.set([main.x0, main.y0, main.x1, main.y1, res.x0, res.y0, res.x1, res.y1, main.drawn, unknown, mMain.x0, mMain.y0, mMain.x1, mMain.y1, mRes.x0, mRes.y0, mRes.x1, mRes.y1], HJ_OUT);
 }
 
 /** Slots of a slice job's parameters (a Float64Array, shared with the worker). */

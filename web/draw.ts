@@ -7,7 +7,7 @@ import * as d3 from "d3";
 import type { BinnedColours, VelocityScale } from "./colour.js";
 import { binAll, binByColour, GROUP_RING, N_BINS, OUTLIER_MARK, SELECTED_RING } from "./colour.js";
 import type { ViewState } from "./state.js";
-import { writeSquares, type CellBox } from "./cells.js";
+import { maskFor, stampMarks, writeSquares, type CellBox, type MarkBox, type MarkMask } from "./cells.js";
 
 /** A reusable pixel layer the size of the canvas: points are written straight into its buffer. */
 interface Layer {
@@ -128,64 +128,10 @@ export function compositeCells(ctx: CanvasRenderingContext2D, cells: Uint8Array,
   composite(ctx, L, box.x0, box.y0, box.x1, box.y1, alpha);
 }
 
-/** The pixels of a mark at one device scale: offsets from the centre pixel and their alpha (0-255). */
-interface MarkMask {
-  dx: Int16Array;
-  dy: Int16Array;
-  alpha: Uint8Array;
-  /** No offset is larger than this in x or y. */
-  ext: number;
-}
-const masks = new Map<string, MarkMask>();
-
-/**
- * A ring of radius `radius`, or a cross of half-size `radius` (CSS px), as pixel coverage: 1 within
- * half the line width of the curve, falling to 0 over one pixel (a box-filtered stroke).
- */
-function maskFor(kind: "ring" | "cross", radius: number, lineWidth: number, alpha: number, scale: number): MarkMask {
-  const key = `${kind} ${radius} ${lineWidth} ${alpha} ${scale}`;
-  let m = masks.get(key);
-  if (m) return m;
-  const R = radius * scale;
-  const hw = (lineWidth * scale) / 2;
-  const ext = Math.ceil(R + hw + 1);
-  const dx: number[] = [];
-  const dy: number[] = [];
-  const a: number[] = [];
-  for (let y = -ext; y <= ext; y++) {
-    for (let x = -ext; x <= ext; x++) {
-      let dist: number;
-      if (kind === "ring") dist = Math.abs(Math.hypot(x, y) - R);
-      else dist = Math.max(Math.abs(Math.abs(x) - Math.abs(y)) / Math.SQRT2, Math.max(Math.abs(x), Math.abs(y)) - R);
-      const cover = Math.min(1, Math.max(0, hw + 0.5 - dist));
-      if (cover <= 0) continue;
-      dx.push(x);
-      dy.push(y);
-      a.push(Math.round(255 * alpha * cover));
-    }
-  }
-  m = { dx: Int16Array.from(dx), dy: Int16Array.from(dy), alpha: Uint8Array.from(a), ext };
-  if (masks.size > 64) masks.clear();
-  masks.set(key, m);
-  return m;
-}
-
-const offsetCache = new WeakMap<MarkMask, { width: number; at: Int32Array }>();
-
-/** The mask's pixels as offsets dy * width + dx in a buffer of that row width. */
-function offsetsOf(m: MarkMask, width: number): Int32Array {
-  const c = offsetCache.get(m);
-  if (c && c.width === width) return c.at;
-  const at = new Int32Array(m.alpha.length);
-  for (let q = 0; q < at.length; q++) at[q] = m.dy[q]! * width + m.dx[q]!;
-  offsetCache.set(m, { width, at });
-  return at;
-}
-
 const markedCache = new WeakMap<ViewState["data"], { groupMembers: Int32Array; outliers: Int32Array }>();
 
 /** The rows that carry a mark (members of groups of 2 or more, outliers), listed once per catalogue. */
-function markedRows(d: ViewState["data"]): { groupMembers: Int32Array; outliers: Int32Array } {
+export function markedRows(d: ViewState["data"]): { groupMembers: Int32Array; outliers: Int32Array } {
   let m = markedCache.get(d);
   if (m) return m;
   const g: number[] = [];
@@ -211,61 +157,41 @@ export function drawMarks(ctx: CanvasRenderingContext2D, state: ViewState, px: F
   const k = t.a;
   const L = layerFor(W, H);
   const buf = L.buf;
-  let bx0 = W;
-  let by0 = H;
-  let bx1 = 0;
-  let by1 = 0;
-  const stampAll = (mask: MarkMask, colour: string, rows: Int32Array) => {
-    const rgb = pixelOf(colour) & 0xffffff;
-    const e = mask.ext;
-    const at = offsetsOf(mask, W);
-    const alpha = mask.alpha;
-    const np = alpha.length;
-    for (let j = 0; j < rows.length; j++) {
-      const i = rows[j]!;
-      const x = px[i]!;
-      const y = py[i]!;
-      if (x !== x || y !== y) continue;
-      const vx = x * k + t.e;
-      const vy = y * k + t.f;
-      if (vx >= e && vy >= e && vx < W - e && vy < H - e) {
-        // the whole mark is on the canvas (floor(v) - e >= 0 and floor(v) + e < W): no test per pixel
-        const cx = vx | 0;
-        const cy = vy | 0;
-        const c0 = cy * W + cx;
-        for (let q = 0; q < np; q++) {
-          const p = c0 + at[q]!;
-          const a = alpha[q]!;
-          if (a > buf[p]! >>> 24) buf[p] = ((a << 24) | rgb) >>> 0;
-        }
-        if (cx - e < bx0) bx0 = cx - e;
-        if (cx + e >= bx1) bx1 = cx + e + 1;
-        if (cy - e < by0) by0 = cy - e;
-        if (cy + e >= by1) by1 = cy + e + 1;
-        continue;
-      }
-      const cx = Math.floor(vx);
-      const cy = Math.floor(vy);
-      for (let q = 0; q < mask.alpha.length; q++) {
-        const X = cx + mask.dx[q]!;
-        const Y = cy + mask.dy[q]!;
-        if (X < 0 || Y < 0 || X >= W || Y >= H) continue;
-        const p = Y * W + X;
-        const a = mask.alpha[q]!;
-        // overlapping marks: the more opaque pixel wins
-        if (a > buf[p]! >>> 24) buf[p] = ((a << 24) | rgb) >>> 0;
-        if (X < bx0) bx0 = X;
-        if (X >= bx1) bx1 = X + 1;
-        if (Y < by0) by0 = Y;
-        if (Y >= by1) by1 = Y + 1;
-      }
-    }
-  };
+  const box: MarkBox = { x0: W, y0: H, x1: 0, y1: 0 };
+  const stampAll = (mask: MarkMask, colour: string, rows: Int32Array) => stampMarks(buf, W, H, px, py, rows, mask, pixelOf(colour) & 0xffffff, k, t.e, t.f, box);
   const marked = markedRows(d);
   stampAll(maskFor("ring", r + 1.5, 0.8, 0.7, k), GROUP_RING, marked.groupMembers);
   stampAll(maskFor("cross", r + 2.5, 1.2, 1, k), OUTLIER_MARK, marked.outliers);
   if (state.nSelected > 0) stampAll(maskFor("ring", r + 1, 1, 1, k), SELECTED_RING, state.selectedRows);
-  composite(ctx, L, bx0, by0, bx1, by1, 1);
+  composite(ctx, L, box.x0, box.y0, box.x1, box.y1, 1);
+}
+
+/**
+ * drawMarks with the group rings and outlier crosses already stamped (by the worker: cells.ts
+ * hubbleCells) into `stamped` (a buffer the size of ctx's canvas) within `box`: they are moved into the
+ * pixel layer (and cleared there), the selection rings stamped on top, and the whole composited once.
+ */
+export function drawStampedMarks(ctx: CanvasRenderingContext2D, state: ViewState, px: Float64Array, py: Float64Array, r: number, stamped: Uint32Array, at: MarkBox): void {
+  const W = ctx.canvas.width;
+  const H = ctx.canvas.height;
+  const t = ctx.getTransform();
+  const k = t.a;
+  const L = layerFor(W, H);
+  const buf = L.buf;
+  const box: MarkBox = { ...at };
+  for (let yy = at.y0; yy < at.y1; yy++) {
+    const a = yy * W + at.x0;
+    const e = yy * W + at.x1;
+    buf.set(stamped.subarray(a, e), a);
+    stamped.fill(0, a, e);
+  }
+  if (state.nSelected > 0) stampMarks(buf, W, H, px, py, state.selectedRows, maskFor("ring", r + 1, 1, 1, k), pixelOf(SELECTED_RING) & 0xffffff, k, t.e, t.f, box);
+  composite(ctx, L, box.x0, box.y0, box.x1, box.y1, 1);
+}
+
+/** The marks' masks and colours that drawMarks stamps for group members and outliers (for the worker's stamps). */
+export function markStyle(r: number, k: number): { ring: MarkMask; cross: MarkMask; ringRgb: number; crossRgb: number } {
+  return { ring: maskFor("ring", r + 1.5, 0.8, 0.7, k), cross: maskFor("cross", r + 2.5, 1.2, 1, k), ringRgb: pixelOf(GROUP_RING) & 0xffffff, crossRgb: pixelOf(OUTLIER_MARK) & 0xffffff };
 }
 
 /** A ring around the hovered row and a marker for the origin. */

@@ -34,6 +34,8 @@ export const DRAW_JOBS = 16;
 export const MAX_JOBS = 8;
 /** Device pixels of the largest canvas whose Hubble cells the worker can write (two buffers of this many bytes). */
 export const MAX_CELLS = 1 << 22;
+/** Device pixels of the largest canvas whose Hubble marks the worker can stamp (two RGBA buffers). */
+export const MAX_MARK_PIXELS = 1 << 21;
 /** The same for each slice (one buffer). */
 export const MAX_SLICE_CELLS = 1 << 21;
 /** Slices with a job of their own. */
@@ -65,7 +67,7 @@ function layout(capacity: number) {
   const doneAt = CTL_WORDS * 4;
   const workAt = Math.ceil((doneAt + chunks * 4) / 8) * 8;
   const hubbleAt = Math.ceil((workAt + workBytes(capacity)) / 8) * 8;
-  const hubbleBytes = HJ_SLOTS * 8 + 7 * capacity * 8 + capacity + 2 * MAX_CELLS;
+  const hubbleBytes = HJ_SLOTS * 8 + 7 * capacity * 8 + 2 * capacity * 4 + 2 * MAX_MARK_PIXELS * 4 + capacity + 2 * MAX_CELLS;
   const slicesAt = Math.ceil((hubbleAt + hubbleBytes) / 8) * 8;
   // sg (3 columns), then per slice: P, px, py, xy (4 a row), rows, lineStart (32), bin, cells
   const sliceBytes = SJ_SLOTS * 8 + 6 * capacity * 8 + capacity * 4 + 32 * 4 + capacity + MAX_SLICE_CELLS;
@@ -117,7 +119,33 @@ function hubbleOn(buffer: SharedArrayBuffer, at: number, capacity: number): Hubb
     at += len;
     return a;
   };
-  return { P: f64(HJ_SLOTS), s: f64(capacity), v: f64(capacity), u: f64(capacity), px: f64(capacity), py: f64(capacity), rx: f64(capacity), ry: f64(capacity), bin: u8(capacity), cellsMain: u8(MAX_CELLS), cellsRes: u8(MAX_CELLS) };
+  const i32 = (len: number) => {
+    const a = new Int32Array(buffer, at, len);
+    at += len * 4;
+    return a;
+  };
+  const u32 = (len: number) => {
+    const a = new Uint32Array(buffer, at, len);
+    at += len * 4;
+    return a;
+  };
+  return {
+    P: f64(HJ_SLOTS),
+    s: f64(capacity),
+    v: f64(capacity),
+    u: f64(capacity),
+    px: f64(capacity),
+    py: f64(capacity),
+    rx: f64(capacity),
+    ry: f64(capacity),
+    groupRows: i32(capacity),
+    outlierRows: i32(capacity),
+    marksMain: u32(MAX_MARK_PIXELS),
+    marksRes: u32(MAX_MARK_PIXELS),
+    bin: u8(capacity),
+    cellsMain: u8(MAX_CELLS),
+    cellsRes: u8(MAX_CELLS),
+  };
 }
 
 export function fitShareBytes(capacity: number): number {

@@ -8,8 +8,8 @@ import * as d3 from "d3";
 import { CanvasPanel, type PanelActions } from "./panel.js";
 import type { ViewState } from "./state.js";
 import { binByColour, binsWhenAsked, FAINT_INK, INK, ORIGIN_MARK, type VelocityScale } from "./colour.js";
-import { compositeCells, DIM_ALPHA, drawBinnedPoints, drawMarks } from "./draw.js";
-import { HJ_H, HJ_K, HJ_LIM, HJ_N, HJ_ORIGIN_ROW, HJ_OUT, HJ_OX, HJ_OY, HJ_RA, HJ_RB, HJ_SIZE, HJ_SLOTS, HJ_W, HJ_XA, HJ_XB, HJ_YA, HJ_YB, HUBBLE_JOB, hubbleCells, type CellBox, type DrawJobs } from "./cells.js";
+import { compositeCells, DIM_ALPHA, drawBinnedPoints, drawMarks, drawStampedMarks, markedRows, markStyle } from "./draw.js";
+import { HJ_CROSS_RGB, HJ_E, HJ_F, HJ_MARKS, HJ_NG, HJ_NO, HJ_R, HJ_RING_RGB, HJ_H, HJ_K, HJ_LIM, HJ_N, HJ_ORIGIN_ROW, HJ_OUT, HJ_OX, HJ_OY, HJ_RA, HJ_RB, HJ_SIZE, HJ_SLOTS, HJ_W, HJ_XA, HJ_XB, HJ_YA, HJ_YB, HUBBLE_JOB, hubbleCells, type CellBox, type DrawJobs } from "./cells.js";
 import type { OriginView } from "./origin.js";
 import { originLimits } from "./limits.js";
 
@@ -40,6 +40,9 @@ export class HubblePanel extends CanvasPanel {
     this.clearsPositions = false;
     if (this.jobs) {
       const j = this.jobs.hubble;
+      const m = markedRows(state.data);
+      j.groupRows!.set(m.groupMembers);
+      j.outlierRows!.set(m.outliers);
       this.px = j.px.subarray(0, n).fill(NaN);
       this.py = j.py.subarray(0, n).fill(NaN);
       this.rx = j.rx.subarray(0, n).fill(NaN);
@@ -103,6 +106,19 @@ export class HubblePanel extends CanvasPanel {
     P[HJ_W] = W;
     P[HJ_H] = H;
     P[HJ_ORIGIN_ROW] = this.state.origin.row;
+    P[HJ_E] = e;
+    P[HJ_F] = f;
+    P[HJ_R] = r;
+    // the worker stamps the group rings and outlier crosses too, where its buffers hold the canvas
+    if (this.jobs && W * H <= this.jobs.hubble.marksMain!.length) {
+      const m = markedRows(this.state.data);
+      const style = markStyle(r, k);
+      P[HJ_MARKS] = 1;
+      P[HJ_NG] = m.groupMembers.length;
+      P[HJ_NO] = m.outliers.length;
+      P[HJ_RING_RGB] = style.ringRgb;
+      P[HJ_CROSS_RGB] = style.crossRgb;
+    }
     return P;
   }
 
@@ -149,7 +165,7 @@ export class HubblePanel extends CanvasPanel {
   }
 
   /** The outputs of the points job for these parameters: the worker's if it was queued with them, else run here. */
-  private runPoints(P: Float64Array): { cellsMain: Uint8Array; cellsRes: Uint8Array; out: Float64Array } {
+  private runPoints(P: Float64Array): { cellsMain: Uint8Array; cellsRes: Uint8Array; out: Float64Array; marks: [Uint32Array, Uint32Array] | null } {
     const o = this.state.origin;
     const q = this.queued;
     this.queued = null;
@@ -157,14 +173,15 @@ export class HubblePanel extends CanvasPanel {
       const job = this.jobs.hubble;
       if (q && q.origin === o && q.P.every((v, i) => Object.is(v, P[i]))) {
         this.jobs.finish(q.index);
-        return { cellsMain: job.cellsMain, cellsRes: job.cellsRes, out: job.P.subarray(HJ_OUT) };
+        const marks: [Uint32Array, Uint32Array] | null = P[HJ_MARKS] ? [job.marksMain!, job.marksRes!] : null;
+        return { cellsMain: job.cellsMain, cellsRes: job.cellsRes, out: job.P.subarray(HJ_OUT), marks };
       }
       // made for another origin or size: wait for it and clear its cells (not queued: no job of the
       // open run, if any, is on this panel's arrays); the job is run here
       if (q) {
         this.jobs.finish(q.index);
         const W = job.P[HJ_W]!;
-        for (const [cells, at] of [[job.cellsMain, HJ_OUT], [job.cellsRes, HJ_OUT + 4]] as const) {
+        for (const [cells, at] of [[job.cellsMain, HJ_OUT], [job.cellsRes, HJ_OUT + 4], [job.marksMain!, HJ_OUT + 10], [job.marksRes!, HJ_OUT + 14]] as const) {
           const [x0, y0, x1, y1] = job.P.subarray(at, at + 4);
           for (let yy = y0!; yy < y1!; yy++) cells.fill(0, yy * W + x0!, yy * W + x1!);
         }
@@ -176,8 +193,9 @@ export class HubblePanel extends CanvasPanel {
       this.local = { W, H, bin: new Uint8Array(this.state.data.n), cellsMain: new Uint8Array(W * H), cellsRes: new Uint8Array(W * H) };
     }
     const L = this.local;
+    // (no mark buffers here: the draw stamps the marks itself)
     hubbleCells({ P, s: o.s, v: o.v, u: o.u, px: this.px, py: this.py, rx: this.rx, ry: this.ry, bin: L.bin, cellsMain: L.cellsMain, cellsRes: L.cellsRes });
-    return { cellsMain: L.cellsMain, cellsRes: L.cellsRes, out: P.subarray(HJ_OUT) };
+    return { cellsMain: L.cellsMain, cellsRes: L.cellsRes, out: P.subarray(HJ_OUT), marks: null };
   }
 
   protected draw(ctx: CanvasRenderingContext2D): number {
@@ -194,6 +212,7 @@ export class HubblePanel extends CanvasPanel {
     const t = ctx.getTransform();
     const pts = this.runPoints(this.jobParams(geo, ctx.canvas.width, ctx.canvas.height, t.a, t.e, t.f));
     const box = (at: number): CellBox => ({ x0: pts.out[at]!, y0: pts.out[at + 1]!, x1: pts.out[at + 2]!, y1: pts.out[at + 3]!, drawn: 0 });
+    const markBox = (at: number) => ({ x0: pts.out[at]!, y0: pts.out[at + 1]!, x1: pts.out[at + 2]!, y1: pts.out[at + 3]! });
     const drawn = pts.out[8]!;
     const unknown = pts.out[9]!;
     const bins = binsWhenAsked(o.u, this.scale);
@@ -212,7 +231,8 @@ export class HubblePanel extends CanvasPanel {
     if (drawn <= MAX_POINTS_WITH_ERROR_BARS) this.errorBars(ctx, x, y, H);
     compositeCells(ctx, pts.cellsMain, box(0), bins.colours, alpha);
     if (selectedBins) drawBinnedPoints(ctx, px, py, selectedBins, this.pointRadius + 0.5, 1);
-    drawMarks(ctx, st, px, py, this.pointRadius);
+    if (pts.marks) drawStampedMarks(ctx, st, px, py, this.pointRadius, pts.marks[0], markBox(10));
+    else drawMarks(ctx, st, px, py, this.pointRadius);
     ctx.restore();
     ctx.save();
     ctx.beginPath();
@@ -227,7 +247,8 @@ export class HubblePanel extends CanvasPanel {
     ctx.globalAlpha = 1;
     compositeCells(ctx, pts.cellsRes, box(4), bins.colours, alpha);
     if (selectedBins) drawBinnedPoints(ctx, rx, ry, selectedBins, this.pointRadius + 0.5, 1);
-    drawMarks(ctx, st, rx, ry, this.pointRadius);
+    if (pts.marks) drawStampedMarks(ctx, st, rx, ry, this.pointRadius, pts.marks[1], markBox(14));
+    else drawMarks(ctx, st, rx, ry, this.pointRadius);
     ctx.restore();
 
     // Overlay: axes, fitted laws, labels.
