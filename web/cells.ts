@@ -277,6 +277,8 @@ export interface HubbleJob {
   bin: Uint8Array;
   cellsMain: Uint8Array;
   cellsRes: Uint8Array;
+  /** The residual panel's bins when it is made on its own (part 2). */
+  binRes?: Uint8Array;
   /** With P[HJ_MARKS]: the rows marked as group members and as outliers (draw.ts markedRows), and the RGBA buffers the marks are stamped into. */
   groupRows?: Int32Array;
   outlierRows?: Int32Array;
@@ -286,11 +288,14 @@ export interface HubbleJob {
 
 /**
  * The Hubble diagram's points: each row's position in the diagram (s, v) and in the residual panel
- * (s, u), its colour bin of u, and both clouds written as cells (writeSquares); boxes and counts go to
- * P[HJ_OUT ...]. Every row of px, py, rx, ry and bin is written.
+ * (s, u), its colour bin of u, and both clouds written as cells (writeSquares), with P[HJ_MARKS] the
+ * group rings and outlier crosses stamped as drawMarks does; boxes and counts go to P[HJ_OUT ...].
+ * Every row of px, py, rx, ry and bin is written. `part` 1 makes the diagram alone (px, py, bin,
+ * cellsMain, marksMain, counts), 2 the residual panel alone (rx, ry, binRes, cellsRes, marksRes): the
+ * two parts write disjoint outputs, so two threads can run them at once; 0 makes both.
  */
-export function hubbleCells(job: HubbleJob): void {
-  const { P, s: S, v: V, u: U, px, py, rx, ry, bin } = job;
+export function hubbleCells(job: HubbleJob, part: 0 | 1 | 2 = 0): void {
+  const { P, s: S, v: V, u: U, px, py, rx, ry } = job;
   const n = P[HJ_N]!;
   const xa = P[HJ_XA]!;
   const xb = P[HJ_XB]!;
@@ -300,6 +305,9 @@ export function hubbleCells(job: HubbleJob): void {
   const rb = P[HJ_RB]!;
   const lim = P[HJ_LIM]!;
   const originRow = P[HJ_ORIGIN_ROW]!;
+  const doMain = part !== 2;
+  const doRes = part !== 1;
+  const bin = part === 2 ? job.binRes! : job.bin;
   let unknown = 0;
   for (let i = 0; i < n; i++) {
     const s = S[i]!;
@@ -307,17 +315,25 @@ export function hubbleCells(job: HubbleJob): void {
     bin[i] = binOf(U[i]!, lim);
     if (!Number.isFinite(s) || !Number.isFinite(v)) {
       if (i !== originRow) unknown++;
-      px[i] = NaN;
-      py[i] = NaN;
-      rx[i] = NaN;
-      ry[i] = NaN;
+      if (doMain) {
+        px[i] = NaN;
+        py[i] = NaN;
+      }
+      if (doRes) {
+        rx[i] = NaN;
+        ry[i] = NaN;
+      }
       continue;
     }
     const x = xa * s + xb;
-    px[i] = x;
-    py[i] = ya * v + yb;
-    rx[i] = x;
-    ry[i] = ra * U[i]! + rb;
+    if (doMain) {
+      px[i] = x;
+      py[i] = ya * v + yb;
+    }
+    if (doRes) {
+      rx[i] = x;
+      ry[i] = ra * U[i]! + rb;
+    }
   }
   const W = P[HJ_W]!;
   const H = P[HJ_H]!;
@@ -326,26 +342,31 @@ export function hubbleCells(job: HubbleJob): void {
   const oy = P[HJ_OY]!;
   const size = P[HJ_SIZE]!;
   const b = bin.subarray(0, n);
-  const main = writeSquares(job.cellsMain, W, H, px, py, b, k, ox, oy, size, null, null);
-  const res = writeSquares(job.cellsRes, W, H, rx, ry, b, k, ox, oy, size, null, null);
-  const mMain: MarkBox = { x0: W, y0: H, x1: 0, y1: 0 };
-  const mRes: MarkBox = { ...mMain };
-  const { groupRows, outlierRows, marksMain, marksRes } = job;
-  if (P[HJ_MARKS] && groupRows && outlierRows && marksMain && marksRes && W * H <= marksMain.length) {
-    // as draw.ts drawMarks stamps them: rings, then crosses, in each panel
-    const r = P[HJ_R]!;
-    const e = P[HJ_E]!;
-    const f = P[HJ_F]!;
-    const ring = maskFor("ring", r + 1.5, 0.8, 0.7, k);
-    const cross = maskFor("cross", r + 2.5, 1.2, 1, k);
-    const g = groupRows.subarray(0, P[HJ_NG]!);
-    const o = outlierRows.subarray(0, P[HJ_NO]!);
-    stampMarks(marksMain, W, H, px, py, g, ring, P[HJ_RING_RGB]!, k, e, f, mMain);
-    stampMarks(marksMain, W, H, px, py, o, cross, P[HJ_CROSS_RGB]!, k, e, f, mMain);
-    stampMarks(marksRes, W, H, rx, ry, g, ring, P[HJ_RING_RGB]!, k, e, f, mRes);
-    stampMarks(marksRes, W, H, rx, ry, o, cross, P[HJ_CROSS_RGB]!, k, e, f, mRes);
+  const { groupRows, outlierRows } = job;
+  const stamp = P[HJ_MARKS] && groupRows && outlierRows && job.marksMain && job.marksRes && W * H <= job.marksMain.length;
+  const r = P[HJ_R]!;
+  const ring = stamp ? maskFor("ring", r + 1.5, 0.8, 0.7, k) : null;
+  const cross = stamp ? maskFor("cross", r + 2.5, 1.2, 1, k) : null;
+  // one panel's cells and, as draw.ts drawMarks stamps them, its rings and then its crosses
+  const panel = (cells: Uint8Array, marks: Uint32Array | undefined, qx: Float64Array, qy: Float64Array, at: number, marksAt: number) => {
+    const box = writeSquares(cells, W, H, qx, qy, b, k, ox, oy, size, null, null);
+    const m: MarkBox = { x0: W, y0: H, x1: 0, y1: 0 };
+    if (ring && cross && marks && groupRows && outlierRows) {
+      const e = P[HJ_E]!;
+      const f = P[HJ_F]!;
+      stampMarks(marks, W, H, qx, qy, groupRows.subarray(0, P[HJ_NG]!), ring, P[HJ_RING_RGB]!, k, e, f, m);
+      stampMarks(marks, W, H, qx, qy, outlierRows.subarray(0, P[HJ_NO]!), cross, P[HJ_CROSS_RGB]!, k, e, f, m);
+    }
+    P.set([box.x0, box.y0, box.x1, box.y1], at);
+    P.set([m.x0, m.y0, m.x1, m.y1], marksAt);
+    return box;
+  };
+  if (doMain) {
+    const main = panel(job.cellsMain, job.marksMain, px, py, HJ_OUT, HJ_OUT + 10);
+    P[HJ_OUT + 8] = main.drawn;
+    P[HJ_OUT + 9] = unknown;
   }
-  P.set([main.x0, main.y0, main.x1, main.y1, res.x0, res.y0, res.x1, res.y1, main.drawn, unknown, mMain.x0, mMain.y0, mMain.x1, mMain.y1, mRes.x0, mRes.y0, mRes.x1, mRes.y1], HJ_OUT);
+  if (doRes) panel(job.cellsRes, job.marksRes, rx, ry, HJ_OUT + 4, HJ_OUT + 14);
 }
 
 /** Slots of a slice job's parameters (a Float64Array, shared with the worker). */
@@ -466,8 +487,9 @@ export function sliceCells(job: SliceJob): void {
   P.set([box.x0, box.y0, box.x1, box.y1, box.drawn, m, unknown], SJ_OUT);
 }
 
-/** Drawing jobs of one redraw: job kinds (HUBBLE_JOB, or SLICE_JOB + the slice's number) in the order they are needed. */
-export const HUBBLE_JOB = 0;
+/** Drawing jobs of one redraw: job kinds (the Hubble diagram's two parts, or SLICE_JOB + the slice's number) in the order they are needed. */
+export const HUBBLE_MAIN_JOB = 8;
+export const HUBBLE_RES_JOB = 9;
 export const SLICE_JOB = 1;
 
 /**

@@ -17,7 +17,7 @@
  * jobs table: cells.ts's Hubble diagram and slice points), which the worker takes while the page draws.
  */
 import { chunksOf, KERNELS, workBytes, workOn, type RecentreWork } from "../src/flow/recentre-kernels.js";
-import { HJ_SLOTS, HUBBLE_JOB, hubbleCells, SJ_SLOTS, sliceCells, type HubbleJob, type SliceJob } from "./cells.js";
+import { HJ_SLOTS, HUBBLE_MAIN_JOB, HUBBLE_RES_JOB, hubbleCells, SJ_SLOTS, sliceCells, type HubbleJob, type SliceJob } from "./cells.js";
 
 /** Control words: the run's number, the worker's readiness, the claim word, the run's rows and kernel. */
 export const CTL_SEQ = 0;
@@ -67,7 +67,7 @@ function layout(capacity: number) {
   const doneAt = CTL_WORDS * 4;
   const workAt = Math.ceil((doneAt + chunks * 4) / 8) * 8;
   const hubbleAt = Math.ceil((workAt + workBytes(capacity)) / 8) * 8;
-  const hubbleBytes = HJ_SLOTS * 8 + 7 * capacity * 8 + 2 * capacity * 4 + 2 * MAX_MARK_PIXELS * 4 + capacity + 2 * MAX_CELLS;
+  const hubbleBytes = HJ_SLOTS * 8 + 7 * capacity * 8 + 2 * capacity * 4 + 2 * MAX_MARK_PIXELS * 4 + 2 * capacity + 2 * MAX_CELLS;
   const slicesAt = Math.ceil((hubbleAt + hubbleBytes) / 8) * 8;
   // sg (3 columns), then per slice: P, px, py, xy (4 a row), rows, lineStart (32), bin, cells
   const sliceBytes = SJ_SLOTS * 8 + 6 * capacity * 8 + capacity * 4 + 32 * 4 + capacity + MAX_SLICE_CELLS;
@@ -104,7 +104,8 @@ function slicesOn(buffer: SharedArrayBuffer, at: number, capacity: number, hubbl
 /** Runs job c of the current run of drawing jobs. */
 export function runDrawJob(share: FitShare, c: number): void {
   const kind = share.jobs[c]!;
-  if (kind === HUBBLE_JOB) hubbleCells(share.hubble);
+  if (kind === HUBBLE_MAIN_JOB) hubbleCells(share.hubble, 1);
+  else if (kind === HUBBLE_RES_JOB) hubbleCells(share.hubble, 2);
   else sliceCells(share.slices[kind - 1]!);
 }
 
@@ -143,6 +144,7 @@ function hubbleOn(buffer: SharedArrayBuffer, at: number, capacity: number): Hubb
     marksMain: u32(MAX_MARK_PIXELS),
     marksRes: u32(MAX_MARK_PIXELS),
     bin: u8(capacity),
+    binRes: u8(capacity),
     cellsMain: u8(MAX_CELLS),
     cellsRes: u8(MAX_CELLS),
   };

@@ -63,10 +63,11 @@ export class TwoThreads implements RecentreThreads {
         const { ctl, done } = this.share;
         const t0 = performance.now();
         while (Atomics.load(done, k) === 0) {
-          // a job up to k that the worker has not taken yet is run here
+          // a job the worker has not taken yet is run here: one up to k, or a later one while the
+          // worker is still on k (the page needs them all, and waits only for a job being run)
           const v = Atomics.load(ctl, CTL_CLAIM);
           const c = v & 0xffff;
-          if (c <= k && c < v >>> 16) {
+          if (c < v >>> 16) {
             if (Atomics.compareExchange(ctl, CTL_CLAIM, v, v + 1) === v) {
               runDrawJob(this.share, c);
               Atomics.store(done, c, 1);

@@ -9,7 +9,7 @@ import { CanvasPanel, type PanelActions } from "./panel.js";
 import type { ViewState } from "./state.js";
 import { binByColour, binsWhenAsked, FAINT_INK, INK, ORIGIN_MARK, type VelocityScale } from "./colour.js";
 import { compositeCells, DIM_ALPHA, drawBinnedPoints, drawMarks, drawStampedMarks, markedRows, markStyle } from "./draw.js";
-import { HJ_CROSS_RGB, HJ_E, HJ_F, HJ_MARKS, HJ_NG, HJ_NO, HJ_R, HJ_RING_RGB, HJ_H, HJ_K, HJ_LIM, HJ_N, HJ_ORIGIN_ROW, HJ_OUT, HJ_OX, HJ_OY, HJ_RA, HJ_RB, HJ_SIZE, HJ_SLOTS, HJ_W, HJ_XA, HJ_XB, HJ_YA, HJ_YB, HUBBLE_JOB, hubbleCells, type CellBox, type DrawJobs } from "./cells.js";
+import { HJ_CROSS_RGB, HJ_E, HJ_F, HJ_MARKS, HJ_NG, HJ_NO, HJ_R, HJ_RING_RGB, HJ_H, HJ_K, HJ_LIM, HJ_N, HJ_ORIGIN_ROW, HJ_OUT, HJ_OX, HJ_OY, HJ_RA, HJ_RB, HJ_SIZE, HJ_SLOTS, HJ_W, HJ_XA, HJ_XB, HJ_YA, HJ_YB, HUBBLE_MAIN_JOB, HUBBLE_RES_JOB, hubbleCells, type CellBox, type DrawJobs } from "./cells.js";
 import type { OriginView } from "./origin.js";
 import { originLimits } from "./limits.js";
 
@@ -155,8 +155,9 @@ export class HubblePanel extends CanvasPanel {
     if (W * H > this.jobs.hubble.cellsMain.length) return;
     const P = this.jobParams(this.geometry(w, h), W, H, dpr, 0, 0);
     this.jobs.hubble.P.set(P);
+    // two jobs (the diagram, the residual panel) that two threads can run at once
     this.queued = { origin: this.state.origin, P, index: kinds.length };
-    kinds.push(HUBBLE_JOB);
+    kinds.push(HUBBLE_MAIN_JOB, HUBBLE_RES_JOB);
   }
 
   /** The run of jobs was not opened: the queued job is forgotten (the draw runs it here). */
@@ -173,6 +174,7 @@ export class HubblePanel extends CanvasPanel {
       const job = this.jobs.hubble;
       if (q && q.origin === o && q.P.every((v, i) => Object.is(v, P[i]))) {
         this.jobs.finish(q.index);
+        this.jobs.finish(q.index + 1);
         const marks: [Uint32Array, Uint32Array] | null = P[HJ_MARKS] ? [job.marksMain!, job.marksRes!] : null;
         return { cellsMain: job.cellsMain, cellsRes: job.cellsRes, out: job.P.subarray(HJ_OUT), marks };
       }
@@ -180,6 +182,7 @@ export class HubblePanel extends CanvasPanel {
       // open run, if any, is on this panel's arrays); the job is run here
       if (q) {
         this.jobs.finish(q.index);
+        this.jobs.finish(q.index + 1);
         const W = job.P[HJ_W]!;
         for (const [cells, at] of [[job.cellsMain, HJ_OUT], [job.cellsRes, HJ_OUT + 4], [job.marksMain!, HJ_OUT + 10], [job.marksRes!, HJ_OUT + 14]] as const) {
           const [x0, y0, x1, y1] = job.P.subarray(at, at + 4);
