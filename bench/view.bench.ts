@@ -6,11 +6,17 @@
  *  - first draw: from navigation start to the page's ready mark (fetch, Arrow decode, home fit, every
  *    panel drawn), and the page's own part of it (from its script start);
  *  - re-centre: kernel (the library's recentre in the browser) and kernel + redrawing every panel, both
- *    synchronous; and to the next animation frame (the browser has painted);
+ *    synchronous; and to the next animation frame (the browser has painted). Each re-centring starts
+ *    SETTLE_MS after the last frame, as a click does (the user has seen the page): started at once, the
+ *    fit worker shared the second core with the browser's compositing of the frame just drawn (with
+ *    PECULIAR_BENCH_SETTLE_MS=0, the back-to-back protocol of the sessions before, for comparison);
  *  - baseline, side by side: going back home (the same redraw without the kernel), so the ratio shows
  *    what re-centring costs beyond drawing;
  *  - threads, side by side: each galaxy is re-centred on twice, with the page's fit worker (the default,
- *    web/fit-threads.ts) and on the page's thread alone, in alternating order.
+ *    web/fit-threads.ts: kernel chunks, and the Hubble diagram's points while the page draws the slices)
+ *    and on the page's thread alone, in alternating order;
+ *  - the redraw's parts with the worker (timing.panelMs of the page: each panel redrawn on the change of
+ *    origin, in the order drawn).
  */
 import { startViewServer } from "../src/server/index.js";
 import { launchBrowser } from "../test/web/browser.js";
@@ -23,6 +29,8 @@ import { originInputs } from "../web/origin.js";
 const SIZES = [10_000, 100_000];
 const RUNS = 3;
 const RECENTRES = 5;
+/** Pause before each timed re-centring, ms. */
+const SETTLE_MS = Number(process.env.PECULIAR_BENCH_SETTLE_MS ?? 250);
 
 function median(a: number[]): number {
   const s = [...a].sort((x, y) => x - y);
@@ -44,6 +52,8 @@ interface Row {
   recentreFrame1: number;
   /** Share of the kernels' chunks that the worker ran. */
   workerShare: number;
+  /** Medians of each panel's redraw on re-centring with the worker, ms. */
+  panels: Record<string, number>;
 }
 
 const rows: Row[] = [];
@@ -82,6 +92,7 @@ try {
     const total1: number[] = [];
     const frame1: number[] = [];
     let share: number[] | undefined;
+    const panelMs: Record<string, number[]> = {};
     const rnd = randomLcg(n);
     const parts: Record<string, number[]> = {};
     try {
@@ -109,8 +120,10 @@ try {
             const r = (await page.evaluate(`(async () => {
               const v = window.peculiarView;
               v.useFitThreads(${threads});
+              await new Promise((ok) => setTimeout(ok, ${SETTLE_MS}));
               const t0 = performance.now();
               const t = v.recentreOn(${row});
+              const panels = { ...v.timing.panelMs };
               await new Promise((ok) => requestAnimationFrame(() => ok()));
               const toFrame = performance.now() - t0;
               const h0 = performance.now();
@@ -118,9 +131,10 @@ try {
               const homeMs = performance.now() - h0;
               v.useFitThreads(true);
               await new Promise((ok) => requestAnimationFrame(() => ok()));
-              return { kernel: t.kernelMs, total: t.totalMs, frame: toFrame, home: homeMs };
-            })()`)) as { kernel: number; total: number; frame: number; home: number };
+              return { kernel: t.kernelMs, total: t.totalMs, frame: toFrame, home: homeMs, panels };
+            })()`)) as { kernel: number; total: number; frame: number; home: number; panels: Record<string, number> };
             if (run === 0) continue;
+            if (threads) for (const [name, ms] of Object.entries(r.panels)) (panelMs[name] ??= []).push(ms);
             (threads ? kernel : kernel1).push(r.kernel);
             (threads ? total : total1).push(r.total);
             (threads ? frame : frame1).push(r.frame);
@@ -147,6 +161,7 @@ try {
       recentre1: median(total1),
       recentreFrame1: median(frame1),
       workerShare: share ? median(share) : NaN,
+      panels: Object.fromEntries(Object.entries(panelMs).map(([k, v]) => [k, median(v)])),
     });
   }
 } finally {
@@ -154,13 +169,14 @@ try {
 }
 
 const f = (x: number) => x.toFixed(1).padStart(8);
-console.log(`Chromium ${"headless"}; Node ${process.version}; medians of ${RUNS} page loads and ${RUNS * RECENTRES} re-centrings in each mode`);
+console.log(`Chromium ${"headless"}; Node ${process.version}; medians of ${RUNS} page loads and ${RUNS * RECENTRES} re-centrings in each mode, each ${SETTLE_MS} ms after the last frame`);
 console.log("galaxies | first draw (nav) ms | first draw (page) ms | recentre kernel ms | recentre + redraw ms | to next frame ms | home redraw (baseline) ms | recentre / home");
 for (const r of rows) {
   console.log(`${String(r.n).padStart(8)} | ${f(r.firstDrawNav)} | ${f(r.firstDrawPage)} | ${f(r.kernel)} | ${f(r.recentre)} | ${f(r.recentreFrame)} | ${f(r.home)} | ${(r.recentre / r.home).toFixed(2)}`);
 }
 console.log("side by side, the page's thread alone: galaxies | kernel ms | recentre + redraw ms | to next frame ms | kernel one thread / two | worker's share of the chunks");
 for (const r of rows) console.log(`${String(r.n).padStart(8)} | ${f(r.kernel1)} | ${f(r.recentre1)} | ${f(r.recentreFrame1)} | ${(r.kernel1 / r.kernel).toFixed(2)} | ${r.workerShare.toFixed(2)}`);
+for (const r of rows) console.log(`redraw on re-centring with the worker at ${r.n}, per panel in the order drawn (medians, ms): ${Object.entries(r.panels).map(([k, v]) => `${k} ${v.toFixed(1)}`).join(", ")}`);
 console.log("Node kernel alone (recentre, medians of 6): galaxies | estimator auto ms | estimator linear ms | ratio");
 for (const k of kernelRows) console.log(`${String(k.n).padStart(8)} | ${f(k.auto)} | ${f(k.linear)} | ${(k.auto / k.linear).toFixed(1)}`);
 const big = rows.find((r) => r.n === 100_000);
