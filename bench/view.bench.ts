@@ -29,6 +29,8 @@ import { originInputs } from "../web/origin.js";
 const SIZES = [10_000, 100_000];
 const RUNS = 3;
 const RECENTRES = 5;
+/** Pause after the first draw (and the fit worker's start) before the re-centrings, ms. */
+const LOADED_MS = Number(process.env.PECULIAR_BENCH_LOADED_MS ?? 1500);
 /** Pause before each timed re-centring, ms. */
 const SETTLE_MS = Number(process.env.PECULIAR_BENCH_SETTLE_MS ?? 250);
 
@@ -112,11 +114,15 @@ try {
           nav.push(t.nav);
           own.push(t.own);
         }
+        // the page's fit worker has started and compiled its code, and the page has settled after its
+        // first draw (the user looks at it meanwhile: a click comes seconds later)
+        await page.waitForFunction(`window.peculiarView.fitThreads() === null || window.peculiarView.fitThreads().ready`, undefined, { timeout: 60_000 });
+        await page.waitForTimeout(LOADED_MS);
         type Threads = { workerChunks: number; sharedChunks: number } | null;
         const c0 = (await page.evaluate(`window.peculiarView.fitThreads()`)) as Threads;
         for (let k = 0; k < (run === 0 ? 2 : RECENTRES); k++) {
           const row = Math.floor(rnd() * n);
-          for (const threads of k % 2 ? [true, false] : [false, true]) {
+          for (const threads of process.env.PECULIAR_BENCH_MODES === "two" ? [true] : k % 2 ? [true, false] : [false, true]) {
             const r = (await page.evaluate(`(async () => {
               const v = window.peculiarView;
               v.useFitThreads(${threads});
@@ -148,6 +154,7 @@ try {
     } finally {
       await server.close();
     }
+    if (process.env.PECULIAR_BENCH_DEBUG) console.log(`kernels at ${n}: ${kernel.map((x) => x.toFixed(0)).join(" ")}; totals ${total.map((x) => x.toFixed(0)).join(" ")}`);
     console.log(`first draw at ${n}, page parts (medians, ms): ${Object.entries(parts).map(([k, v]) => `${k} ${median(v).toFixed(0)}`).join(", ")}`);
     rows.push({
       n,
