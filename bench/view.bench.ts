@@ -114,9 +114,9 @@ try {
           nav.push(t.nav);
           own.push(t.own);
         }
-        // the page's fit worker has started and compiled its code, and the page has settled after its
-        // first draw (the user looks at it meanwhile: a click comes seconds later)
-        await page.waitForFunction(`window.peculiarView.fitThreads() === null || window.peculiarView.fitThreads().ready`, undefined, { timeout: 60_000 });
+        // the page has compiled the path of a click (web/main.ts, data-warm) with its fit worker, and
+        // settled after its first draw (the user looks at it meanwhile: a click comes seconds later)
+        await page.waitForFunction(`document.body.dataset.warm === "1"`, undefined, { timeout: 60_000 });
         await page.waitForTimeout(LOADED_MS);
         type Threads = { workerChunks: number; sharedChunks: number } | null;
         const c0 = (await page.evaluate(`window.peculiarView.fitThreads()`)) as Threads;

@@ -349,16 +349,25 @@ async function start(): Promise<void> {
   // panel) on a few galaxies, while the user looks at the first draw: the first clicks otherwise took
   // up to twice as long as the later ones. The home view is drawn again in the same task, so nothing of
   // this is ever shown.
-  setTimeout(() => {
-    warmRecentre(inputs);
-    if (data.n < 50) return;
+  const warmClicks = (tries: number) => {
+    // once the fit worker is ready (it compiles its own code meanwhile), so that the shared path runs
+    if (fitThreads && !fitThreads.ready && tries < 200) {
+      setTimeout(() => warmClicks(tries + 1), 25);
+      return;
+    }
+    if (data.n < 50 || state.origin !== home) return;
     const last = timing.lastRecentre;
-    for (const f of [0.21, 0.52, 0.83]) {
+    for (const f of [0.21, 0.52, 0.83, 0.37]) {
       const row = Math.floor(f * data.n);
       state.setOrigin(galaxyView(inputs, row, data.ids[row]!));
     }
     state.setOrigin(home);
     timing.lastRecentre = last;
+    document.body.dataset.warm = "1";
+  };
+  setTimeout(() => {
+    warmRecentre(inputs);
+    warmClicks(0);
   }, 0);
 
   (window as unknown as { peculiarView: unknown }).peculiarView = {
