@@ -3,8 +3,8 @@
  * thread's CSV job (csv-worker.ts; sent there as Arrow IPC) while this thread formats and writes the
  * first half; the bytes are those of csvChunks. Small tables, and runs without the worker script (the
  * sources run directly, as under vitest), use csvChunks alone; so does a part whose helper fails.
- * The helper is the process's shared one (helper-threads.ts): in `match` it has already started,
- * to read an input, by the time the output is written.
+ * The helper is the process's shared one (helper-threads.ts): in `match` it is already running by
+ * the time the output is written (it read B, or took cross-match bands).
  */
 import { tableToIPC, type Table } from "apache-arrow";
 import { csvChunks, csvDelimiter, type CsvWriteOptions } from "./formats/csv-write.js";
