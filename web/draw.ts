@@ -158,12 +158,17 @@ export function drawMarks(ctx: CanvasRenderingContext2D, state: ViewState, px: F
   const L = layerFor(W, H);
   const buf = L.buf;
   const box: MarkBox = { x0: W, y0: H, x1: 0, y1: 0 };
-  const stampAll = (mask: MarkMask, colour: string, rows: Int32Array) => stampMarks(buf, W, H, px, py, rows, mask, pixelOf(colour) & 0xffffff, k, t.e, t.f, box);
+  const style = markStyle(r, k);
   const marked = markedRows(d);
-  stampAll(maskFor("ring", r + 1.5, 0.8, 0.7, k), GROUP_RING, marked.groupMembers);
-  stampAll(maskFor("cross", r + 2.5, 1.2, 1, k), OUTLIER_MARK, marked.outliers);
-  if (state.nSelected > 0) stampAll(maskFor("ring", r + 1, 1, 1, k), SELECTED_RING, state.selectedRows);
+  stampMarks(buf, W, H, px, py, marked.groupMembers, style.ring, style.ringRgb, k, t.e, t.f, box);
+  stampMarks(buf, W, H, px, py, marked.outliers, style.cross, style.crossRgb, k, t.e, t.f, box);
+  stampSelection(buf, W, H, state, px, py, r, t, box);
   composite(ctx, L, box.x0, box.y0, box.x1, box.y1, 1);
+}
+
+/** The selection rings (when rows are selected) into the layer buffer, within `box`. */
+function stampSelection(buf: Uint32Array, W: number, H: number, state: ViewState, px: Float64Array, py: Float64Array, r: number, t: DOMMatrix, box: MarkBox): void {
+  if (state.nSelected > 0) stampMarks(buf, W, H, px, py, state.selectedRows, maskFor("ring", r + 1, 1, 1, t.a), pixelOf(SELECTED_RING) & 0xffffff, t.a, t.e, t.f, box);
 }
 
 /**
@@ -175,7 +180,6 @@ export function drawStampedMarks(ctx: CanvasRenderingContext2D, state: ViewState
   const W = ctx.canvas.width;
   const H = ctx.canvas.height;
   const t = ctx.getTransform();
-  const k = t.a;
   const L = layerFor(W, H);
   const buf = L.buf;
   const box: MarkBox = { ...at };
@@ -185,11 +189,11 @@ export function drawStampedMarks(ctx: CanvasRenderingContext2D, state: ViewState
     buf.set(stamped.subarray(a, e), a);
     stamped.fill(0, a, e);
   }
-  if (state.nSelected > 0) stampMarks(buf, W, H, px, py, state.selectedRows, maskFor("ring", r + 1, 1, 1, k), pixelOf(SELECTED_RING) & 0xffffff, k, t.e, t.f, box);
+  stampSelection(buf, W, H, state, px, py, r, t, box);
   composite(ctx, L, box.x0, box.y0, box.x1, box.y1, 1);
 }
 
-/** The marks' masks and colours that drawMarks stamps for group members and outliers (for the worker's stamps). */
+/** The marks' masks and colours for group members and outliers: drawMarks stamps them, and hubble.ts hands them to the worker's stamps. */
 export function markStyle(r: number, k: number): { ring: MarkMask; cross: MarkMask; ringRgb: number; crossRgb: number } {
   return { ring: maskFor("ring", r + 1.5, 0.8, 0.7, k), cross: maskFor("cross", r + 2.5, 1.2, 1, k), ringRgb: pixelOf(GROUP_RING) & 0xffffff, crossRgb: pixelOf(OUTLIER_MARK) & 0xffffff };
 }
