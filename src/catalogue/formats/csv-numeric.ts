@@ -7,7 +7,7 @@
  * table for the files read here. Numbers are read by decimal.ts (the same digits give the same
  * double as on the general path).
  */
-import { decodeSpan } from "./csv-records.js";
+import { decodeSpan, grow } from "./csv-records.js";
 import { INTEGER, scanKind, scanNumberPrefix, scanned } from "./decimal.js";
 
 export interface NumericBody {
@@ -59,9 +59,9 @@ export function readNumericBody(b: Uint8Array, start: number, line: number, deli
     }
     if (rows === cap) {
       cap *= 2;
-      values = values.map((v) => grown(v, cap));
-      lines = grownInt(lines, cap);
-      for (let j = 0; j < width; j++) if (nulls[j]) nulls[j] = grownBytes(nulls[j]!, cap);
+      values = values.map((v) => grow(v, cap));
+      lines = grow(lines, cap);
+      for (let j = 0; j < width; j++) if (nulls[j]) nulls[j] = grow(nulls[j]!, cap);
     }
     for (let j = 0; j < width; j++) {
       const last = j === width - 1;
@@ -99,22 +99,4 @@ export function readNumericBody(b: Uint8Array, start: number, line: number, deli
     if (nulls[j]) nulls[j] = nulls[j]!.subarray(0, rows);
   }
   return { rows, values, integer, nulls, lines: lines.subarray(0, rows) };
-}
-
-function grown(a: Float64Array, size: number): Float64Array {
-  const c = new Float64Array(size);
-  c.set(a);
-  return c;
-}
-
-function grownInt(a: Int32Array, size: number): Int32Array {
-  const c = new Int32Array(size);
-  c.set(a);
-  return c;
-}
-
-function grownBytes(a: Uint8Array, size: number): Uint8Array {
-  const c = new Uint8Array(size);
-  c.set(a);
-  return c;
 }

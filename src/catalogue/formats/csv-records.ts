@@ -19,7 +19,8 @@ import { DECIMAL, scanKind, scanNumberPrefix, scanned } from "./decimal.js";
 
 const decoder = new TextDecoder("utf-8");
 
-function grow<T extends Uint32Array | Int32Array | Uint8Array | Float64Array>(a: T, size: number): T {
+/** a itself when it holds `size` values, else a copy in an array of max(size, twice its length). */
+export function grow<T extends Uint32Array | Int32Array | Uint8Array | Float64Array>(a: T, size: number): T {
   if (size <= a.length) return a;
   const b = new (a.constructor as new (n: number) => T)(Math.max(size, a.length * 2));
   b.set(a);
