@@ -70,7 +70,7 @@ export class HelperThread {
 const running = new Map<string, HelperThread>();
 
 /**
- * Helper number k (0, 1, ...) of the worker script `url` (default: dist/helper-worker.js), started now
+ * Helper number k (0, 1, ...) of the worker script `url` (undefined: dist/helper-worker.js), started now
  * unless it is running; undefined where there is no worker script.
  */
 export function helperThread(k = 0, url: URL | undefined = workerScript("helper-worker.js")): HelperThread | undefined {

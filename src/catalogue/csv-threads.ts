@@ -30,7 +30,7 @@ function cutRow(n: number): number {
 
 async function* threaded(table: Table, options: CsvWriteOptions, delimiter: string, how: { workerUrl?: URL; minRows?: number }): AsyncGenerator<Uint8Array> {
   const n = table.numRows;
-  const helper = n < (how.minRows ?? CSV_THREADS_MIN_ROWS) || n < 2 ? undefined : how.workerUrl ? helperThread(0, how.workerUrl) : helperThread(0);
+  const helper = n < (how.minRows ?? CSV_THREADS_MIN_ROWS) || n < 2 ? undefined : helperThread(0, how.workerUrl);
   if (!helper) {
     yield* csvChunks(table, options);
     return;

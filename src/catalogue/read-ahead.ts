@@ -29,7 +29,7 @@ export function readTableAhead(path: string, options: ReadOptions = {}, how: { w
     // readTable says what is wrong with the path
   }
   const format = options.format ?? safeFormat(path);
-  const helper = size < (how.minBytes ?? READ_AHEAD_MIN_BYTES) || format === "arrow" || format === undefined ? undefined : how.workerUrl ? helperThread(0, how.workerUrl) : helperThread(0);
+  const helper = size < (how.minBytes ?? READ_AHEAD_MIN_BYTES) || format === "arrow" || format === undefined ? undefined : helperThread(0, how.workerUrl);
   if (!helper) return Object.assign(readTable(path, options), { cancel: () => {} });
   const p = helper.call<ReadReply>("read", { path, options }).then(
     (m) => {

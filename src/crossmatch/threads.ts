@@ -21,7 +21,7 @@ export class BandPool {
    */
   constructor(threads: number, workerUrl?: URL) {
     for (let t = 1; t < threads; t++) {
-      const h = workerUrl ? helperThread(t - 1, workerUrl) : helperThread(t - 1);
+      const h = helperThread(t - 1, workerUrl);
       if (!h) return;
       h.call("warm-bands", {}).catch(() => {}); // a failed helper is noticed when a band is sent
       this.helpers.push(h);
