@@ -12,7 +12,8 @@ import { PeculiarError } from "../errors.js";
 import { assertNotSameFile, writeFileAtomic } from "./atomic.js";
 import { arrowChunks, arrowFromTable, parseArrowColumns } from "./formats/arrow.js";
 import { parseCsvBytes } from "./formats/csv.js";
-import { csvBytes } from "./formats/csv-write.js";
+import { csvBytes, type CsvWriteOptions } from "./formats/csv-write.js";
+import type { RowText } from "./line-text.js";
 import { csvChunksThreaded } from "./csv-threads.js";
 import { parseFitsColumns } from "./formats/fits.js";
 import { fitsFromTable } from "./formats/fits-write.js";
@@ -92,6 +93,8 @@ export interface WriteOptions {
   input?: string;
   /** Arrow: write the stream format (default for `.arrows`, else the file format). */
   stream?: boolean;
+  /** CSV/TSV: column blocks written as the lines they were read from (csv-write.ts, line-text.ts). */
+  rowText?: RowText[];
 }
 
 async function readBytes(path: string): Promise<Uint8Array> {
@@ -232,10 +235,14 @@ export async function writeTable(table: Table, path: string, options: WriteOptio
   let data: Uint8Array | string | Iterable<Uint8Array> | AsyncIterable<Uint8Array>;
   try {
     // CSV/TSV goes to the file chunk by chunk as it is encoded (never the whole text at once), the
-    // second half of a large table formatted on a helper thread meanwhile (csv-threads.ts).
+    // second half of a large table formatted on a helper thread meanwhile unless its cells are mostly
+    // lines copied from the input (csv-threads.ts).
     const text = format === "csv" || format === "tsv";
-    if (text && !isGzipPath(path)) data = csvChunksThreaded(table, format === "tsv" ? { delimiter: "\t" } : {});
-    else data = format === "arrow" && !isGzipPath(path) ? arrowChunks(table, { stream }) : encodeTable(table, format, { stream });
+    if (text && !isGzipPath(path)) {
+      const o: CsvWriteOptions = format === "tsv" ? { delimiter: "\t" } : {};
+      if (options.rowText) o.rowText = options.rowText;
+      data = csvChunksThreaded(table, o);
+    } else data = format === "arrow" && !isGzipPath(path) ? arrowChunks(table, { stream }) : encodeTable(table, format, { stream });
   } catch (e) {
     if (e instanceof PeculiarError && e.place.file === undefined) throw new PeculiarError(e.code, e.message, { file: path }, { cause: e });
     throw e;

@@ -11,6 +11,7 @@ import { tableFromIPC, type Table } from "apache-arrow";
 import { formatFromPath, readTable, type ReadOptions } from "./io.js";
 import type { ReadReply } from "./read-worker.js";
 import { tableFromParts } from "./transfer.js";
+import { keepLineText } from "./line-text.js";
 import { PeculiarError } from "../errors.js";
 import { helperThread } from "../helper-threads.js";
 
@@ -33,7 +34,11 @@ export function readTableAhead(path: string, options: ReadOptions = {}, how: { w
   if (!helper) return Object.assign(readTable(path, options), { cancel: () => {} });
   const p = helper.call<ReadReply>("read", { path, options }).then(
     (m) => {
-      if (m.parts) return tableFromParts(m.parts);
+      if (m.parts) {
+        const table = tableFromParts(m.parts);
+        if (m.lines) keepLineText(table, m.lines.names, m.lines.text);
+        return table;
+      }
       if (m.bytes) return tableFromIPC(m.bytes);
       if (m.error?.code) {
         const e = new PeculiarError(m.error.code, "", m.error.place ?? {});

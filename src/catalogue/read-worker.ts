@@ -1,15 +1,18 @@
 /**
  * The read job of a helper thread (src/helper-worker.ts): reads one table with readTable and replies
- * with its column buffers (transfer.ts; moved, not copied), as Arrow IPC bytes when it has columns
+ * with its column buffers (transfer.ts; moved, not copied) and the lines it keeps (line-text.ts), as Arrow IPC bytes when it has columns
  * of other kinds, or with the error it raised. See read-ahead.ts.
  */
 import { tableToIPC } from "apache-arrow";
 import { readTable, type ReadOptions } from "./io.js";
 import { tablePartsOf, type TableParts } from "./transfer.js";
+import { keptLines, lineBuffers, type LineText } from "./line-text.js";
 import { PeculiarError, type ErrorCode, type ErrorPlace } from "../errors.js";
 
 export interface ReadReply {
   parts?: TableParts;
+  /** The lines of the file and its column names (line-text.ts), moved with the parts. */
+  lines?: { text: LineText; names: string[] };
   bytes?: Uint8Array;
   error?: { code?: ErrorCode; message: string; place?: ErrorPlace };
 }
@@ -18,7 +21,11 @@ export async function readJob(m: { path: string; options: ReadOptions }): Promis
   try {
     const table = await readTable(m.path, m.options);
     const moved = tablePartsOf(table);
-    if (moved) return { reply: { parts: moved.parts }, transfer: moved.transfer };
+    if (moved) {
+      const lines = keptLines(table);
+      if (!lines) return { reply: { parts: moved.parts }, transfer: moved.transfer };
+      return { reply: { parts: moved.parts, lines }, transfer: [...new Set([...moved.transfer, ...lineBuffers(lines.text)])] };
+    }
     const bytes = tableToIPC(table, "stream");
     return { reply: { bytes }, transfer: [bytes.buffer as ArrayBuffer] };
   } catch (e) {

@@ -20,6 +20,9 @@ export interface NumericBody {
   nulls: (Uint8Array | null)[];
   /** Per row: its 1-based line in the file. */
   lines: Int32Array;
+  /** Per row: where its line starts and ends (before the line end) in the bytes; null for bytes past 4 GiB. */
+  starts: Uint32Array | null;
+  ends: Uint32Array | null;
 }
 
 const INT32_MIN = -2147483648;
@@ -40,6 +43,9 @@ export function readNumericBody(b: Uint8Array, start: number, line: number, deli
   let values: Float64Array[] = [];
   for (let j = 0; j < width; j++) values.push(new Float64Array(cap));
   let lines: Int32Array = new Int32Array(cap);
+  const spans = n < 2 ** 32;
+  let starts = new Uint32Array(spans ? cap : 0);
+  let ends = new Uint32Array(spans ? cap : 0);
   const nulls: (Uint8Array | null)[] = new Array<Uint8Array | null>(width).fill(null);
   const integer = new Uint8Array(width).fill(1);
   const wide = new Uint8Array(width); // an integer beyond int32 was seen
@@ -61,8 +67,13 @@ export function readNumericBody(b: Uint8Array, start: number, line: number, deli
       cap *= 2;
       values = values.map((v) => grow(v, cap));
       lines = grow(lines, cap);
+      if (spans) {
+        starts = grow(starts, cap);
+        ends = grow(ends, cap);
+      }
       for (let j = 0; j < width; j++) if (nulls[j]) nulls[j] = grow(nulls[j]!, cap);
     }
+    if (spans) starts[rows] = i;
     for (let j = 0; j < width; j++) {
       const last = j === width - 1;
       const c = i < n ? b[i]! : 10;
@@ -90,6 +101,7 @@ export function readNumericBody(b: Uint8Array, start: number, line: number, deli
       if (!last) i++; // past the delimiter
     }
     // the line end (or the end of the file)
+    if (spans) ends[rows] = i;
     if (i < n) i += b[i] === 13 && b[i + 1] === 10 ? 2 : 1;
     lines[rows++] = line++;
   }
@@ -98,5 +110,5 @@ export function readNumericBody(b: Uint8Array, start: number, line: number, deli
     values[j] = values[j]!.subarray(0, rows);
     if (nulls[j]) nulls[j] = nulls[j]!.subarray(0, rows);
   }
-  return { rows, values, integer, nulls, lines: lines.subarray(0, rows) };
+  return { rows, values, integer, nulls, lines: lines.subarray(0, rows), starts: spans ? starts.subarray(0, rows) : null, ends: spans ? ends.subarray(0, rows) : null };
 }

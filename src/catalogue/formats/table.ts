@@ -6,6 +6,7 @@
 import type { Table } from "apache-arrow";
 import { boolDataExcept, sparseUtf8Data, tableFromColumns, type ColumnData, type ColumnKind, type DataColumn } from "../columns.js";
 import { INVALID_REASON, META, SOURCE_ROW, VALID } from "../meta.js";
+import { keepLineText, type LineText } from "../line-text.js";
 
 /** What every reader hands over: columns as read, one reason per row ("" when fine), row numbers. */
 export interface ParsedColumns {
@@ -21,6 +22,8 @@ export interface ParsedColumns {
   sourceRows: Int32Array;
   /** Schema metadata found in the file (kept as is). */
   metadata: Map<string, string>;
+  /** The text of each row, when a writer may copy it (line-text.ts; the CSV reader's plain-number path). */
+  lineText?: LineText;
 }
 
 export interface SourceInfo {
@@ -147,7 +150,13 @@ export function finishTable(parsed: ParsedColumns, info: SourceInfo): Table {
     }
   }
   metadata.set(META.source, JSON.stringify(source));
-  return tableFromColumns(out, metadata, n);
+  const table = tableFromColumns(out, metadata, n);
+  // the lines stand for the file's columns only when none of them became bookkeeping
+  if (parsed.lineText && !valid && !reason && !sourceRow) {
+    const names = out.slice(0, parsed.columns.length).map((c) => c.name);
+    keepLineText(table, names, parsed.lineText);
+  }
+  return table;
 }
 
 /** Appends one finding to a row's reason. */
