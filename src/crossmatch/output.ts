@@ -17,6 +17,7 @@ import { validMask } from "../catalogue/validity.js";
 import { PeculiarError } from "../errors.js";
 import { ARCSEC } from "../sky/angles.js";
 import type { JoinedRows, MatchResult } from "./match.js";
+import { lineTextOf, type RowText } from "../catalogue/line-text.js";
 
 export const ADDED_COLUMNS = ["sep_arcsec", "dv", "n_candidates", "ambiguous", "row_a", "row_b"] as const;
 const BOOKKEEPING = new Set([VALID, INVALID_REASON, SOURCE_ROW]);
@@ -180,6 +181,27 @@ export interface MatchTableOptions {
   /** roles of each input (default: from its schema metadata) */
   rolesA?: RoleMap;
   rolesB?: RoleMap;
+}
+
+/**
+ * For a CSV writer (csv-write.ts rowText): the blocks of matchTable's output that are A's and B's
+ * columns, each written as the line of its row where that catalogue keeps the lines of its file
+ * (line-text.ts). Their cells then read as the file had them: the same values, and their digits as
+ * written there.
+ */
+export function matchRowText(a: Table, b: Table, j: JoinedRows): RowText[] {
+  const out: RowText[] = [];
+  let first = 0;
+  for (const [table, rows] of [
+    [a, j.rowA],
+    [b, j.rowB],
+  ] as const) {
+    const names = table.schema.fields.map((f) => f.name).filter((n) => !BOOKKEEPING.has(n));
+    const text = lineTextOf(table, names);
+    if (text) out.push({ first, count: names.length, text, rows });
+    first += names.length;
+  }
+  return out;
 }
 
 export function matchTable(a: Table, b: Table, r: MatchResult, j: JoinedRows, o: MatchTableOptions): Table {

@@ -120,4 +120,36 @@ describe("peculiar match", () => {
     expect(r.code).toBe(1);
     expect(r.stderr).toMatch(/nope\.csv/);
   });
+
+  it("writes the cells of number-only CSV inputs as they were spelled, the same values as any other output", async () => {
+    // 600 rows each (the number-only reader starts past 256 lines); B holds every other row of A, 0.36" off
+    const spell = ["1.50", "+5", ".25", "007"];
+    const a = ["id,ra,dec,cz"];
+    const b = ["id,ra,dec,mu"];
+    for (let i = 0; i < 600; i++) {
+      const ra = (i * 0.6).toFixed(4);
+      const dec = ((i % 100) - 50).toFixed(3);
+      a.push(`${i + 1},${ra},${dec},${i % 50 === 0 ? spell[(i / 50) % 4] : 3000 + i}`);
+      if (i % 2 === 0) b.push(`${i % 8 === 0 ? "007" : 9000 + i},${ra},${(Number(dec) + 1e-4).toFixed(4)},${(30 + i / 100).toFixed(2)}`);
+    }
+    writeFileSync(join(dir, "many-a.csv"), a.join("\n") + "\n");
+    writeFileSync(join(dir, "many-b.csv"), b.join("\r\n") + "\r\n");
+    const outs = ["many.csv", "many.arrow", "many.tsv"].map((f) => join(dir, f));
+    for (const out of outs) {
+      const r = runCli(["match", join(dir, "many-a.csv"), join(dir, "many-b.csv"), "-o", out, "--radius", "2arcsec", "--join", "outer"]);
+      expect(r.code, r.stderr).toBe(0);
+    }
+    const lines = readFileSync(outs[0]!, "utf8").split("\n");
+    expect(lines[1]).toBe("many_a_id,many_a_ra,many_a_dec,cz,many_b_id,many_b_ra,many_b_dec,mu,sep_arcsec,n_candidates,ambiguous,row_a,row_b,valid,invalid_reason,source_row");
+    expect(lines[3]!.startsWith("1,0.0000,-50.000,1.50,007,0.0000,-49.9999,30.00,0.36")).toBe(true);
+    expect(lines[4]!.startsWith("2,0.6000,-49.000,3001,,,,,,")).toBe(true); // no pair: B's cells empty
+    // the tab-separated output formats the values (its delimiter is not the inputs')
+    expect(readFileSync(outs[2]!, "utf8").split("\n")[3]!.startsWith("1\t0\t-50\t1.5\t7\t0\t-49.9999\t30\t0.36")).toBe(true);
+    const [tc, ta, tt] = await Promise.all(outs.map((o) => readTable(o)));
+    const cells = (t: typeof ta, name: string) => [...t!.getChild(name)!].map((v) => (typeof v === "bigint" ? Number(v) : v));
+    for (const f of ta!.schema.fields) {
+      expect(cells(tc, f.name), f.name).toEqual(cells(ta, f.name));
+      expect(cells(tt, f.name), f.name).toEqual(cells(ta, f.name));
+    }
+  });
 });

@@ -16,7 +16,7 @@ import { warmKernelsFor } from "../../crossmatch/pairs.js";
 import { BandPool } from "../../crossmatch/threads.js";
 import { AMBIGUITY_DELTA, SELECT_MODES, type SelectMode } from "../../crossmatch/select.js";
 import { sideExtras } from "../../crossmatch/inputs.js";
-import { matchTable } from "../../crossmatch/output.js";
+import { matchRowText, matchTable } from "../../crossmatch/output.js";
 import { chancePairs, separationHistogram, suggestRadius } from "../../crossmatch/diagnostics.js";
 
 /** Most threads used when --threads is not given. */
@@ -211,7 +211,7 @@ const command: Command = {
       rolesB: catB.roles,
     });
     phase(`writing ${out}`);
-    await writeTable(table, out, flags.outFormat ? { format: flags.outFormat } : {});
+    await writeTable(table, out, { ...(flags.outFormat ? { format: flags.outFormat } : {}), rowText: matchRowText(catA.table, catB.table, rows) });
     phaseDone();
 
     const counts = matchCounts(result);
