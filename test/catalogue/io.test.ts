@@ -251,7 +251,7 @@ describe("atomic writes", () => {
   it("writes chunks made while earlier ones are written, in order, and leaves nothing when making them fails", async () => {
     const sub = join(dir, "sub-chunks");
     await import("node:fs").then((fs) => fs.mkdirSync(sub));
-    // 40 chunks of 300 000 bytes: several batches of 4 MiB, the last one short
+    // 40 chunks of 300 000 bytes, some made while the one before is still being written
     const chunk = (k: number) => new Uint8Array(300_000).fill(65 + (k % 26));
     async function* chunks(failAt = -1) {
       for (let k = 0; k < 40; k++) {
