@@ -225,6 +225,7 @@ async function main() {
     const rss: number[] = [];
     const py: number[] = [];
     let pyInfo = "";
+    let pyError = "";
     for (let r = 0; r < RUNS; r++) {
       const x = runCli(["match", files.aArrow, files.bArrow, "-o", join(OUT, `out-${n}.arrow`), "--radius", `${RADIUS_ARCSEC}arcsec`, "-q"]);
       arrow.push(x.seconds);
@@ -243,7 +244,7 @@ async function main() {
           const j = JSON.parse(z.stdout.trim()) as { total: number; load: number; match: number; astropy: string; matched: number };
           py.push(j.total);
           pyInfo = `astropy ${j.astropy} (load ${fmt(j.load)}, match ${fmt(j.match)}, ${j.matched} matched)`;
-        }
+        } else pyError = z.error?.message ?? z.stderr.trim().split("\n").pop() ?? `status ${z.status}`;
       }
     }
     const ia = median(idx);
@@ -256,7 +257,8 @@ async function main() {
     if (py.length) {
       const t = median(py);
       console.log(`  ${pyInfo}: load + match ${fmt(t)}; ratio astropy / CLI: Arrow ${(t / median(arrow)).toFixed(1)}x, CSV ${(t / median(csv)).toFixed(1)}x`);
-    } else console.log("  astropy: not available (/usr/bin/python3 without astropy)");
+    } else if (pyError) console.log(`  astropy: bench/crossmatch-astropy.py failed: ${pyError} (match_to_catalog_sky needs scipy: apt-get install python3-scipy)`);
+    else console.log("  astropy: not available (/usr/bin/python3 without astropy)");
   }
   console.log(`\n(sink ${sink})`);
 }
