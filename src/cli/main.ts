@@ -52,6 +52,7 @@ async function main(argv: string[]): Promise<number> {
     return EXIT_USAGE;
   }
   try {
+    if (entry.early && !rest.includes("--help") && !rest.includes("-h")) await entry.early(rest);
     const cmd = await entry.load();
     if (rest.includes("--help") || rest.includes("-h")) {
       io.stdout.write(cmd.help.trimEnd() + "\n");

@@ -8,12 +8,14 @@ export interface CommandEntry {
   name: string;
   summary: string;
   load: () => Promise<Command>;
+  /** Started before the command is loaded (match: its helper thread, match-early.ts). */
+  early?: (args: string[]) => Promise<void>;
 }
 
 export const COMMANDS: CommandEntry[] = [
   { name: "inspect", summary: "show a catalogue's columns, detected roles, units and invalid rows", load: async () => (await import("./inspect.js")).default },
   { name: "convert", summary: "convert between CSV/TSV, VOTable, FITS and Arrow; add Galactic/supergalactic columns", load: async () => (await import("./convert.js")).default },
-  { name: "match", summary: "cross-match two catalogues on the sky (and in velocity)", load: async () => (await import("./match.js")).default },
+  { name: "match", summary: "cross-match two catalogues on the sky (and in velocity)", load: async () => (await import("./match.js")).default, early: async (args) => (await import("./match-early.js")).startEarly(args) },
   { name: "dedupe", summary: "find rows of one catalogue that are the same object", load: async () => (await import("./dedupe.js")).default },
   { name: "combine", summary: "harmonise zero points of distance catalogues and combine their distances", load: async () => (await import("./combine.js")).default },
   { name: "velocities", summary: "redshift frames, distances and peculiar velocities with errors", load: async () => (await import("./velocities.js")).default },

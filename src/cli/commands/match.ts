@@ -18,6 +18,7 @@ import { AMBIGUITY_DELTA, SELECT_MODES, type SelectMode } from "../../crossmatch
 import { sideExtras } from "../../crossmatch/inputs.js";
 import { matchRowText, matchTable } from "../../crossmatch/output.js";
 import { chancePairs, separationHistogram, suggestRadius } from "../../crossmatch/diagnostics.js";
+import { POOL_MIN_BYTES } from "./match-early.js";
 
 /** Most threads used when --threads is not given. */
 const MAX_DEFAULT_THREADS = 2;
@@ -27,7 +28,6 @@ const MAX_DEFAULT_THREADS = 2;
  * saves on smaller catalogues (measured at 1e5 + 1e5 rows: no gain).
  */
 const THREADS_MIN_ROWS = 400_000;
-const POOL_MIN_BYTES = 8 << 20;
 
 const help = `usage: peculiar match A B -o OUT (--radius R | --sigma K) [options]
 
