@@ -323,7 +323,8 @@ export function writeShortest(x: number, out: Uint8Array, pos: number): number {
   const Bi = B | 0; // < 1e8: integer arithmetic from here on
   for (let k = 15; k <= 17; k++) {
     const unit = UNIT[k]!;
-    const below = (Bi / unit) | 0; // floor(V / unit) - A * 10^(k - 9): one division, its remainder by product
+    // floor(V / unit) - A * 10^(k - 9): a division by a constant (a multiplication), its remainder by product
+    const below = k === 15 ? ((Bi / 100) | 0) : k === 16 ? ((Bi / 10) | 0) : Bi;
     const tail = Bi - below * unit + frac; // V minus floor(V / unit) * unit
     const halfUnit = unit / 2;
     if (Math.abs(tail - halfUnit) < 1e-6) {
