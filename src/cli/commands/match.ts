@@ -66,7 +66,8 @@ ${CATALOGUE_FLAGS_HELP}
 Output: all columns of A and B (clashing names prefixed ALIAS_), then sep_arcsec, dv (when both
 have velocities), n_candidates, ambiguous, row_a, row_b (source rows; null where absent), and
 valid / invalid_reason combined from both sides. A match is ambiguous when another accepted pair
-sharing its A or its B row has a score within the ambiguity gap of its own.
+sharing its A or its B row has a score within the ambiguity gap of its own. In CSV output, the
+cells of a number-only CSV input with the same delimiter are written as that file spelled them.
 `;
 
 function stem(path: string): string {
