@@ -74,9 +74,12 @@ export function keptLines(table: Table): { text: LineText; names: string[] } | u
   return undefined;
 }
 
-/** The buffers of the lines, to transfer (moved; none when they live in shared memory). */
+/**
+ * The buffers of the lines to transfer (moved, not copied). Small ones are left to be copied: the
+ * bytes of a small file can sit in Node's shared Buffer pool, which must not be moved.
+ */
 export function lineBuffers(text: LineText): ArrayBuffer[] {
   const out = new Set<ArrayBuffer>();
-  for (const a of [text.bytes, text.starts, text.ends]) if (a.buffer instanceof ArrayBuffer) out.add(a.buffer);
+  for (const a of [text.bytes, text.starts, text.ends]) if (a.buffer instanceof ArrayBuffer && a.buffer.byteLength >= 1 << 16) out.add(a.buffer);
   return [...out];
 }
