@@ -1,7 +1,7 @@
 /**
  * The read job of a helper thread (src/helper-worker.ts): reads one table with readTable and replies
- * with its column buffers (transfer.ts; moved, not copied) and the lines it keeps (line-text.ts), as Arrow IPC bytes when it has columns
- * of other kinds, or with the error it raised. See read-ahead.ts.
+ * with its column buffers (transfer.ts; moved, not copied) and the lines it keeps (line-text.ts), as
+ * Arrow IPC bytes when it has columns of other kinds, or with the error it raised. See read-ahead.ts.
  */
 import { tableToIPC } from "apache-arrow";
 import { readTable, type ReadOptions } from "./io.js";

@@ -52,7 +52,8 @@ async function main(argv: string[]): Promise<number> {
     return EXIT_USAGE;
   }
   try {
-    if (entry.early && !rest.includes("--help") && !rest.includes("-h")) await entry.early(rest);
+    // a head start only (match: its helper thread); the command itself decides and reports
+    if (entry.early && !rest.includes("--help") && !rest.includes("-h")) await entry.early(rest).catch(() => {});
     const cmd = await entry.load();
     if (rest.includes("--help") || rest.includes("-h")) {
       io.stdout.write(cmd.help.trimEnd() + "\n");

@@ -3,8 +3,8 @@
  * read B and take cross-match bands, so that the thread's start-up overlaps the loading of the match
  * command (about 0.15 s earlier for B on this machine). The test is the one match.ts makes for its
  * band pool, on what can be seen without parsing the options: the sizes of the arguments that are
- * files, and a --threads of 1. A helper started for nothing stays idle and does not keep the
- * process alive.
+ * files (an existing output counts too), and a --threads of 1. A helper started for nothing stays
+ * idle and does not keep the process alive; this is only a head start, and a failure here is ignored.
  */
 import { statSync } from "node:fs";
 import { availableParallelism } from "node:os";
