@@ -167,17 +167,36 @@ export function scanNumberPrefix(b: Uint8Array, s: number, e: number): number {
     i++;
     digits++;
   }
-  for (; i < e; i++) {
+  // Significant digits: the first 9 go to hi9, the next 9 to lo9, the rest only move the exponent;
+  // a loop for each stage, with the counts taken from positions, not kept per digit.
+  let from = i;
+  let lim = e < i + 9 ? e : i + 9;
+  for (; i < lim; i++) {
     const d = b[i]! - 48;
     if (d < 0 || d > 9) break;
-    digits++;
-    if (nd < 9) hi9 = hi9 * 10 + d;
-    else if (nd < 18) {
-      lo9 = lo9 * 10 + d;
-      nlo++;
-    } else q++;
-    nd++;
+    hi9 = hi9 * 10 + d;
   }
+  nd = i - from;
+  if (nd === 9) {
+    const from2 = i;
+    lim = e < i + 9 ? e : i + 9;
+    for (; i < lim; i++) {
+      const d = b[i]! - 48;
+      if (d < 0 || d > 9) break;
+      lo9 = lo9 * 10 + d;
+    }
+    nlo = i - from2;
+    if (nlo === 9) {
+      const from3 = i;
+      for (; i < e; i++) {
+        const d = b[i]! - 48;
+        if (d < 0 || d > 9) break;
+      }
+      q += i - from3;
+    }
+    nd += i - from2;
+  }
+  digits += i - from;
   if (i < e && b[i] === 46) {
     kind = DECIMAL;
     i++;
@@ -188,20 +207,38 @@ export function scanNumberPrefix(b: Uint8Array, s: number, e: number): number {
         q--;
       }
     }
-    for (; i < e; i++) {
-      const d = b[i]! - 48;
-      if (d < 0 || d > 9) break;
-      digits++;
-      if (nd < 9) {
+    from = i;
+    if (nd < 9) {
+      lim = e < i + (9 - nd) ? e : i + (9 - nd);
+      for (; i < lim; i++) {
+        const d = b[i]! - 48;
+        if (d < 0 || d > 9) break;
         hi9 = hi9 * 10 + d;
-        q--;
-      } else if (nd < 18) {
-        lo9 = lo9 * 10 + d;
-        nlo++;
-        q--;
       }
-      nd++;
+      q -= i - from;
+      nd += i - from;
     }
+    if (nd >= 9 && nd < 18) {
+      const from2 = i;
+      lim = e < i + (18 - nd) ? e : i + (18 - nd);
+      for (; i < lim; i++) {
+        const d = b[i]! - 48;
+        if (d < 0 || d > 9) break;
+        lo9 = lo9 * 10 + d;
+      }
+      nlo += i - from2;
+      q -= i - from2;
+      nd += i - from2;
+    }
+    if (nd >= 18) {
+      const from3 = i;
+      for (; i < e; i++) {
+        const d = b[i]! - 48;
+        if (d < 0 || d > 9) break;
+      }
+      nd += i - from3;
+    }
+    digits += i - from;
   }
   if (digits === 0) return -1;
   c = i < e ? b[i]! : 0;
