@@ -188,10 +188,7 @@ export function scanNumberPrefix(b: Uint8Array, s: number, e: number): number {
     nlo = i - from2;
     if (nlo === 9) {
       const from3 = i;
-      for (; i < e; i++) {
-        const d = b[i]! - 48;
-        if (d < 0 || d > 9) break;
-      }
+      i = digitsEnd(b, i, e);
       q += i - from3;
     }
     nd += i - from2;
@@ -232,10 +229,7 @@ export function scanNumberPrefix(b: Uint8Array, s: number, e: number): number {
     }
     if (nd >= 18) {
       const from3 = i;
-      for (; i < e; i++) {
-        const d = b[i]! - 48;
-        if (d < 0 || d > 9) break;
-      }
+      i = digitsEnd(b, i, e);
       nd += i - from3;
     }
     digits += i - from;
@@ -283,6 +277,12 @@ export function scanNumberPrefix(b: Uint8Array, s: number, e: number): number {
   scaleDecimal(wh, wl, q);
   const v = SCALED[0]!;
   scanned[0] = neg ? -v : v;
+  return i;
+}
+
+/** The first position from i (before e) that does not hold a digit: digits past the 18th only count. */
+function digitsEnd(b: Uint8Array, i: number, e: number): number {
+  while (i < e && b[i]! >= 48 && b[i]! <= 57) i++;
   return i;
 }
 
