@@ -260,16 +260,23 @@ export function matchCounts(r: MatchResult): MatchCounts {
   const usedA = new Uint8Array(r.nA);
   const usedB = new Uint8Array(r.nB);
   let amb = 0;
+  let matchedA = 0;
+  let matchedB = 0;
+  // rows counted as they are first marked (this runs once, cold: no second pass over every row)
   for (let t = 0; t < chosen.length; t++) {
     const k = chosen[t]!;
-    usedA[ca[k]!] = 1;
-    usedB[cb[k]!] = 1;
+    const i = ca[k]!;
+    const j = cb[k]!;
+    if (usedA[i] === 0) {
+      usedA[i] = 1;
+      matchedA++;
+    }
+    if (usedB[j] === 0) {
+      usedB[j] = 1;
+      matchedB++;
+    }
     amb += ambiguous[t]!;
   }
-  let matchedA = 0;
-  for (let i = 0; i < usedA.length; i++) matchedA += usedA[i]!;
-  let matchedB = 0;
-  for (let j = 0; j < usedB.length; j++) matchedB += usedB[j]!;
   let multi = 0;
   for (let i = 0; i < nCandidates.length; i++) if (nCandidates[i]! > 1) multi++;
   return {
