@@ -74,6 +74,10 @@ describe("crossMatch against the brute-force twins", () => {
         expect(got).toEqual(want.map((c) => `${c.a}:${c.b}`));
         const gotAmb = Array.from(r.ambiguous, (x) => x === 1);
         expect(gotAmb).toEqual(bruteAmbiguous(all, want, AMBIGUITY_DELTA));
+        // the counts: distinct rows of each side among the brute-force choice (rows repeat under "all")
+        const counts = matchCounts(r);
+        expect([counts.matchedPairs, counts.matchedA, counts.matchedB]).toEqual([want.length, new Set(want.map((c) => c.a)).size, new Set(want.map((c) => c.b)).size]);
+        expect(counts.unmatchedA + counts.matchedA).toBe(A.ra.length);
         for (const join of ["inner", "left", "outer"] as const) {
           const j = joinRows(r, join);
           expect(Array.from(j.rowA, (x, t) => `${x}:${j.rowB[t]}`)).toEqual(bruteJoin(want, A.ra.length, B.ra.length, join));
