@@ -446,8 +446,37 @@ export function digitRun(v: number, count: number, out: Uint8Array, at: number):
  * caller has the room).
  */
 function digits(a: number, bk: number, k: number, out: Uint8Array, at: number): void {
-  digitRun(a, 9, out, at);
-  digitRun(bk, k - 9, out, at + 9);
+  // a: its first digit, then four pairs from two independent halves
+  const hi = (a / 10000) | 0; // 5 digits
+  const lo = a - hi * 10000;
+  const h2 = (hi / 100) | 0; // 3 digits
+  const h1 = (h2 / 100) | 0; // 1 digit
+  const l1 = (lo / 100) | 0;
+  let r = 2 * (h2 - h1 * 100);
+  out[at] = 48 + h1;
+  out[at + 1] = DIGIT_PAIRS[r]!;
+  out[at + 2] = DIGIT_PAIRS[r + 1]!;
+  r = 2 * (hi - h2 * 100);
+  out[at + 3] = DIGIT_PAIRS[r]!;
+  out[at + 4] = DIGIT_PAIRS[r + 1]!;
+  r = 2 * l1;
+  out[at + 5] = DIGIT_PAIRS[r]!;
+  out[at + 6] = DIGIT_PAIRS[r + 1]!;
+  r = 2 * (lo - l1 * 100);
+  out[at + 7] = DIGIT_PAIRS[r]!;
+  out[at + 8] = DIGIT_PAIRS[r + 1]!;
+  // bk: its last four digits as two pairs, the first k - 13 (2 to 4) before them
+  const bh = (bk / 10000) | 0;
+  const bl = bk - bh * 10000;
+  const b1 = (bl / 100) | 0;
+  const e = at + k;
+  r = 2 * b1;
+  out[e - 4] = DIGIT_PAIRS[r]!;
+  out[e - 3] = DIGIT_PAIRS[r + 1]!;
+  r = 2 * (bl - b1 * 100);
+  out[e - 2] = DIGIT_PAIRS[r]!;
+  out[e - 1] = DIGIT_PAIRS[r + 1]!;
+  digitRun(bh, k - 13, out, at + 9);
 }
 
 /** ECMA-262 Number::toString layout of the first m of k digits (see digits) with the point after n digits. */
