@@ -83,3 +83,16 @@ export function lineBuffers(text: LineText): ArrayBuffer[] {
   for (const a of [text.bytes, text.starts, text.ends]) if (a.buffer instanceof ArrayBuffer && a.buffer.byteLength >= 1 << 16) out.add(a.buffer);
   return [...out];
 }
+
+/**
+ * The block for a table written with `table`'s columns first, in its order (a command that adds
+ * columns after them): row t of the output from row rows[t] of `table`. None when `table` keeps no
+ * lines, or its file columns are not its first columns.
+ */
+export function leadingRowText(table: Table, rows: Int32Array): RowText[] {
+  const k = keptLines(table);
+  if (!k) return [];
+  const fields = table.schema.fields;
+  if (k.names.some((n, j) => fields[j]?.name !== n)) return [];
+  return [{ first: 0, count: k.names.length, text: k.text, rows }];
+}

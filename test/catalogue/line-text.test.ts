@@ -9,7 +9,7 @@ import { tableFromColumns, columnDataOf } from "../../src/catalogue/columns.js";
 import { csvChunks } from "../../src/catalogue/formats/csv-write.js";
 import { parseCsvBytes } from "../../src/catalogue/formats/csv.js";
 import { parseTable, readTable } from "../../src/catalogue/io.js";
-import { keptLines, lineTextOf, type RowText } from "../../src/catalogue/line-text.js";
+import { keptLines, leadingRowText, lineTextOf, type RowText } from "../../src/catalogue/line-text.js";
 import { readTableAhead } from "../../src/catalogue/read-ahead.js";
 import { buildOnce, ROOT, tempDir } from "../cli-helpers.js";
 
@@ -99,6 +99,11 @@ describe("the lines a CSV table keeps", () => {
     expect(lineTextOf(table.slice(1), FILE_COLUMNS)).toBeUndefined();
     expect(keptLines(table)?.names).toEqual(FILE_COLUMNS);
     expect(keptLines(copy)).toBeUndefined();
+    // a block for an output that starts with the table's columns: only where the file's columns lead
+    const rows = Int32Array.from([3, 1, -1]);
+    expect(leadingRowText(table, rows)).toEqual([{ first: 0, count: 4, text: lineTextOf(table, FILE_COLUMNS), rows }]);
+    expect(leadingRowText(copy, rows)).toEqual([]);
+    expect(leadingRowText(table.selectAt([1, 0, 2, 3, 4, 5, 6]), rows)).toEqual([]);
   });
 });
 

@@ -7,6 +7,7 @@ import { COMMON_FLAGS, numberFlag, parseFlags } from "../command.js";
 import { usageError } from "../../errors.js";
 import { CATALOGUE_FLAGS, CATALOGUE_FLAGS_HELP, loadForCommand, parseCatalogueFlags } from "../catalogue-flags.js";
 import { assertNotSameFile, writeFileAtomic, writeTable } from "../../catalogue/io.js";
+import { leadingRowText, type RowText } from "../../catalogue/line-text.js";
 import { columnsOf, tableFromColumns, takeColumn, type ColumnData } from "../../catalogue/columns.js";
 import { recordStep } from "../../catalogue/meta.js";
 import { validMask } from "../../catalogue/validity.js";
@@ -35,6 +36,9 @@ options:
   --partitions N       process the sky as N declination bands one after another (default 1)
 ${CATALOGUE_FLAGS_HELP}
   -q, --quiet          no summary on stderr
+
+In CSV output, the cells of a number-only CSV input are written as the file spelled them (where the
+delimiter is the same).
 `;
 
 const command: Command = {
@@ -79,11 +83,13 @@ const command: Command = {
     const clash = cat.table.schema.fields.find((f) => reserved.has(f.name));
     if (clash) throw usageError(`${path} already has a column "${clash.name}"; rename it (or dedupe the original catalogue)`);
     let table;
+    let rowText: RowText[];
     if (!values.collapse) {
       const cols: ColumnData[] = columnsOf(cat.table);
       cols.push({ name: "dup_group", kind: "int32", values: r.group, meta: { description: `object id: rows linked within ${radiusArcsec} arcsec${maxDvKmS !== undefined ? ` and ${maxDvKmS} km/s` : ""}, transitively` } });
       cols.push({ name: "dup_size", kind: "int32", values: r.size, meta: { description: "rows in the object" } });
       table = tableFromColumns(cols, meta, cat.table.numRows);
+      rowText = leadingRowText(cat.table, Int32Array.from({ length: cat.table.numRows }, (_, i) => i));
     } else {
       const reps = representatives(r.group, r.nGroups, validMask(cat.table));
       const cols = columnsOf(cat.table).map((c) => takeColumn(c, reps));
@@ -103,8 +109,10 @@ const command: Command = {
       cols.push({ name: "dup_size", kind: "int32", values: size, meta: { description: "rows the object stands for" } });
       cols.push({ name: "dup_rows", kind: "utf8", values: rowsText, meta: { description: "source rows of the object's rows; the first valid one's values are kept" } });
       table = tableFromColumns(cols, meta, reps.length);
+      rowText = leadingRowText(cat.table, reps);
     }
-    await writeTable(table, out, flags.outFormat ? { format: flags.outFormat } : {});
+    // a CSV output copies the input's cells as spelled there (line-text.ts), where it can
+    await writeTable(table, out, { ...(flags.outFormat ? { format: flags.outFormat } : {}), rowText });
     io.note(
       `dedupe: ${cat.table.numRows} rows, ${r.nGroups} objects; ${r.duplicateGroups} objects with duplicates (${r.duplicateRows} rows, largest ${r.largest}); ${r.links} links within ${values.radius}` +
         (maxDvKmS !== undefined ? `; ${r.rejectedByDv} links rejected by --max-dv, ${r.uncheckedDv} kept without a velocity check` : "") +
