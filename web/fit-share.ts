@@ -76,23 +76,26 @@ function layout(capacity: number) {
   return { chunks, doneAt, workAt, hubbleAt, slicesAt, jobsAt, bytes: jobsAt + MAX_JOBS * 4 };
 }
 
+/** Typed views carved one after the other from `buffer` from byte `at` (float64 views on a multiple of 8). */
+function carver(buffer: SharedArrayBuffer, at: number) {
+  const take = <T>(make: (offset: number) => T, bytes: number): T => {
+    const a = make(at);
+    at += bytes;
+    return a;
+  };
+  return {
+    f64: (len: number) => {
+      at = Math.ceil(at / 8) * 8;
+      return take((o) => new Float64Array(buffer, o, len), len * 8);
+    },
+    i32: (len: number) => take((o) => new Int32Array(buffer, o, len), len * 4),
+    u32: (len: number) => take((o) => new Uint32Array(buffer, o, len), len * 4),
+    u8: (len: number) => take((o) => new Uint8Array(buffer, o, len), len),
+  };
+}
+
 function slicesOn(buffer: SharedArrayBuffer, at: number, capacity: number, hubble: HubbleJob): SliceJob[] {
-  const f64 = (len: number) => {
-    at = Math.ceil(at / 8) * 8;
-    const a = new Float64Array(buffer, at, len);
-    at += len * 8;
-    return a;
-  };
-  const i32 = (len: number) => {
-    const a = new Int32Array(buffer, at, len);
-    at += len * 4;
-    return a;
-  };
-  const u8 = (len: number) => {
-    const a = new Uint8Array(buffer, at, len);
-    at += len;
-    return a;
-  };
+  const { f64, i32, u8 } = carver(buffer, at);
   const sg: [Float64Array, Float64Array, Float64Array] = [f64(capacity), f64(capacity), f64(capacity)];
   const out: SliceJob[] = [];
   for (let k = 0; k < SLICE_JOBS; k++) {
@@ -110,26 +113,7 @@ export function runDrawJob(share: FitShare, c: number): void {
 }
 
 function hubbleOn(buffer: SharedArrayBuffer, at: number, capacity: number): HubbleJob {
-  const f64 = (len: number) => {
-    const a = new Float64Array(buffer, at, len);
-    at += len * 8;
-    return a;
-  };
-  const u8 = (len: number) => {
-    const a = new Uint8Array(buffer, at, len);
-    at += len;
-    return a;
-  };
-  const i32 = (len: number) => {
-    const a = new Int32Array(buffer, at, len);
-    at += len * 4;
-    return a;
-  };
-  const u32 = (len: number) => {
-    const a = new Uint32Array(buffer, at, len);
-    at += len * 4;
-    return a;
-  };
+  const { f64, i32, u32, u8 } = carver(buffer, at);
   return {
     P: f64(HJ_SLOTS),
     s: f64(capacity),

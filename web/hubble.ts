@@ -149,9 +149,7 @@ export class HubblePanel extends CanvasPanel {
    */
   queue(kinds: number[]): void {
     if (!this.jobs || !this.useWorker) return;
-    const [w, h, dpr] = this.plannedSize();
-    const W = Math.round(w * dpr);
-    const H = Math.round(h * dpr);
+    const { w, h, dpr, W, H } = this.plannedDevice();
     if (W * H > this.jobs.hubble.cellsMain.length) return;
     const P = this.jobParams(this.geometry(w, h), W, H, dpr, 0, 0);
     this.jobs.hubble.P.set(P);

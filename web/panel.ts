@@ -104,16 +104,22 @@ export abstract class CanvasPanel {
     return [Math.max(50, Math.floor(bw)), Math.max(50, Math.floor(bh)), window.devicePixelRatio || 1];
   }
 
+  /** plannedSize with the canvas's size in device pixels (W, H) that render() gives it. */
+  protected plannedDevice(): { w: number; h: number; dpr: number; W: number; H: number } {
+    const [w, h, dpr] = this.plannedSize();
+    return { w, h, dpr, W: Math.round(w * dpr), H: Math.round(h * dpr) };
+  }
+
   /** render() sets px and py to NaN before draw(); a panel whose draw writes every row turns this off. */
   protected clearsPositions = true;
 
   render(): void {
-    const [w, h, dpr] = this.plannedSize();
-    if (w !== this.width || h !== this.height || this.canvas.width !== Math.round(w * dpr)) {
+    const { w, h, dpr, W, H } = this.plannedDevice();
+    if (w !== this.width || h !== this.height || this.canvas.width !== W) {
       this.width = w;
       this.height = h;
-      this.canvas.width = Math.round(w * dpr);
-      this.canvas.height = Math.round(h * dpr);
+      this.canvas.width = W;
+      this.canvas.height = H;
       this.canvas.style.width = `${w}px`;
       this.canvas.style.height = `${h}px`;
       this.svg.attr("width", w).attr("height", h).attr("viewBox", `0 0 ${w} ${h}`);

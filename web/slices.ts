@@ -186,9 +186,7 @@ export class SlicePanel extends CanvasPanel {
    */
   queue(kinds: number[]): void {
     if (!this.shared || !this.jobs) return;
-    const [w, h, dpr] = this.plannedSize();
-    const W = Math.round(w * dpr);
-    const H = Math.round(h * dpr);
+    const { w, h, dpr, W, H } = this.plannedDevice();
     if (W * H > this.job.cells.length) return;
     const P = this.jobParams(this.geometry(w, h), W, H, dpr, 0, 0);
     this.job.P.set(P);
