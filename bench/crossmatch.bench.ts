@@ -114,6 +114,11 @@ function runCli(args: string[]): { seconds: number; cpu: number; rssMiB: number 
   return { seconds, cpu: u.cpuMicros / 1e6, rssMiB: u.maxRssKiB / 1024 };
 }
 
+/** Each run's seconds, in run order, so the spread behind a median shows. */
+function runs(xs: number[]): string {
+  return xs.map((x) => x.toFixed(2)).join(" ");
+}
+
 function hasAstropy(): boolean {
   const r = spawnSync("/usr/bin/python3", ["-c", "import astropy"], { encoding: "utf8" });
   return r.status === 0;
@@ -254,6 +259,7 @@ async function main() {
     console.log(`  wall: whole match (positions to chosen pairs) on 1 thread ${fmt(median(one))}, on 2 threads (worker bands) ${fmt(median(two))}`);
     console.log(`  wall: CLI from Arrow on 1 thread (--threads 1) ${fmt(median(arrow1))} (CPU ${fmt(median(carrow1))})`);
     console.log(`  wall: CLI from Arrow ${fmt(median(arrow))}   CLI from CSV ${fmt(median(csv))}   (CPU: ${fmt(median(carrow))}, ${fmt(median(ccsv))})   peak RSS ${Math.max(...rss).toFixed(0)} MiB`);
+    console.log(`  runs (wall, s): Arrow ${runs(arrow)}; CSV ${runs(csv)}${py.length ? `; astropy ${runs(py)}` : ""}`);
     if (py.length) {
       const t = median(py);
       console.log(`  ${pyInfo}: load + match ${fmt(t)}; ratio astropy / CLI: Arrow ${(t / median(arrow)).toFixed(1)}x, CSV ${(t / median(csv)).toFixed(1)}x`);
