@@ -17,7 +17,7 @@
  * - Types: bool when every non-null cell is true/false (any case); numeric when at least 3/4 of
  *   the non-null cells are numbers (int32 when all are integers in range, int64 for larger
  *   integers, else float64); the other cells of a numeric column become null and flag their row
- *   `column cz: "abc" is not a number`. Everything else is text (sexagesimal angles stay text).
+ *   `line 12: column cz: "abc" is not a number`. Everything else is text (sexagesimal angles stay text).
  * - A row with too few fields gets nulls, one with too many keeps the extra cells in its reason:
  *   `line 17: 5 fields, expected 7` / `line 17: 9 fields, expected 7 (extra: "a", "b")`.
  * - The delimiter is one ASCII character other than a quote or a line end.
@@ -330,7 +330,7 @@ function buildColumn(name: string, recs: CsvRecords, first: number, j: number, r
   if (nums > 0 && nums >= 3 * (nonNull - nums)) {
     const bad = (i: number) => {
       isNull[i] = 1;
-      addReason(reasons, i, `column ${name}: ${JSON.stringify(recs.cellString(recs.cellAt(first + i, j)))} is not a number`);
+      addReason(reasons, i, `line ${recs.recLine[first + i]}: column ${name}: ${JSON.stringify(recs.cellString(recs.cellAt(first + i, j)))} is not a number`);
     };
     if (floats === 0 && int32ok) {
       const v = new Int32Array(n);
@@ -401,13 +401,13 @@ const TYPED_ARRAYS: Partial<Record<ColumnKind, new (n: number) => ColumnData["va
 };
 
 /** A column whose type the file declares (ECSV): no inference; cells that do not fit are null and flagged. */
-function buildDeclaredColumn(name: string, cells: (string | undefined)[], reasons: string[], meta: ColumnMeta, datatype: string, kind: ColumnKind): ColumnData {
+function buildDeclaredColumn(name: string, cells: (string | undefined)[], lines: ArrayLike<number>, reasons: string[], meta: ColumnMeta, datatype: string, kind: ColumnKind): ColumnData {
   const n = cells.length;
   const nulls = new Uint8Array(n);
   const values = kind === "utf8" ? new Array<string>(n).fill("") : new TYPED_ARRAYS[kind]!(n);
   const bad = (i: number) => {
     nulls[i] = 1;
-    addReason(reasons, i, `column ${name}: ${JSON.stringify(cells[i])} is not a valid ${datatype}`);
+    addReason(reasons, i, `line ${lines[i]}: column ${name}: ${JSON.stringify(cells[i])} is not a valid ${datatype}`);
   };
   for (let i = 0; i < n; i++) {
     const c = cells[i];
@@ -496,8 +496,7 @@ export function plainNumericTable(bytes: Uint8Array, from: number, delim: number
     const nl = bytes.indexOf(10, end);
     end = nl < 0 ? n : nl + 1;
   }
-  if (end >= n) return null; // a small file: the general rules alone
-  const head = bytes.subarray(0, end);
+  const head = bytes.subarray(0, end); // a small file is all head
   // quotes may hide line ends; a CR not followed by LF ends a line that indexOf does not see
   if (head.indexOf(34, from) >= 0) return null;
   for (let c = head.indexOf(13, from); c >= 0; c = head.indexOf(13, c + 1)) if (head[c + 1] !== 10) return null;
@@ -586,7 +585,7 @@ export function parseCsvBytes(bytes: Uint8Array, options: CsvOptions): ParsedCol
       const meta: ColumnMeta = {};
       if (declared.unit) meta.unit = declared.unit;
       if (declared.description) meta.description = declared.description;
-      columns.push(buildDeclaredColumn(names[j]!, cells, reasons, meta, declared.datatype, ecsvKind(declared)));
+      columns.push(buildDeclaredColumn(names[j]!, cells, sourceRows, reasons, meta, declared.datatype, ecsvKind(declared)));
       continue;
     }
     const u = units[j]?.trim() ?? "";

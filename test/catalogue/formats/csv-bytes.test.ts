@@ -85,7 +85,7 @@ describe("CSV reader on bytes", () => {
     const bytes = new TextEncoder().encode("id,cz\n# note\ng1,100\ng2,12x\ng3,300\ng4,400\n");
     const t = parseTable(bytes, "csv", { file: "survey.csv" });
     const row = (cells(t, "invalid_reason") as string[]).findIndex((r) => r !== "");
-    expect(cells(t, "invalid_reason")[row]).toBe('column cz: "12x" is not a number');
+    expect(cells(t, "invalid_reason")[row]).toBe('line 4: column cz: "12x" is not a number');
     expect(cells(t, "source_row")[row]).toBe(4);
     expect(JSON.parse(t.schema.metadata.get(META.source)!)).toMatchObject({ file: "survey.csv", rows: 4, invalid: 1 });
   });

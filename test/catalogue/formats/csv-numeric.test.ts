@@ -106,7 +106,17 @@ describe("the plain numeric body reader", () => {
     });
   }
 
-  it("leaves small files (the head alone) to the general rules", () => {
-    expect(both(table(3, 100)).plain).toBeNull();
+  it("reads a small file (all of it head) exactly as the general rules do, or leaves it to them", () => {
+    for (const rows of [1, 2, 3, 10, 100, 255, 256, 257]) {
+      for (const [what, o] of cases) {
+        const r = both(table(rows * 31 + what.length, rows, o));
+        expect(r.plain, `${rows} rows, ${what}`).not.toBeNull();
+        expect(shape(r.fast), `${rows} rows, ${what}`).toEqual(shape(r.general));
+      }
+      for (const [what, edit] of breaks) {
+        const r = both(edit(table(rows + 5, Math.max(rows, 2), { nulls: true }).replace(/\n1,/, "\n2500,")));
+        expect(shape(r.fast), `${rows} rows, ${what}`).toEqual(shape(r.general));
+      }
+    }
   });
 });

@@ -46,7 +46,7 @@ describe("parseCsv", () => {
     const t = parseCsv("name,cz\ngal1,abc\ngal2,100\ngal3,200\ngal4,300\n", { file });
     expect(t.numRows).toBe(4);
     expect(columnMeta(t, "cz").unit).toBeUndefined();
-    expect(cells(t, "invalid_reason")[0]).toBe('column cz: "abc" is not a number');
+    expect(cells(t, "invalid_reason")[0]).toBe('line 2: column cz: "abc" is not a number');
   });
 
   it("accepts units with SI prefixes, powers and brackets (h-1.Mpc, [km/s], erg/s/cm2)", () => {
@@ -91,7 +91,7 @@ describe("parseCsv", () => {
     expect(columnDataOf(t, "cz").kind).toBe("int32");
     expect(cells(t, "cz")).toEqual([100, null, 300, 400]);
     expect(cells(t, "valid")).toEqual([true, false, true, true]);
-    expect(cells(t, "invalid_reason")[1]).toBe('column cz: "abc" is not a number');
+    expect(cells(t, "invalid_reason")[1]).toBe('line 3: column cz: "abc" is not a number');
   });
 
   it("keeps a row with too few fields, fills nulls and flags it with its line", () => {
@@ -225,7 +225,7 @@ describe("ECSV header (Astropy APE 6)", () => {
     const t = parseCsv(text, { file: "e.ecsv" });
     expect(cells(t, "id")).toEqual(["007", "008"]);
     expect(cells(t, "n")).toEqual([1, null]);
-    expect(cells(t, "invalid_reason")).toEqual(["", 'column n: "300" is not a valid uint8']);
+    expect(cells(t, "invalid_reason")).toEqual(["", 'line 12: column n: "300" is not a valid uint8']);
     expect(t.schema.metadata.get("ecsv.meta")).toBe("- {H0: 70}");
   });
 
