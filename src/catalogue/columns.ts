@@ -464,13 +464,29 @@ export function columnDataOf(table: Table, name: string): ColumnData {
 }
 
 /** A new table with `columns` appended (or replacing same-named columns), schema metadata kept or replaced. */
+/**
+ * A column carried over unchanged: its Arrow data itself when it is one chunk of a kind we read
+ * (no copy, and the data stays recognisable, line-text.ts), else a copy (columnDataOf).
+ */
+function keptColumn(table: Table, name: string): ColumnData | DataColumn {
+  const v = requireColumn(table, name);
+  const field = table.schema.fields.find((f) => f.name === name)!;
+  if (v.data.length === 1 && kindOf(field.type) !== undefined && !isHalfFloat(field.type)) {
+    const c: DataColumn = { name, data: v.data[0] as Data };
+    const meta = columnMeta(table, name);
+    if (Object.keys(meta).length > 0) c.meta = meta;
+    return c;
+  }
+  return columnDataOf(table, name);
+}
+
 export function withColumns(table: Table, columns: ColumnData[], schemaMetadata?: Map<string, string>): Table {
   const replaced = new Set(columns.map((c) => c.name));
-  const kept = columnsOf(table).filter((c) => !replaced.has(c.name));
+  const kept = table.schema.fields.filter((f) => !replaced.has(f.name)).map((f) => keptColumn(table, f.name));
   const order = [...kept];
   // Replaced columns keep their position; new ones go at the end.
   const byName = new Map(columns.map((c) => [c.name, c]));
-  const out: ColumnData[] = [];
+  const out: (ColumnData | DataColumn)[] = [];
   for (const f of table.schema.fields) {
     const r = byName.get(f.name);
     if (r) {

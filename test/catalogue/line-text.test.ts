@@ -5,7 +5,8 @@ import { describe, expect, it } from "vitest";
 import { writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { pathToFileURL } from "node:url";
-import { tableFromColumns, columnDataOf } from "../../src/catalogue/columns.js";
+import { tableFromColumns, columnDataOf, withColumns } from "../../src/catalogue/columns.js";
+import { flagRows, invalidReasons } from "../../src/catalogue/validity.js";
 import { csvChunks } from "../../src/catalogue/formats/csv-write.js";
 import { parseCsvBytes } from "../../src/catalogue/formats/csv.js";
 import { parseTable, readTable } from "../../src/catalogue/io.js";
@@ -75,8 +76,8 @@ describe("the lines a CSV table keeps", () => {
     });
   }
 
-  it("keeps none for a small file, a file with a text column, or a number with a Fortran exponent", () => {
-    expect(lineTextOf(read(numbers(1, 100).text), FILE_COLUMNS)).toBeUndefined(); // read by the general rules
+  it("keeps them for a small file too, and none for a file with a text column or a number with a Fortran exponent", () => {
+    expect(lineTextOf(read(numbers(1, 100).text), FILE_COLUMNS)?.starts.length).toBe(100);
     const withText = numbers(2, 2000).text.replace("id,ra,dec,cz\n1,", "id,ra,dec,cz\nx,");
     expect(lineTextOf(read(withText), FILE_COLUMNS)).toBeUndefined();
     expect(lineTextOf(read(numbers(3, 2000, { fortran: true }).text), FILE_COLUMNS)).toBeUndefined();
@@ -104,6 +105,18 @@ describe("the lines a CSV table keeps", () => {
     expect(leadingRowText(table, rows)).toEqual([{ first: 0, count: 4, text: lineTextOf(table, FILE_COLUMNS), rows }]);
     expect(leadingRowText(copy, rows)).toEqual([]);
     expect(leadingRowText(table.selectAt([1, 0, 2, 3, 4, 5, 6]), rows)).toEqual([]);
+  });
+
+  it("stay with a table whose rows are flagged (the file columns are carried over, not copied)", () => {
+    const table = read(numbers(7, 2000).text);
+    const bad = new Uint8Array(2000);
+    bad[5] = 1;
+    const flagged = flagRows(table, bad, Object.assign([], { 5: "a reason of a later step" }));
+    expect(invalidReasons(flagged)[5]).toBe("a reason of a later step");
+    expect(lineTextOf(flagged, FILE_COLUMNS)).toBe(lineTextOf(table, FILE_COLUMNS));
+    // a replaced file column takes the lines away
+    const c = columnDataOf(table, "cz");
+    expect(lineTextOf(withColumns(table, [{ ...c, values: (c.values as Float64Array).map((x) => x + 1) }]), FILE_COLUMNS)).toBeUndefined();
   });
 });
 
