@@ -66,8 +66,8 @@ function parseRole(role: string, flag: string, item: string): Role {
   return role as Role;
 }
 
-/** Parses --col, --unit, --format and --out-format values. */
-export function parseCatalogueFlags(values: RawValues): CatalogueFlags {
+/** Parses --col, --unit, --format and --out-format values; `inputs` is how many inputs the command reads (--col N: beyond them is an error). */
+export function parseCatalogueFlags(values: RawValues, inputs = 1): CatalogueFlags {
   const out: CatalogueFlags = { overrides: {}, perInput: new Map(), units: {} };
   for (const item of values.col ?? []) {
     const m = /^(?:(\d+):)?([A-Za-z_]+)=(.*)$/.exec(item);
@@ -77,6 +77,7 @@ export function parseCatalogueFlags(values: RawValues): CatalogueFlags {
     if (m[1] !== undefined) {
       const k = Number(m[1]);
       if (k < 1) throw usageError(`--col ${item}: inputs are numbered from 1`);
+      if (k > inputs) throw usageError(`--col ${item}: there is no input ${k}; this command reads ${inputs === 1 ? "one input" : `${inputs} inputs`}`);
       const map = out.perInput.get(k) ?? {};
       map[role] = name;
       out.perInput.set(k, map);

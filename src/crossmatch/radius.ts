@@ -26,7 +26,8 @@ export function parseAngleArcsec(text: string, what = "angle"): number {
   if (unit === "") throw new PeculiarError("usage", `${what}: the angle needs a unit`, { value: text, expected });
   const f = UNIT_ARCSEC[unit];
   if (f === undefined) throw new PeculiarError("usage", `${what}: unknown angle unit "${m[2]}"`, { value: text, expected: "mas, arcsec, arcmin or deg" });
-  if (!Number.isFinite(x) || x < 0) throw new PeculiarError("usage", `${what}: the angle must be >= 0`, { value: text, expected });
+  if (!Number.isFinite(x)) throw new PeculiarError("usage", `${what}: the number is too large to hold`, { value: text, expected });
+  if (x < 0) throw new PeculiarError("usage", `${what}: the angle must be >= 0`, { value: text, expected });
   const arcsec = x * f;
   if (arcsec > 180 * 3600) throw new PeculiarError("usage", `${what}: the angle is more than 180 degrees`, { value: text, expected: "at most 180deg" });
   return arcsec;

@@ -14,7 +14,7 @@ function memoryIo(): Io & { lines: string[] } {
 
 describe("parseCatalogueFlags", () => {
   it("parses repeated --col ROLE=NAME, per-input N:ROLE=NAME, --unit, --format, --out-format and --hdu", () => {
-    const f = parseCatalogueFlags({ col: ["ra=RA_h", "2:cz=vel", "z="], unit: ["ra=h"], format: "CSV", "out-format": "fits", hdu: "2" });
+    const f = parseCatalogueFlags({ col: ["ra=RA_h", "2:cz=vel", "z="], unit: ["ra=h"], format: "CSV", "out-format": "fits", hdu: "2" }, 2);
     expect(f.overrides).toEqual({ ra: "RA_h", z: "" });
     expect(overridesFor(f, 1)).toEqual({ ra: "RA_h", z: "" });
     expect(overridesFor(f, 2)).toEqual({ ra: "RA_h", z: "", cz: "vel" });
@@ -33,6 +33,7 @@ describe("parseCatalogueFlags", () => {
     [{ col: ["ra"] }, /--col ra: expected ROLE=NAME/],
     [{ col: ["speed=v"] }, /unknown role 'speed'/],
     [{ col: ["0:ra=x"] }, /numbered from 1/],
+    [{ col: ["2:ra=x"] }, /there is no input 2; this command reads one input/],
     [{ unit: ["ra"] }, /--unit ra: expected ROLE=UNIT/],
     [{ format: "xls" }, /unknown format "xls"/],
   ])("rejects %j as a usage error", (values, msg) => {

@@ -16,6 +16,7 @@ describe("parseAngleArcsec", () => {
     expect(() => parseAngleArcsec("2parsec", "--radius")).toThrow(/unknown angle unit "parsec"/);
     expect(() => parseAngleArcsec("-1arcsec")).toThrow(/>= 0/);
     expect(() => parseAngleArcsec("200deg")).toThrow(/180 degrees/);
+    expect(() => parseAngleArcsec("1e400arcsec", "--radius")).toThrow(/--radius: the number is too large/);
     expect(() => parseAngleArcsec("two arcsec")).toThrow(/not an angle/);
   });
 
