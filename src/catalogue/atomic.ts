@@ -54,17 +54,48 @@ function canonical(path: string): string {
   }
 }
 
+/** True when the two paths name the same file (also through links, or both not there yet). */
+function sameFile(p: string, q: string): boolean {
+  if (canonical(p) === canonical(q)) return true;
+  try {
+    const a = statSync(p);
+    const b = statSync(q);
+    return a.dev === b.dev && a.ino === b.ino;
+  } catch {
+    return false;
+  }
+}
+
 /** Refuses to write `output` when it is the same file as `input` (also through links). */
 export function assertNotSameFile(input: string, output: string): void {
-  let same = canonical(input) === canonical(output);
-  if (!same) {
+  if (sameFile(input, output)) throw new PeculiarError("usage", "output is the input file; inputs are never modified, choose another output", { file: output });
+}
+
+/**
+ * Checks a command's outputs before it does any work: no output is one of its inputs, no two
+ * outputs are the same file, and each output's folder exists. A run that would fail at its last
+ * write then fails at its start, with nothing written. Undefined entries (options not given) are skipped.
+ */
+export function assertOutputs(inputs: readonly string[], outputs: readonly (string | undefined)[]): void {
+  const outs = outputs.filter((o): o is string => o !== undefined);
+  for (const o of outs) for (const i of inputs) assertNotSameFile(i, o);
+  for (let k = 0; k < outs.length; k++) {
+    for (let m = 0; m < k; m++) {
+      if (sameFile(outs[m]!, outs[k]!)) throw new PeculiarError("usage", `two outputs are the same file (${outs[m]} and ${outs[k]}); give each its own path`, { file: outs[k]! });
+    }
+    const dir = dirname(resolve(outs[k]!));
+    let isDir = false;
     try {
-      const a = statSync(input);
-      const b = statSync(output);
-      same = a.dev === b.dev && a.ino === b.ino;
+      isDir = statSync(dir).isDirectory();
     } catch {
-      same = false;
+      isDir = false;
+    }
+    if (!isDir) throw new PeculiarError("io", `cannot write: folder does not exist (${dir})`, { file: outs[k]! });
+    try {
+      if (statSync(outs[k]!).isDirectory()) throw new PeculiarError("io", "cannot write: the output is a folder", { file: outs[k]! });
+    } catch (e) {
+      if (e instanceof PeculiarError) throw e;
     }
   }
-  if (same) throw new PeculiarError("usage", "output is the input file; inputs are never modified, choose another output", { file: output });
 }
+

@@ -21,7 +21,7 @@ import { finishTable, type ParsedColumns, type SourceInfo } from "./formats/tabl
 import { parseVOTableColumns } from "./formats/votable.js";
 import { votableFromTable } from "./formats/votable-write.js";
 
-export { assertNotSameFile, writeFileAtomic } from "./atomic.js";
+export { assertNotSameFile, assertOutputs, writeFileAtomic } from "./atomic.js";
 export { parseCsv, NULL_TOKENS } from "./formats/csv.js";
 export { csvFromTable } from "./formats/csv-write.js";
 export { parseArrow, arrowFromTable } from "./formats/arrow.js";
@@ -66,7 +66,7 @@ export function formatFromPath(path: string): FormatName {
   const ext = formatExtension(path);
   const f = EXTENSIONS[ext];
   if (!f) {
-    throw new PeculiarError("format", `unknown file format ${ext ? `"${ext}"` : "(no extension)"}; use --format or one of the extensions ${Object.keys(EXTENSIONS).join(" ")} (each also with .gz)`, { file: path });
+    throw new PeculiarError("format", `unknown file format ${ext ? `"${ext}"` : "(no extension)"}; name the format (--format for an input, --out-format for an output) or use one of the extensions ${Object.keys(EXTENSIONS).join(" ")} (each also with .gz)`, { file: path });
   }
   return f;
 }

@@ -15,8 +15,11 @@ export interface SideExtras {
   velocityKmS?: Float64Array;
   /** how the velocity was found, for the summary */
   velocityFrom?: string;
+  /** 1-sigma per-axis positional error in arcsec; NaN where missing, negative or infinite. */
   posErrArcsec?: Float64Array;
   posErrFrom?: string;
+  /** Rows whose positional error is negative or infinite (1 = bad), with their reasons; undefined when none. */
+  badPosErr?: { bad: Uint8Array; reasons: (string | undefined)[]; count: number };
   notes: string[];
 }
 
@@ -61,25 +64,36 @@ export function sideExtras(table: Table, roles: RoleMap, file: string): SideExtr
     out.velocityKmS = z.map((x) => C_KMS * x);
     out.velocityFrom = `c*z <- ${roles.z}`;
   }
-  if (roles.pos_err) {
-    const f = errorScale(table, roles.pos_err, notes, file);
-    out.posErrArcsec = float64Column(table, roles.pos_err).map((x) => x * f);
-    out.posErrFrom = `pos_err <- ${roles.pos_err}`;
-  } else if (roles.ra_err || roles.dec_err) {
-    const cols = [roles.ra_err, roles.dec_err].filter((c): c is string => c !== undefined);
-    const parts = cols.map((c) => {
+  const errCols = roles.pos_err ? [roles.pos_err] : [roles.ra_err, roles.dec_err].filter((c): c is string => c !== undefined);
+  if (errCols.length > 0) {
+    const n = table.numRows;
+    const parts = errCols.map((c) => {
       const f = errorScale(table, c, notes, file);
       return float64Column(table, c).map((x) => x * f);
     });
-    const n = table.numRows;
     const e = new Float64Array(n);
+    let bad: Uint8Array | undefined;
+    const reasons: (string | undefined)[] = [];
+    let count = 0;
     for (let i = 0; i < n; i++) {
       let s = 0;
-      for (const p of parts) s += p[i]! * p[i]!;
-      e[i] = Math.sqrt(s / parts.length); // per-axis rms of the axis errors
+      let why: string | undefined;
+      for (let k = 0; k < parts.length; k++) {
+        const x = parts[k]![i]!;
+        if (x < 0 || x === Infinity) why = (why ? `${why}; ` : "") + `column ${errCols[k]}: positional error ${x < 0 ? "is negative" : "is infinite"}`;
+        s += x * x;
+      }
+      // one error column: its value; two: the per-axis rms of the axis errors
+      e[i] = why ? NaN : parts.length === 1 ? parts[0]![i]! : Math.sqrt(s / parts.length);
+      if (why) {
+        (bad ??= new Uint8Array(n))[i] = 1;
+        reasons[i] = why;
+        count++;
+      }
     }
     out.posErrArcsec = e;
-    out.posErrFrom = `per-axis rms of ${cols.join(", ")}`;
+    out.posErrFrom = roles.pos_err ? `pos_err <- ${roles.pos_err}` : `per-axis rms of ${errCols.join(", ")}`;
+    if (bad) out.badPosErr = { bad, reasons, count };
   }
   return out;
 }

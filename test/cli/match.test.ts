@@ -97,6 +97,35 @@ describe("peculiar match", () => {
     expect(stringColumn(t, "dist_id").slice(0, 2)).toEqual(["d1", "d5"]);
   });
 
+  it("--sigma flags a row with a negative positional error and matches it as a row without an error", async () => {
+    // invented rows; 0.36" per 1e-4 deg of Dec (small-angle rule, Meeus 1998 ch. 17)
+    writeFileSync(join(dir, "neg-a.csv"), "id,ra,dec,e_pos\nn1,10,20,0.5\nn2,20,20,-1\nn3,30,20,0.5\n");
+    writeFileSync(join(dir, "neg-b.csv"), "id,ra,dec\nm1,10,20.0001\nm2,20,20.0001\nm3,30,20.0001\n");
+    const out = join(dir, "neg.csv");
+    // with --radius 2arcsec a row without an error falls back on R: n2-m2 at 0.36" is kept
+    const r = runCli(["match", join(dir, "neg-a.csv"), join(dir, "neg-b.csv"), "-o", out, "--sigma", "3", "--radius", "2arcsec", "--join", "left"]);
+    expect(r.code, r.stderr).toBe(0);
+    expect(r.stderr).toMatch(/neg-a\.csv: 1 row with a negative or infinite positional error: flagged/);
+    const t = await readTable(out);
+    expect(stringColumn(t, "neg_a_id")).toEqual(["n1", "n2", "n3"]);
+    expect(stringColumn(t, "neg_b_id")).toEqual(["m1", "m2", "m3"]);
+    expect(stringColumn(t, "invalid_reason")).toEqual(["", "neg_a: column e_pos: positional error is negative", ""]);
+  });
+
+  it("refuses --col for an input that is not there, and a default alias never starts with a digit", async () => {
+    const r = runCli(["match", join(dir, "survey.csv"), join(dir, "dist.csv"), "-o", join(dir, "col3.csv"), "--radius", "2arcsec", "--col", "3:ra=ra"]);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toMatch(/--col 3:ra=ra: there is no input 3; this command reads 2 inputs/);
+    writeFileSync(join(dir, "2cat.csv"), readFileSync(join(dir, "dist.csv")));
+    const out = join(dir, "digit.arrow");
+    const r2 = runCli(["match", join(dir, "survey.csv"), join(dir, "2cat.csv"), "-o", out, "--radius", "2arcsec", "-q"]);
+    expect(r2.code, r2.stderr).toBe(0);
+    expect((await readTable(out)).schema.fields.map((f) => f.name)).toContain("_2cat_id");
+    const r3 = runCli(["match", join(dir, "survey.csv"), join(dir, "dist.csv"), "-o", out, "--radius", "2arcsec", "--alias", "2mass,d"]);
+    expect(r3.code).toBe(2);
+    expect(r3.stderr).toMatch(/starting with a letter or _/);
+  });
+
   it("refuses a radius without a unit, naming the option and the expected form", () => {
     const r = runCli(["match", join(dir, "survey.csv"), join(dir, "dist.csv"), "-o", join(dir, "x.csv"), "--radius", "2"]);
     expect(r.code).toBe(2);
@@ -113,6 +142,19 @@ describe("peculiar match", () => {
     const r2 = runCli(["match", join(dir, "survey.csv"), join(dir, "dist.csv"), "-o", join(dir, "y.csv"), "--radius", "2arcsec", "--select", "best"]);
     expect(r2.code).toBe(2);
     expect(r2.stderr).toMatch(/nearest, all, one-to-one/);
+  });
+
+  it("refuses a report that is the output, and an output or report in a missing folder, before writing anything", () => {
+    const out = join(dir, "both.csv");
+    const r = runCli(["match", join(dir, "survey.csv"), join(dir, "dist.csv"), "-o", out, "--radius", "2arcsec", "--report", out]);
+    expect(r.code).toBe(2);
+    expect(r.stderr).toMatch(/two outputs are the same file/);
+    expect(existsSync(out)).toBe(false);
+    const r2 = runCli(["match", join(dir, "survey.csv"), join(dir, "dist.csv"), "-o", out, "--radius", "2arcsec", "--report", join(dir, "no-such-folder", "r.json")]);
+    expect(r2.code).toBe(1);
+    expect(r2.stderr).toMatch(/folder does not exist/);
+    expect(r2.stderr).toMatch(/r\.json/);
+    expect(existsSync(out)).toBe(false); // the table is not written when the report cannot be
   });
 
   it("a missing input names the file", () => {

@@ -6,7 +6,7 @@
 import type { Command } from "../command.js";
 import { COMMON_FLAGS, numberFlag, parseFlags } from "../command.js";
 import { usageError } from "../../errors.js";
-import { assertNotSameFile, parseFormatName, readTable, writeFileAtomic, writeTable } from "../../catalogue/io.js";
+import { assertOutputs, parseFormatName, readTable, writeFileAtomic, writeTable } from "../../catalogue/io.js";
 import { combineDistances, type CombineOptions } from "../../cosmology/combine.js";
 
 const help = `usage: peculiar combine IN -o OUT --mu COL,COL[,...] [options]
@@ -68,10 +68,9 @@ const command: Command = {
     const input = positionals[0]!;
     const output = values.output;
     if (!output) throw usageError("combine needs -o OUT");
-    assertNotSameFile(input, output);
+    assertOutputs([input], [output, values.report]);
     const mu = list(values.mu);
     if (!mu || mu.some((c) => c === "")) throw usageError("combine needs --mu with the modulus columns, comma-separated", { value: values.mu, expected: "e.g. --mu a_mu,b_mu" });
-    if (values.report !== undefined) assertNotSameFile(input, values.report);
     const table = await readTable(input, values.format !== undefined ? { format: parseFormatName(values.format) } : {});
     const options: CombineOptions = { muColumns: mu, apply: values.apply === true, network: values.network === true, file: input };
     const err = list(values.err);

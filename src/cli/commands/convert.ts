@@ -6,7 +6,7 @@ import type { Table } from "apache-arrow";
 import { COMMON_FLAGS, parseFlags, type Command } from "../command.js";
 import { CATALOGUE_FLAGS, CATALOGUE_FLAGS_HELP, loadForCommand, parseCatalogueFlags } from "../catalogue-flags.js";
 import { PeculiarError, usageError } from "../../errors.js";
-import { assertNotSameFile, formatFromPath, writeTable } from "../../catalogue/io.js";
+import { assertOutputs, formatFromPath, writeTable } from "../../catalogue/io.js";
 import { columnMeta, hasColumn, withColumns, type ColumnData } from "../../catalogue/columns.js";
 import { recordStep, type Role } from "../../catalogue/meta.js";
 import { countInvalid, validMask } from "../../catalogue/validity.js";
@@ -108,7 +108,7 @@ const command: Command = {
     const [input, output] = positionals as [string, string];
     const flags = parseCatalogueFlags(values);
     const frames = parseFrames(values["add-frames"]);
-    assertNotSameFile(input, output);
+    assertOutputs([input], [output]);
     const outFormat = flags.outFormat ?? formatFromPath(output); // fail on an unknown extension before reading
     const cat = await loadForCommand(input, flags, io, frames.length ? { require: ["ra", "dec"] } : {});
     const notes: string[] = [];

@@ -6,7 +6,7 @@ import type { Command, Io } from "../command.js";
 import { COMMON_FLAGS, numberFlag, parseFlags } from "../command.js";
 import { usageError } from "../../errors.js";
 import { CATALOGUE_FLAGS, CATALOGUE_FLAGS_HELP, loadForCommand, parseCatalogueFlags } from "../catalogue-flags.js";
-import { assertNotSameFile, writeFileAtomic, writeTable } from "../../catalogue/io.js";
+import { assertOutputs, writeFileAtomic, writeTable } from "../../catalogue/io.js";
 import { leadingRowText, type RowText } from "../../catalogue/line-text.js";
 import { columnsOf, tableFromColumns, takeColumn, type ColumnData } from "../../catalogue/columns.js";
 import { recordStep } from "../../catalogue/meta.js";
@@ -64,8 +64,7 @@ const command: Command = {
     const path = positionals[0]!;
     const out = values.output;
     if (!out) throw usageError("dedupe needs an output file: -o OUT");
-    assertNotSameFile(path, out);
-    if (values.report) assertNotSameFile(path, values.report);
+    assertOutputs([path], [out, values.report]);
     if (values.radius === undefined) throw usageError("dedupe needs --radius R (e.g. 2arcsec)");
     const radiusArcsec = parseAngleArcsec(values.radius, "--radius");
     const maxDvKmS = values["max-dv"] === undefined ? undefined : numberFlag(values["max-dv"], "max-dv", 0, (x) => x >= 0, "km/s >= 0");

@@ -5,7 +5,7 @@
 import type { Command } from "../command.js";
 import { COMMON_FLAGS, numberFlag, parseFlags, h0Flag, omegaMFlag } from "../command.js";
 import { usageError } from "../../errors.js";
-import { assertNotSameFile, writeTable } from "../../catalogue/io.js";
+import { assertOutputs, writeTable } from "../../catalogue/io.js";
 import { withColumns, type ColumnData } from "../../catalogue/columns.js";
 import { recordStep } from "../../catalogue/meta.js";
 import { DEFAULT_COSMOLOGY } from "../../cosmology/distances.js";
@@ -62,7 +62,7 @@ const command: Command = {
     const input = positionals[0]!;
     const output = values.output;
     if (!output) throw usageError("flag needs -o OUT");
-    assertNotSameFile(input, output);
+    assertOutputs([input], [output]);
     const method = values.method ?? "clip";
     if (method !== "clip" && method !== "mad") throw usageError("bad value for --method", { value: method, expected: "clip or mad" });
     const k = numberFlag(values.k, "k", 3.5, (x) => x > 0, "a number > 0");

@@ -6,7 +6,7 @@
 import type { Command } from "../command.js";
 import { COMMON_FLAGS, numberFlag, parseFlags, h0Flag, omegaMFlag } from "../command.js";
 import { usageError } from "../../errors.js";
-import { assertNotSameFile, writeTable } from "../../catalogue/io.js";
+import { assertOutputs, writeTable } from "../../catalogue/io.js";
 import { withColumns } from "../../catalogue/columns.js";
 import { recordStep } from "../../catalogue/meta.js";
 import { DEFAULT_COSMOLOGY } from "../../cosmology/distances.js";
@@ -63,7 +63,7 @@ const command: Command = {
     );
     if (positionals.length !== 1) throw usageError("flow needs one input file; see 'peculiar flow --help'", { value: positionals });
     const input = positionals[0]!;
-    if (values.output) assertNotSameFile(input, values.output);
+    assertOutputs([input], [values.output]);
     const sigmaStar = numberFlag(values["sigma-star"], "sigma-star", 250, (x) => x >= 0, "a number >= 0 km/s");
     const h0 = h0Flag(values.h0);
     const omegaM = omegaMFlag(values["omega-m"]);

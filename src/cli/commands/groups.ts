@@ -5,7 +5,7 @@
 import type { Command } from "../command.js";
 import { COMMON_FLAGS, numberFlag, parseFlags, h0Flag, omegaMFlag } from "../command.js";
 import { PeculiarError, usageError } from "../../errors.js";
-import { assertNotSameFile, writeTable } from "../../catalogue/io.js";
+import { assertOutputs, writeTable } from "../../catalogue/io.js";
 import { hasColumn, tableFromColumns, withColumns, type ColumnData } from "../../catalogue/columns.js";
 import { validMask } from "../../catalogue/validity.js";
 import { recordStep } from "../../catalogue/meta.js";
@@ -81,8 +81,7 @@ const command: Command = {
     const input = positionals[0]!;
     const output = values.output;
     if (!output) throw usageError("groups needs -o OUT");
-    assertNotSameFile(input, output);
-    if (values["groups-out"]) assertNotSameFile(input, values["groups-out"]);
+    assertOutputs([input], [output, values["groups-out"]]);
     const scaling = values.scaling ?? "hg82";
     if (scaling !== "hg82" && scaling !== "constant") throw usageError("bad value for --scaling", { value: scaling, expected: "hg82 or constant" });
     const h0 = h0Flag(values.h0);

@@ -8,7 +8,7 @@ import type { Command, Io } from "../command.js";
 import { COMMON_FLAGS, numberFlag, parseFlags } from "../command.js";
 import { usageError } from "../../errors.js";
 import { CATALOGUE_FLAGS, CATALOGUE_FLAGS_HELP, loadForCommand, parseCatalogueFlags, readAheadForCommand } from "../catalogue-flags.js";
-import { assertNotSameFile, formatFromPath, isGzipPath, writeFileAtomic, writeTable, type FormatName } from "../../catalogue/io.js";
+import { assertOutputs, writeFileAtomic, writeTable } from "../../catalogue/io.js";
 import { parseAngleArcsec } from "../../crossmatch/radius.js";
 import { availableParallelism } from "node:os";
 import { crossMatchBanded, joinRows, matchCounts, JOIN_MODES, type JoinMode, type MatchOptions } from "../../crossmatch/match.js";
@@ -16,6 +16,7 @@ import { warmKernelsFor } from "../../crossmatch/pairs.js";
 import { BandPool } from "../../crossmatch/threads.js";
 import { AMBIGUITY_DELTA, SELECT_MODES, type SelectMode } from "../../crossmatch/select.js";
 import { sideExtras } from "../../crossmatch/inputs.js";
+import { flagRows } from "../../catalogue/validity.js";
 import { matchRowText, matchTable } from "../../crossmatch/output.js";
 import { chancePairs, separationHistogram, suggestRadius } from "../../crossmatch/diagnostics.js";
 import { POOL_MIN_BYTES } from "./match-early.js";
@@ -70,11 +71,15 @@ sharing its A or its B row has a score within the ambiguity gap of its own. In C
 cells of a number-only CSV input with the same delimiter are written as that file spelled them.
 `;
 
+/** An alias: a name that column names can start with in every output format (no leading digit). */
+const ALIAS_RE = /^[A-Za-z_][A-Za-z0-9_]*$/;
+
+/** The default alias: the file's stem, other characters as _, a leading digit after a _ (2mass.csv: _2mass). */
 function stem(path: string): string {
   const b = basename(path);
   const e = extname(b);
   const s = (e ? b.slice(0, -e.length) : b).replace(/[^A-Za-z0-9_]/g, "_");
-  return s === "" ? "cat" : s;
+  return s === "" ? "cat" : /^[0-9]/.test(s) ? `_${s}` : s;
 }
 
 function oneOf<T extends string>(value: string | undefined, allowed: readonly T[], flag: string, fallback: T): T {
@@ -111,12 +116,7 @@ const command: Command = {
     const [pathA, pathB] = positionals as [string, string];
     const out = values.output;
     if (!out) throw usageError("match needs an output file: -o OUT");
-    assertNotSameFile(pathA, out);
-    assertNotSameFile(pathB, out);
-    if (values.report) {
-      assertNotSameFile(pathA, values.report);
-      assertNotSameFile(pathB, values.report);
-    }
+    assertOutputs([pathA, pathB], [out, values.report]);
     if (values.radius === undefined && values.sigma === undefined) throw usageError("match needs --radius R (e.g. 2arcsec) or --sigma K");
     const radiusArcsec = values.radius === undefined ? undefined : parseAngleArcsec(values.radius, "--radius");
     const sigmaK = values.sigma === undefined ? undefined : numberFlag(values.sigma, "sigma", 0, (x) => x > 0, "a number > 0");
@@ -131,14 +131,14 @@ const command: Command = {
     let aliasB = stem(pathB);
     if (values.alias !== undefined) {
       const parts = values.alias.split(",").map((s) => s.trim());
-      if (parts.length !== 2 || parts.some((p) => !/^[A-Za-z_][A-Za-z0-9_]*$/.test(p))) throw usageError("bad value for --alias", { value: values.alias, expected: "two names A,B (letters, digits, _)" });
+      if (parts.length !== 2 || parts.some((p) => !ALIAS_RE.test(p))) throw usageError("bad value for --alias", { value: values.alias, expected: "two names A,B of letters, digits and _, each starting with a letter or _ (e.g. _2mass)" });
       [aliasA, aliasB] = parts as [string, string];
     }
     if (aliasA === aliasB) {
       aliasA = `${aliasA}_a`;
       aliasB = `${aliasB}_b`;
     }
-    const flags = parseCatalogueFlags(values);
+    const flags = parseCatalogueFlags(values, 2);
     // progress: one self-erasing status line, only when stderr is a terminal
     const phase = (what: string) => {
       if (io.progress) io.stderr.write(`\r\x1b[Kmatch: ${what}`);
@@ -165,6 +165,8 @@ const command: Command = {
     warmKernelsFor(catA.raDeg.length);
     phase(`reading ${pathB}`);
     const catB = await loadForCommand(pathB, flags, noteIo, { index: 2, require: ["ra", "dec"], table: aheadB });
+    let tableA = catA.table;
+    let tableB = catB.table;
     const xa = sideExtras(catA.table, catA.roles, pathA);
     const xb = sideExtras(catB.table, catB.roles, pathB);
     for (const n of xa.notes) io.note(`${pathA}: ${n}`);
@@ -176,7 +178,11 @@ const command: Command = {
           x.posErrArcsec = new Float64Array(p === pathA ? catA.raDeg.length : catB.raDeg.length);
           io.note(`${p}: no positional error column; its errors count as 0 in --sigma`);
         } else io.note(`${p}: positional errors from ${x.posErrFrom}`);
+        if (x.badPosErr) io.note(`${p}: ${x.badPosErr.count} ${x.badPosErr.count === 1 ? "row" : "rows"} with a negative or infinite positional error: flagged, and matched as rows without an error`);
       }
+      // the step flags the errors it cannot use (the rows stay, and are matched on --radius alone when given)
+      if (xa.badPosErr) tableA = flagRows(tableA, xa.badPosErr.bad, xa.badPosErr.reasons);
+      if (xb.badPosErr) tableB = flagRows(tableB, xb.badPosErr.bad, xb.badPosErr.reasons);
     }
     if (maxDvKmS !== undefined) {
       if (!xa.velocityKmS || !xb.velocityKmS) {
@@ -203,7 +209,7 @@ const command: Command = {
     if (radiusArcsec === undefined) io.note(`match: search radius ${result.searchRadiusArcsec.toPrecision(4)} arcsec (--sigma ${sigmaK} times the largest combined error)`);
     const rows = joinRows(result, join);
     const settings = { radiusArcsec: radiusArcsec ?? null, sigma: sigmaK ?? null, maxDvKmS: maxDvKmS ?? null, select, join, ambiguityDelta, inputA: pathA, inputB: pathB };
-    const table = matchTable(catA.table, catB.table, result, rows, {
+    const table = matchTable(tableA, tableB, result, rows, {
       aliasA,
       aliasB,
       withDv: xa.velocityKmS !== undefined && xb.velocityKmS !== undefined,
@@ -212,7 +218,7 @@ const command: Command = {
       rolesB: catB.roles,
     });
     phase(`writing ${out}`);
-    await writeTable(table, out, { ...(flags.outFormat ? { format: flags.outFormat } : {}), rowText: matchRowText(catA.table, catB.table, rows) });
+    await writeTable(table, out, { ...(flags.outFormat ? { format: flags.outFormat } : {}), rowText: matchRowText(tableA, tableB, rows) });
     phaseDone();
 
     const counts = matchCounts(result);
@@ -254,17 +260,6 @@ const command: Command = {
     return 0;
   },
 };
-
-/** True when `out` will be written as CSV/TSV text without gzip (an unknown extension is an error later). */
-function isTextOutput(out: string, format: FormatName | undefined): boolean {
-  if (isGzipPath(out)) return false;
-  try {
-    const f = format ?? formatFromPath(out);
-    return f === "csv" || f === "tsv";
-  } catch {
-    return false;
-  }
-}
 
 /** Size of a file in bytes, 0 when it cannot be read (the loader reports that). */
 function fileBytes(path: string): number {

@@ -6,7 +6,7 @@
 import type { Command } from "../command.js";
 import { COMMON_FLAGS, numberFlag, parseFlags, h0Flag, omegaMFlag } from "../command.js";
 import { PeculiarError, usageError } from "../../errors.js";
-import { assertNotSameFile, writeTable } from "../../catalogue/io.js";
+import { assertOutputs, writeTable } from "../../catalogue/io.js";
 import { float64Column, hasColumn, stringColumn, withColumns } from "../../catalogue/columns.js";
 import { recordStep } from "../../catalogue/meta.js";
 import { DEFAULT_COSMOLOGY, type Cosmology } from "../../cosmology/distances.js";
@@ -100,7 +100,7 @@ const command: Command = {
     );
     if (positionals.length !== 1) throw usageError("recentre needs one input file; see 'peculiar recentre --help'", { value: positionals });
     const input = positionals[0]!;
-    if (values.output) assertNotSameFile(input, values.output);
+    assertOutputs([input], [values.output]);
     const on = values.on;
     if (!on) throw usageError("recentre needs --on ID|RA,DEC,DIST|group:ID");
     const omegaM = omegaMFlag(values["omega-m"]);

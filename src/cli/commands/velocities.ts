@@ -6,7 +6,7 @@
 import type { Command } from "../command.js";
 import { COMMON_FLAGS, parseFlags, h0Flag, omegaMFlag } from "../command.js";
 import { usageError } from "../../errors.js";
-import { assertNotSameFile, writeTable } from "../../catalogue/io.js";
+import { assertOutputs, writeTable } from "../../catalogue/io.js";
 import { APEXES, FRAME_FORMS, VELOCITY_FRAMES, type FrameForm, type VelocityFrame } from "../../cosmology/restframes.js";
 import { ESTIMATORS, type Estimator } from "../../cosmology/estimators.js";
 import { DISTANCE_SOURCES, type DistanceSource } from "../../cosmology/distance-indicators.js";
@@ -97,7 +97,7 @@ const command: Command = {
     const input = positionals[0]!;
     const output = values.output;
     if (!output) throw usageError("velocities needs -o OUT");
-    assertNotSameFile(input, output);
+    assertOutputs([input], [output]);
     const frame = choice<VelocityFrame>(values.frame, "frame", VELOCITY_FRAMES, "cmb");
     const options: VelocityOptions = {
       frame,
