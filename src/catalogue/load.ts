@@ -63,13 +63,15 @@ export interface LoadOptions extends Omit<PrepareOptions, "file"> {
 
 /**
  * "line" for text tables, "row" for binary ones: how the reasons name source_row. A table we wrote
- * and read back keeps the source_row of the first file, so the first file's format decides.
+ * and read back keeps the source_row of the first file, so the first file's format decides; when
+ * that file is not named (our CSV output read back, or a table that made rows of its own), "source row".
  */
 function rowWord(table: Table): string {
-  let src = readJsonMeta<{ format?: string; previous?: unknown }>(table, META.source);
+  let src = readJsonMeta<{ format?: string; previous?: unknown; keptSourceRow?: boolean }>(table, META.source);
   for (let k = 0; k < 100 && src && typeof src.previous === "object" && src.previous !== null; k++) {
-    src = src.previous as { format?: string; previous?: unknown };
+    src = src.previous as { format?: string; previous?: unknown; keptSourceRow?: boolean };
   }
+  if (src?.keptSourceRow) return "source row";
   return src?.format === "csv" || src?.format === "tsv" ? "line" : "row";
 }
 

@@ -310,7 +310,10 @@ export function matchTable(a: Table, b: Table, r: MatchResult, j: JoinedRows, o:
   for (const [role, col] of Object.entries(o.rolesA ?? getRoles(a))) if (col && names.a.has(col)) roles[role as keyof RoleMap] = names.a.get(col)!;
   const rolesB: RoleMap = {};
   for (const [role, col] of Object.entries(o.rolesB ?? getRoles(b))) if (col && names.b.has(col)) rolesB[role as keyof RoleMap] = names.b.get(col)!;
+  // A's metadata, but not its source: the joined rows are rows of their own (source_row counts
+  // them; row_a and row_b say where each came from, the settings name the inputs)
   let meta = new Map(a.schema.metadata);
+  meta.delete(META.source);
   meta = setJsonMeta(meta, META.roles, roles);
   meta = recordStep(meta, "match", { ...o.settings, aliasA: o.aliasA, aliasB: o.aliasB, rolesB });
   return tableFromColumns(cols, meta, n);

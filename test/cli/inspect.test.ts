@@ -119,6 +119,16 @@ describe("peculiar inspect", () => {
     expect(text).toContain(`  ${out} row 4 (a.csv:6): column dec: "+95 00 00" is outside [-90, 90]`);
   });
 
+  it.each(["arrow", "csv"])("names a match output's rows as its own (.%s): its source_row counts the joined rows, not lines of A", (ext) => {
+    const out = `m.${ext}`;
+    expect(runCli(["match", "a.csv", "a.csv", "-o", out, "--radius", "1arcsec", "--join", "left", "--alias", "p,q", "-q"], { cwd: dir }).code).toBe(0);
+    const j = JSON.parse(runCli(["inspect", out, "--json"], { cwd: dir }).stdout);
+    expect(j.origin).toBe(out);
+    expect(j.invalidRows.map((x: { line: number }) => x.line)).toEqual([2, 3, 4, 5, 6]);
+    const text = runCli(["inspect", out], { cwd: dir }).stdout;
+    expect(text).toContain(`  ${out} row 4 (source row 4): p: line 6: column dec: "+95 00 00" is outside [-90, 90]`);
+  });
+
   it("finds roles from the UCDs of a VOTable written by astropy", () => {
     // astropy 5.2.1 format fixture (test/reference/make_format_fixtures.py): ra has UCD pos.eq.ra;meta.main.
     const r = runCli(["inspect", "test/reference/formats/mixed_tabledata.vot", "--json"]);

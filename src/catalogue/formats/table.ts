@@ -44,6 +44,11 @@ export interface SourceMeta extends SourceInfo {
   invalid: number;
   /** The source of a table we wrote earlier and read back (its source_row counts in that file). */
   previous?: unknown;
+  /**
+   * The file had its own source_row (a table we wrote), which was kept: it counts rows of an
+   * earlier table, which a file without our metadata (CSV) does not name.
+   */
+  keptSourceRow?: boolean;
 }
 
 const INT_KINDS: ReadonlySet<ColumnKind> = new Set(["int8", "int16", "int32", "int64", "uint8", "uint16", "uint32", "uint64"]);
@@ -141,6 +146,7 @@ export function finishTable(parsed: ParsedColumns, info: SourceInfo): Table {
   if (info.table !== undefined) source.table = info.table;
   if (info.tableName !== undefined) source.tableName = info.tableName;
   if (info.skipped && info.skipped.length > 0) source.skipped = info.skipped;
+  if (sourceRow) source.keptSourceRow = true;
   const prev = metadata.get(META.source);
   if (prev !== undefined) {
     try {

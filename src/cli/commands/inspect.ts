@@ -92,7 +92,7 @@ function invalidList(table: Table): InvalidRow[] {
   const src = table.getChild(SOURCE_ROW) ? float64Column(table, SOURCE_ROW) : undefined;
   return Array.from(rows, (i) => {
     const line = src && !Number.isNaN(src[i]!) ? src[i]! : i + 1;
-    const prefix = new RegExp(`(^|; )(line|row) ${line}: `, "g");
+    const prefix = new RegExp(`(^|; )(line|row|source row) ${line}: `, "g");
     return { line, row: i + 1, reason: (reasons[i] || "flagged").replace(prefix, "$1") };
   });
 }
@@ -130,7 +130,7 @@ const command: Command = {
     const cols = columnInfo(cat);
     const bad = invalidList(cat.table);
     const total = cat.table.numRows;
-    const source = readJsonMeta<{ format?: string; hdu?: number; extname?: string; skipped?: string[]; previous?: unknown }>(cat.table, META.source) ?? {};
+    const source = readJsonMeta<{ format?: string; hdu?: number; extname?: string; skipped?: string[]; previous?: unknown; keptSourceRow?: boolean }>(cat.table, META.source) ?? {};
 
     if (values.json) {
       const out = {
@@ -175,7 +175,8 @@ const command: Command = {
       lines.push("invalid rows:");
       // A table we wrote earlier keeps the source_row of its first file: name both places.
       const origin = originFile(source);
-      const label = (b: InvalidRow) => (origin === undefined ? `${file}:${b.line}` : `${file} row ${b.row} (${origin}:${b.line})`);
+      // Without a named first file, a kept source_row counts rows of a table we made: both numbers.
+      const label = (b: InvalidRow) => (origin !== undefined ? `${file} row ${b.row} (${origin}:${b.line})` : source.keptSourceRow ? `${file} row ${b.row} (source row ${b.line})` : `${file}:${b.line}`);
       for (const b of bad.slice(0, SHOWN)) lines.push(`  ${label(b)}: ${b.reason}`);
       if (bad.length > SHOWN) lines.push(`  ... and ${bad.length - SHOWN} more invalid rows (--json lists all)`);
     }
