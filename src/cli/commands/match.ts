@@ -43,7 +43,8 @@ options:
                          per-axis positional errors (roles pos_err, or ra_err/dec_err). Alone, the
                          search radius is K times the largest combined error; with --radius both
                          tests must hold (R caps) and a row without an error falls back on R.
-                         A catalogue with no error column counts as error 0.
+                         A catalogue with no error column counts as error 0; a negative or
+                         infinite error flags its row and counts as no error.
   --max-dv V             reject pairs whose velocities (cz, or c*z) differ by more than V km/s; the
                          velocity difference then enters the score and breaks positional near-ties.
                          A pair with a velocity missing is kept on position alone (dv term = 1).
