@@ -281,6 +281,8 @@ export function prepareCatalogue(table: Table, options: PrepareOptions): Catalog
   const stored = storedRoles(table, options.overrides ?? {});
   const { roles, notes } = detectRoles(table, { ...stored.roles, ...(options.overrides ?? {}) }, file);
   if (stored.kept.length > 0) notes.unshift(`roles kept from the file's own record: ${stored.kept.join(", ")}`);
+  // the reader's notes on this file (not those of an earlier file in `previous`)
+  notes.unshift(...(readJsonMeta<{ notes?: string[] }>(table, META.source)?.notes ?? []));
   const n = table.numRows;
   const units: Partial<Record<Role, string>> = {};
   for (const r of ROLES) {

@@ -26,6 +26,15 @@ describe("prepareCatalogue", () => {
     expect(cat.notes.some((n) => /no unit; read as degrees/.test(n))).toBe(true);
   });
 
+  it("passes on the reader's notes: a repeated or empty header name and how it was read", () => {
+    for (const rows of [1, 300]) {
+      const body = Array.from({ length: rows }, (_, i) => `${i},10,20,11,5`).join("\n");
+      const cat = prep(`id,ra,dec,ra,\n${body}\n`);
+      expect(cat.table.schema.fields.map((f) => f.name).slice(0, 5)).toEqual(["id", "ra", "dec", "ra_2", "col5"]);
+      expect(cat.notes.slice(0, 2)).toEqual(["header: the name ra is repeated in column 4; read as ra_2", "header: column 5 has no name; read as col5"]);
+    }
+  });
+
   it("reads sexagesimal text: RA in hours and Dec in degrees with the sign from the string", () => {
     // Domain reference sheet §2, computed with astropy 8.0.1: "12:30:49.42338" -> 187.70593075 deg.
     const cat = prep('id,RA_hms,Dec_dms\ng1,12:30:49.42338,+12:23:28.0439\ng2,00 42 44.3,-00 30 00\n');

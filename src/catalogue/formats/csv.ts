@@ -121,18 +121,23 @@ function isUnitsRow(recs: CsvRecords, width: number): boolean {
   return units > 0 && evidence;
 }
 
-function headerNames(cells: string[]): string[] {
+/** Column names from the header cells: an empty one is colN, a repeated one gets _2, _3, ...; each such change is noted. */
+function headerNames(cells: string[]): { names: string[]; notes: string[] } {
   const seen = new Set<string>();
-  return cells.map((c, j) => {
+  const notes: string[] = [];
+  const names = cells.map((c, j) => {
     let name = c.trim() === "" ? `col${j + 1}` : c.trim();
+    if (c.trim() === "") notes.push(`header: column ${j + 1} has no name; read as ${name}`);
     if (seen.has(name)) {
       let k = 2;
       while (seen.has(`${name}_${k}`)) k++;
+      notes.push(`header: the name ${name} is repeated in column ${j + 1}; read as ${name}_${k}`);
       name = `${name}_${k}`;
     }
     seen.add(name);
     return name;
   });
+  return { names, notes };
 }
 
 const INT32_MIN = -2147483648;
@@ -465,10 +470,10 @@ function headText(b: Uint8Array, from: number): string {
 }
 
 /** The header row's names, the units row (or none) and the first data record, from the records. */
-function tableHead(recs: CsvRecords, ecsv: EcsvHeader | undefined, file: string): { names: string[]; width: number; units: string[]; first: number } {
+function tableHead(recs: CsvRecords, ecsv: EcsvHeader | undefined, file: string): { names: string[]; width: number; units: string[]; first: number; notes: string[] } {
   if (recs.records === 0) throw new PeculiarError("format", "no header row (the file has only comments or blank lines)", { file });
   const headerCells = recs.recordCells(0);
-  const names = headerNames(headerCells);
+  const { names, notes } = headerNames(headerCells);
   const width = names.length;
   if (ecsv) {
     const listed = ecsv.columns.map((c) => c.name);
@@ -477,7 +482,7 @@ function tableHead(recs: CsvRecords, ecsv: EcsvHeader | undefined, file: string)
     }
   }
   const hasUnits = !ecsv && (recs.marker || isUnitsRow(recs, width));
-  return { names, width, units: hasUnits ? recs.recordCells(1) : [], first: hasUnits ? 2 : 1 };
+  return { names, width, units: hasUnits ? recs.recordCells(1) : [], first: hasUnits ? 2 : 1, notes };
 }
 
 /** Lines of the head read with the general rules: header, units row, and the rows isUnitsRow looks at. */
@@ -501,7 +506,7 @@ export function plainNumericTable(bytes: Uint8Array, from: number, delim: number
   if (head.indexOf(34, from) >= 0) return null;
   for (let c = head.indexOf(13, from); c >= 0; c = head.indexOf(13, c + 1)) if (head[c + 1] !== 10) return null;
   const recs = splitRecords(head, from, delim, UNITS_MARKER);
-  const { names, width, units, first } = tableHead(recs, undefined, file);
+  const { names, width, units, first, notes } = tableHead(recs, undefined, file);
   if (recs.records <= first) return null;
   // the first data record's line, and where it starts (records are lines here: no quotes)
   const line = recs.recLine[first]!;
@@ -524,6 +529,7 @@ export function plainNumericTable(bytes: Uint8Array, from: number, delim: number
     columns.push(c);
   }
   const parsed: ParsedColumns = { columns, rows, reasons: [], sourceRows: body.lines, metadata: new Map() };
+  if (notes.length > 0) parsed.notes = notes;
   // The lines as written, for writers that copy cells (line-text.ts): not when a number has a Fortran
   // exponent (1.5d3), which other programs do not read; the test is on every byte of the body (Buffer's
   // native search: a typed array's indexOf took 90 ms for 44 MB).
@@ -556,7 +562,7 @@ export function parseCsvBytes(bytes: Uint8Array, options: CsvOptions): ParsedCol
     if (plain) return plain;
   }
   const recs = splitRecords(bytes, from, (ecsv ? ecsv.delimiter : delim).charCodeAt(0), UNITS_MARKER);
-  const { names, width, units, first } = tableHead(recs, ecsv, options.file);
+  const { names, width, units, first, notes } = tableHead(recs, ecsv, options.file);
   const rows = Math.max(0, recs.records - first);
   const reasons = new Array<string>(rows).fill("");
   const sourceRows = recs.recLine.slice(first, first + rows);
@@ -594,5 +600,5 @@ export function parseCsvBytes(bytes: Uint8Array, options: CsvOptions): ParsedCol
   }
   const metadata = new Map<string, string>();
   if (ecsv?.meta) metadata.set(ECSV_META, ecsv.meta);
-  return { columns, rows, reasons, sourceRows, metadata };
+  return notes.length > 0 ? { columns, rows, reasons, sourceRows, metadata, notes } : { columns, rows, reasons, sourceRows, metadata };
 }

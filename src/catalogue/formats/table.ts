@@ -24,6 +24,8 @@ export interface ParsedColumns {
   metadata: Map<string, string>;
   /** The text of each row, when a writer may copy it (line-text.ts; the CSV reader's plain-number path). */
   lineText?: LineText;
+  /** What the reader changed and the user should hear of (a renamed header cell); goes to peculiar.source `notes`. */
+  notes?: string[];
 }
 
 export interface SourceInfo {
@@ -49,6 +51,8 @@ export interface SourceMeta extends SourceInfo {
    * earlier table, which a file without our metadata (CSV) does not name.
    */
   keptSourceRow?: boolean;
+  /** The reader's notes (ParsedColumns.notes); the loader prints them with its own. */
+  notes?: string[];
 }
 
 const INT_KINDS: ReadonlySet<ColumnKind> = new Set(["int8", "int16", "int32", "int64", "uint8", "uint16", "uint32", "uint64"]);
@@ -147,6 +151,7 @@ export function finishTable(parsed: ParsedColumns, info: SourceInfo): Table {
   if (info.tableName !== undefined) source.tableName = info.tableName;
   if (info.skipped && info.skipped.length > 0) source.skipped = info.skipped;
   if (sourceRow) source.keptSourceRow = true;
+  if (parsed.notes && parsed.notes.length > 0) source.notes = parsed.notes;
   const prev = metadata.get(META.source);
   if (prev !== undefined) {
     try {
