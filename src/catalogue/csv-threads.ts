@@ -33,7 +33,8 @@ async function* threaded(table: Table, options: CsvWriteOptions, delimiter: stri
   // Lines copied from their files (line-text.ts) leave little to format: this thread writes them all,
   // each chunk made while the last one is written. A helper taking half such rows (the file bytes
   // shared with it, or copied to it) gained nothing here: with both halves running, each took about
-  // as long as the whole on one thread, and the hand-over came on top.
+  // as long as the whole on one thread, and the hand-over came on top (this machine's two cores share
+  // their memory bandwidth, and copying lines is mostly memory traffic: bench/RESULTS.md, run 10).
   const copied = usedRowText(table, delimiter.charCodeAt(0), options.rowText ?? []).some((b) => b !== null);
   const helper = copied || n < (how.minRows ?? CSV_THREADS_MIN_ROWS) || n < 2 ? undefined : helperThread(0, how.workerUrl);
   if (!helper) {
