@@ -22,7 +22,7 @@ import {
   type AngleKind,
   type AngleUnit,
 } from "../sky/index.js";
-import { columnMeta, float64Column, kindOf, nullMask, stringColumn, valuesView } from "./columns.js";
+import { columnMeta, float64Column, hasColumn, kindOf, nullMask, stringColumn, valuesView } from "./columns.js";
 import { readTable, type FormatName } from "./io.js";
 import { META, ROLES, SOURCE_ROW, getRoles, readJsonMeta, setJsonMeta, type Role, type RoleMap } from "./meta.js";
 import { detectRoles } from "./roles.js";
@@ -350,6 +350,7 @@ export function prepareCatalogue(table: Table, options: PrepareOptions): Catalog
     }
   }
   if (positions === "none" && n > 0) notes.push("no sky positions (no ra/dec, glon/glat or RAh..DEs columns)");
+  notes.push(...redshiftScaleNotes(table, roles));
 
   const missing = (options.require ?? []).filter((r) => {
     if (r === "ra" || r === "dec") return positions === "none";
@@ -370,6 +371,33 @@ export function prepareCatalogue(table: Table, options: PrepareOptions): Catalog
   raDeg ??= new Float64Array(n).fill(NaN);
   decDeg ??= new Float64Array(n).fill(NaN);
   return { table: out, roles, raDeg, decDeg, units, positions, badPositions, notes, file };
+}
+
+/**
+ * A note when a redshift column reads like the other kind: z above 20 (no galaxy in a velocity
+ * survey; such values are cz in km/s), or cz never above 2 km/s in size (such values are z).
+ * Only a note: the column keeps its role unless --col says otherwise.
+ */
+function redshiftScaleNotes(table: Table, roles: RoleMap): string[] {
+  const out: string[] = [];
+  const extent = (col: string): number => {
+    let m = -Infinity;
+    const v: ArrayLike<number> = valuesView(table, col, "float64") ?? valuesView(table, col, "int32") ?? float64Column(table, col);
+    for (let i = 0; i < v.length; i++) {
+      const x = Math.abs(v[i]!);
+      if (x === x && x !== Infinity && x > m) m = x;
+    }
+    return m;
+  };
+  if (roles.z && hasColumn(table, roles.z)) {
+    const m = extent(roles.z);
+    if (m > 20) out.push(`z <- ${roles.z} has values up to ${Number(m.toPrecision(6))}: that reads like cz in km/s (name it with --col cz=${roles.z})`);
+  }
+  if (roles.cz && hasColumn(table, roles.cz)) {
+    const m = extent(roles.cz);
+    if (m > 0 && m < 2) out.push(`cz <- ${roles.cz} is never above ${Number(m.toPrecision(6))} in size: that reads like z (name it with --col z=${roles.cz})`);
+  }
+  return out;
 }
 
 /** readTable + prepareCatalogue. */

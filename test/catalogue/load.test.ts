@@ -35,6 +35,17 @@ describe("prepareCatalogue", () => {
     }
   });
 
+  it("notes a z column that reads like cz and a cz column that reads like z, and keeps their roles", () => {
+    // common practice: galaxy redshifts in a velocity survey are far below z = 20, and cz far above 2 km/s
+    const z = prep("id,ra,dec,z\ng1,10,20,3000.5\ng2,11,20,4200\n");
+    expect(z.roles.z).toBe("z");
+    expect(z.notes).toContain("z <- z has values up to 4200: that reads like cz in km/s (name it with --col cz=z)");
+    const cz = prep("id,ra,dec,cz\ng1,10,20,0.0123\ng2,11,20,-0.5\n");
+    expect(cz.roles.cz).toBe("cz");
+    expect(cz.notes).toContain("cz <- cz is never above 0.5 in size: that reads like z (name it with --col z=cz)");
+    expect(prep("id,ra,dec,z\ng1,10,20,0.05\n").notes.some((n) => /reads like/.test(n))).toBe(false);
+  });
+
   it("reads sexagesimal text: RA in hours and Dec in degrees with the sign from the string", () => {
     // Domain reference sheet §2, computed with astropy 8.0.1: "12:30:49.42338" -> 187.70593075 deg.
     const cat = prep('id,RA_hms,Dec_dms\ng1,12:30:49.42338,+12:23:28.0439\ng2,00 42 44.3,-00 30 00\n');
