@@ -98,4 +98,3 @@ export function assertOutputs(inputs: readonly string[], outputs: readonly (stri
     }
   }
 }
-

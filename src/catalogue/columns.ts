@@ -463,7 +463,6 @@ export function columnDataOf(table: Table, name: string): ColumnData {
   return out;
 }
 
-/** A new table with `columns` appended (or replacing same-named columns), schema metadata kept or replaced. */
 /**
  * A column carried over unchanged: its Arrow data itself when it is one chunk of a kind we read
  * (no copy, and the data stays recognisable, line-text.ts), else a copy (columnDataOf).
@@ -480,6 +479,7 @@ function keptColumn(table: Table, name: string): ColumnData | DataColumn {
   return columnDataOf(table, name);
 }
 
+/** A new table with `columns` appended (or replacing same-named columns), schema metadata kept or replaced. */
 export function withColumns(table: Table, columns: ColumnData[], schemaMetadata?: Map<string, string>): Table {
   const replaced = new Set(columns.map((c) => c.name));
   const kept = table.schema.fields.filter((f) => !replaced.has(f.name)).map((f) => keptColumn(table, f.name));
