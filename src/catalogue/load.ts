@@ -288,7 +288,8 @@ export function prepareCatalogue(table: Table, options: PrepareOptions): Catalog
   for (const r of ROLES) {
     const c = roles[r];
     if (c === undefined) continue;
-    const u = columnMeta(table, c).unit;
+    // --unit ROLE=UNIT wins over the column's metadata (angles are checked below, other roles by their step)
+    const u = options.units?.[r] ?? columnMeta(table, c).unit;
     if (u) units[r] = u;
   }
   const word = rowWord(table);

@@ -13,6 +13,7 @@ import type { Table } from "apache-arrow";
 import { PeculiarError } from "../errors.js";
 import { columnMeta } from "./columns.js";
 import { INVALID_REASON, ROLES, SOURCE_ROW, VALID, type Role, type RoleMap } from "./meta.js";
+import { isDistanceUnit, isVelocityUnit } from "./units.js";
 
 export interface RoleDetection {
   roles: RoleMap;
@@ -28,9 +29,9 @@ export function unitClass(unit: string | undefined): UnitClass {
   if (u === "") return "none";
   if (["-", "---", "1", "dimensionless", "redshift", "z"].includes(u)) return "dimensionless";
   if (/^(deg|degree|degrees|°|rad|radian|radians|h|hr|hour|hours|hourangle|h:m:s|d:m:s|hms|dms|arcsec|arcmin|mas|"h:m:s"|"d:m:s")$/.test(u)) return "angle";
-  if (/^(km\/s|kms-1|km\.s-1|km\/sec|kms\^-1|km\*s-1|kms|km\/s\/1)$/.test(u) || u === "km.s**-1") return "velocity";
+  if (isVelocityUnit(u)) return "velocity";
   if (/^(mag|mags|magnitude)$/.test(u)) return "mag";
-  if (/^(mpc|kpc|pc|gpc|mpc\/h|h-1mpc|h-1\.mpc|mpch-1|mpc\/h70|h70-1mpc)$/.test(u)) return "length";
+  if (isDistanceUnit(u)) return "length";
   if (/^(dex|log|\[-\])$/.test(u)) return "dex";
   return "other";
 }

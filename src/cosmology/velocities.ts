@@ -19,17 +19,18 @@
  * An input column with one of these names is kept, renamed "<name>_input" (l, b, sgl, sgb are
  * recomputed in place: they are the same quantities).
  *
- * Redshift input: the `cz` role (km/s) or else the `z` role, heliocentric unless `redshiftFrame`
+ * Redshift input: the `cz` role (km/s, or m/s by its unit: units.ts) or else the `z` role, heliocentric unless `redshiftFrame`
  * says otherwise; errors from cz_err / z_err when present. For eta, D_C(z_obs) uses the CMB-frame
  * redshift (eta is defined on it), whatever frame is chosen for the output.
  */
 import type { Table } from "apache-arrow";
-import { columnDataOf, float64Column, hasColumn, tableFromColumns, withColumns, type ColumnData } from "../catalogue/columns.js";
+import { columnDataOf, columnMeta, float64Column, hasColumn, tableFromColumns, withColumns, type ColumnData } from "../catalogue/columns.js";
 import { META, recordStep, setJsonMeta, getRoles, type RoleMap } from "../catalogue/meta.js";
 import { flagRows, validMask } from "../catalogue/validity.js";
 import { PeculiarError } from "../errors.js";
 import { convertPositions, ICRS_TO_SUPERGALACTIC, rotate, DEG } from "../sky/index.js";
 import { C_KMS } from "./constants.js";
+import { distanceScaleMpc, velocityScaleKmS } from "../catalogue/units.js";
 import { checkCosmology, type Cosmology, type DistanceKind } from "./distances.js";
 import { distancesFromColumn, distancesFromEta, distancesFromModulus, type DistanceSource, type MeasuredDistances } from "./distance-indicators.js";
 import { peculiarVelocities, type Estimator } from "./estimators.js";
@@ -42,6 +43,8 @@ export interface PositionedTable {
   raDeg: Float64Array;
   decDeg: Float64Array;
   file?: string;
+  /** The unit of each role's column where one was given (--unit) or found (metadata); else the column's own metadata is read. */
+  units?: Partial<Record<string, string>>;
 }
 
 export interface VelocityOptions {
@@ -172,6 +175,10 @@ export function computeVelocities(cat: PositionedTable, o: VelocityOptions): { t
   const { table, roles } = cat;
   const n = table.numRows;
   const file = cat.file;
+  const notes: string[] = [];
+  // a role's unit: the one the loader settled on (--unit or metadata), else the column's metadata
+  const unitOf = (role: keyof RoleMap): string | undefined => cat.units?.[role] ?? (roles[role] ? columnMeta(table, roles[role]!).unit : undefined);
+  const scaled = (x: Float64Array | undefined, f: number): Float64Array | undefined => (x && f !== 1 ? x.map((v) => v * f) : x);
 
   // Redshifts.
   let zIn: Float64Array;
@@ -179,8 +186,11 @@ export function computeVelocities(cat: PositionedTable, o: VelocityOptions): { t
   let redshiftColumn: string;
   if (roles.cz && hasColumn(table, roles.cz)) {
     redshiftColumn = roles.cz;
-    zIn = float64Column(table, roles.cz).map((v) => v / C_KMS);
-    zErr = optionalColumn(table, roles.cz_err)?.map((v) => v / C_KMS);
+    const f = velocityScaleKmS(unitOf("cz"), { file, column: roles.cz, role: "cz" });
+    const fe = roles.cz_err ? velocityScaleKmS(unitOf("cz_err") ?? unitOf("cz"), { file, column: roles.cz_err, role: "cz_err" }) : 1;
+    if (f !== 1) notes.push(`cz <- ${roles.cz} in ${unitOf("cz")}: read as ${f} km/s per unit`);
+    zIn = float64Column(table, roles.cz).map((v) => (v * f) / C_KMS);
+    zErr = optionalColumn(table, roles.cz_err)?.map((v) => (v * fe) / C_KMS);
   } else if (roles.z && hasColumn(table, roles.z)) {
     redshiftColumn = roles.z;
     zIn = float64Column(table, roles.z);
@@ -196,8 +206,16 @@ export function computeVelocities(cat: PositionedTable, o: VelocityOptions): { t
   const source = pickDistanceSource(roles, o.distance, file);
   const distanceColumn = roles[source]!;
   const errRole = `${source}_err` as const;
-  const value = float64Column(table, distanceColumn);
-  const err = optionalColumn(table, roles[errRole]);
+  let value = float64Column(table, distanceColumn);
+  let err = optionalColumn(table, roles[errRole]);
+  if (source === "dist") {
+    // a distance in kpc, pc, Gpc or Mpc/h is brought to Mpc (its error by its own unit, else the distance's)
+    const f = distanceScaleMpc(unitOf("dist"), o.cosmology.h0, { file, column: distanceColumn, role: "dist" });
+    const fe = roles.dist_err ? distanceScaleMpc(unitOf("dist_err") ?? unitOf("dist"), o.cosmology.h0, { file, column: roles.dist_err, role: "dist_err" }) : 1;
+    if (f !== 1) notes.push(`dist <- ${distanceColumn} in ${unitOf("dist")}: read as ${Number(f.toPrecision(6))} Mpc per unit${/h/i.test(unitOf("dist") ?? "") ? ` (h = H0/100 = ${o.cosmology.h0 / 100})` : ""}`);
+    value = scaled(value, f)!;
+    err = scaled(err, fe);
+  }
   let dist: MeasuredDistances;
   if (source === "mu") dist = distancesFromModulus(value, err);
   else if (source === "dist") dist = distancesFromColumn(value, err, o.distKind ?? "luminosity");
@@ -239,9 +257,11 @@ export function computeVelocities(cat: PositionedTable, o: VelocityOptions): { t
     const noPos = !(Number.isFinite(cat.raDeg[i]!) && Number.isFinite(cat.decDeg[i]!));
     if (noPos) flag(i, "no usable position");
     if (!Number.isFinite(zIn[i]!)) flag(i, `no usable redshift (${redshiftColumn})`);
-    if (!Number.isFinite(dist.distMpc[i]!)) flag(i, `no usable distance (${distanceColumn})`);
+    else if (!(zIn[i]! > -1)) flag(i, `redshift at or below z = -1 (${redshiftColumn}): 1 + z must be positive`);
+    const hasDistance = Number.isFinite(dist.distMpc[i]!);
+    if (!hasDistance) flag(i, `no usable distance (${distanceColumn})`);
     if (err !== undefined && err[i]! < 0) flag(i, `negative distance error (${roles[errRole]})`);
-    else if (!Number.isFinite(pv.zCos[i]!)) flag(i, "distance beyond the range of the redshift solve (z_cos > 20)");
+    else if (hasDistance && !Number.isFinite(pv.zCos[i]!)) flag(i, "distance beyond the range of the redshift solve (z_cos > 20)");
     if (Number.isFinite(pv.vPecKmS[i]!)) {
       withVelocity++;
       if (!Number.isFinite(pv.vPecErrKmS[i]!)) withoutError++;
@@ -291,7 +311,6 @@ export function computeVelocities(cat: PositionedTable, o: VelocityOptions): { t
     distanceKind: dist.kind,
   };
   out = withColumns(out, [], recordStep(new Map(out.schema.metadata), "velocities", settings));
-  const notes: string[] = [];
   if (fr !== "cmb") notes.push(`v_pec is relative to the ${fr} frame; peculiar velocities are usually quoted in the CMB frame (--frame cmb)`);
   if (source === "eta" && fr !== "cmb") notes.push("eta was read on the CMB-frame redshift (Planck 2018 apex), as it is defined");
   if (o.estimator === "linear") notes.push("the linear estimator cz - H0 D_C is biased by ~+100 km/s at z ~ 0.04 (Davis & Scrimgeour 2014); exact is the default");

@@ -7,6 +7,7 @@ import type { Table } from "apache-arrow";
 import { columnMeta, float64Column } from "../catalogue/columns.js";
 import type { RoleMap } from "../catalogue/meta.js";
 import { PeculiarError } from "../errors.js";
+import { velocityScaleKmS } from "../catalogue/units.js";
 
 /** Speed of light in km/s (exact; SI definition of the metre). */
 const C_KMS = 299792.458;
@@ -48,13 +49,12 @@ function errorScale(table: Table, column: string, notes: string[], file: string)
   return f;
 }
 
-/** Velocity and positional error of a catalogue, from its roles. */
-export function sideExtras(table: Table, roles: RoleMap, file: string): SideExtras {
+/** Velocity and positional error of a catalogue, from its roles; `units` (the loader's, --unit included) win over column metadata. */
+export function sideExtras(table: Table, roles: RoleMap, file: string, units: Partial<Record<string, string>> = {}): SideExtras {
   const notes: string[] = [];
   const out: SideExtras = { notes };
   if (roles.cz) {
-    const unit = columnMeta(table, roles.cz).unit?.trim().toLowerCase();
-    const f = unit === "m/s" || unit === "m.s-1" ? 1e-3 : 1;
+    const f = velocityScaleKmS(units.cz ?? columnMeta(table, roles.cz).unit, { file, column: roles.cz, role: "cz" });
     const v = float64Column(table, roles.cz);
     if (f !== 1) for (let i = 0; i < v.length; i++) v[i] = v[i]! * f;
     out.velocityKmS = v;

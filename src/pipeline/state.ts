@@ -17,6 +17,8 @@ export interface LoadedCatalogue {
   roles: RoleMap;
   raDeg: Float64Array;
   decDeg: Float64Array;
+  /** The unit each role was read in (the loader's Catalogue.units), when known. */
+  units?: Partial<Record<string, string>>;
 }
 
 /** One distance catalogue matched onto the redshift survey. */

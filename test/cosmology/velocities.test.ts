@@ -47,6 +47,47 @@ describe("the velocities step", () => {
     expect(Math.abs(float64Column(table, "dist_c_mpc")[0]! - 97.75699)).toBeLessThan(1e-5);
   });
 
+  it("reads a distance in kpc, pc or Mpc/h and a cz in m/s by their units: the same 118.61 km/s", () => {
+    // Domain reference §5.1 worked value (mu = 35 is D_L = 100 Mpc); 1 kpc = 1e-3 Mpc and 1 m/s = 1e-3
+    // km/s by the SI prefixes; Mpc/h with h = H0/100 (common practice).
+    const at = (cz: number, czUnit: string, d: number, dUnit: string, units?: Record<string, string>) => {
+      const base = catalogue([{ ra: 150, dec: 20, cz: 0, mu: NaN }]);
+      const table = tableFromColumns([
+        { name: "id", kind: "utf8", values: ["g1"] },
+        { name: "ra", kind: "float64", values: Float64Array.of(150), meta: { unit: "deg" } },
+        { name: "dec", kind: "float64", values: Float64Array.of(20), meta: { unit: "deg" } },
+        { name: "cz", kind: "float64", values: Float64Array.of(cz), meta: czUnit ? { unit: czUnit } : {} },
+        { name: "d", kind: "float64", values: Float64Array.of(d), meta: dUnit ? { unit: dUnit } : {} },
+        { name: "d_err", kind: "float64", values: Float64Array.of(d / 10), meta: dUnit ? { unit: dUnit } : {} },
+      ]);
+      const cat: PositionedTable = { ...base, table, roles: { id: "id", ra: "ra", dec: "dec", cz: "cz", dist: "d", dist_err: "d_err" }, ...(units ? { units } : {}) };
+      const { table: out, report } = computeVelocities(cat, { frame: "cmb", cosmology: LCDM, estimator: "exact", redshiftFrame: "cmb" });
+      return { v: float64Column(out, "v_pec")[0]!, err: float64Column(out, "dist_err_mpc")[0]!, notes: report.notes };
+    };
+    for (const [cz, cu, d, du] of [[7000, "km/s", 100, "Mpc"], [7000, "", 100, ""], [7000, "km s-1", 1e5, "kpc"], [7e6, "m/s", 1e8, "pc"], [7000, "km/s", 70, "Mpc/h"], [7000, "km/s", 0.1, "Gpc"]] as const) {
+      const r = at(cz, cu, d, du);
+      expect(Math.abs(r.v - 118.61), `${cz} ${cu}, ${d} ${du}`).toBeLessThan(0.006);
+      expect(r.err, `${d} ${du}`).toBeCloseTo(10, 9);
+    }
+    expect(at(7000, "km/s", 1e5, "kpc").notes).toContain("dist <- d in kpc: read as 0.001 Mpc per unit");
+    // --unit (the loader's units) wins over the column's metadata
+    expect(Math.abs(at(7000, "km/s", 1e5, "Mpc", { dist: "kpc" }).v - 118.61)).toBeLessThan(0.006);
+    expect(() => at(7000, "km/s", 100, "furlong")).toThrow(/invented\.csv column d: unit "furlong" is not a distance unit.*--unit dist=UNIT/);
+    expect(() => at(7000, "knots", 100, "Mpc")).toThrow(/unit "knots" is not a velocity unit/);
+  });
+
+  it("flags a row without a distance for that alone, and a redshift at or below z = -1", () => {
+    // 1 + z > 0 for any redshift (common practice); cz = -449 689 km/s is z = -1.5
+    const cat = catalogue([
+      { ra: 150, dec: 20, cz: 7000, mu: NaN, muErr: 0.2 },
+      { ra: 150, dec: 20, cz: -1.5 * C_KMS, mu: 35, muErr: 0.2 },
+      { ra: 150, dec: 20, cz: 7000, mu: 35, muErr: 0.2 },
+    ]);
+    const { table, report } = computeVelocities(cat, { frame: "cmb", cosmology: LCDM, estimator: "exact", redshiftFrame: "cmb" });
+    expect(stringColumn(table, "invalid_reason")).toEqual(["no usable distance (mu)", "redshift at or below z = -1 (cz): 1 + z must be positive", ""]);
+    expect(report.flagged).toEqual({ "no usable distance (mu)": 1, "redshift at or below z = -1 (cz): 1 + z must be positive": 1 });
+  });
+
   it("keeps every input column and adds the contract columns", () => {
     const cat = catalogue([{ ra: 10, dec: -5, cz: 3000, mu: 33.5, muErr: 0.2 }]);
     const { table } = computeVelocities(cat, { frame: "cmb", cosmology: LCDM, estimator: "exact" });

@@ -71,7 +71,7 @@ const command: Command = {
     const partitions = numberFlag(values.partitions, "partitions", 1, (x) => Number.isInteger(x) && x >= 1 && x <= 4096, "an integer 1..4096");
     const flags = parseCatalogueFlags(values);
     const cat = await loadForCommand(path, flags, io, { require: ["ra", "dec"] });
-    const extras = sideExtras(cat.table, cat.roles, path);
+    const extras = sideExtras(cat.table, cat.roles, path, cat.units);
     if (maxDvKmS !== undefined && !extras.velocityKmS) throw usageError(`--max-dv needs a velocity (role cz or z) in ${path} (name it with --col cz=NAME or --col z=NAME)`);
     const opts: { radiusArcsec: number; maxDvKmS?: number; partitions: number } = { radiusArcsec, partitions };
     if (maxDvKmS !== undefined) opts.maxDvKmS = maxDvKmS;

@@ -168,8 +168,8 @@ const command: Command = {
     const catB = await loadForCommand(pathB, flags, noteIo, { index: 2, require: ["ra", "dec"], table: aheadB });
     let tableA = catA.table;
     let tableB = catB.table;
-    const xa = sideExtras(catA.table, catA.roles, pathA);
-    const xb = sideExtras(catB.table, catB.roles, pathB);
+    const xa = sideExtras(catA.table, catA.roles, pathA, catA.units);
+    const xb = sideExtras(catB.table, catB.roles, pathB, catB.units);
     for (const n of xa.notes) io.note(`${pathA}: ${n}`);
     for (const n of xb.notes) io.note(`${pathB}: ${n}`);
     if (sigmaK !== undefined) {

@@ -26,7 +26,7 @@ async function load(spec: InputSpec, require: LoadOptions["require"]): Promise<L
   const o: LoadOptions = { overrides: spec.columns, require };
   if (spec.format) o.format = spec.format as FormatName;
   const c = await loadCatalogue(spec.file, o);
-  return { alias: spec.alias, file: spec.file, table: c.table, roles: c.roles, raDeg: c.raDeg, decDeg: c.decDeg };
+  return { alias: spec.alias, file: spec.file, table: c.table, roles: c.roles, raDeg: c.raDeg, decDeg: c.decDeg, units: c.units };
 }
 
 export async function matchStep(ctx: RunContext<PipelineState>): Promise<StepOutcome> {
@@ -43,8 +43,8 @@ export async function matchStep(ctx: RunContext<PipelineState>): Promise<StepOut
     const b = await load(spec, ["ra", "dec"]);
     const o: Parameters<typeof crossMatch>[2] = { radiusArcsec, select: settings.select };
     if (settings.maxDvKmS !== undefined) o.maxDvKmS = settings.maxDvKmS;
-    const ea = sideExtras(survey.table, survey.roles, survey.file);
-    const eb = sideExtras(b.table, b.roles, b.file);
+    const ea = sideExtras(survey.table, survey.roles, survey.file, survey.units);
+    const eb = sideExtras(b.table, b.roles, b.file, b.units);
     const sideA: MatchSide = { raDeg: survey.raDeg, decDeg: survey.decDeg };
     const sideB: MatchSide = { raDeg: b.raDeg, decDeg: b.decDeg };
     if (ea.velocityKmS) sideA.velocityKmS = ea.velocityKmS;
