@@ -125,10 +125,13 @@ export function combineDistances(table: Table, o: CombineOptions): { table: Tabl
       if (Number.isFinite(netOff)) appliedMag = netOff;
       else notes.push(`${c} is not linked to the reference ${o.muColumns[ref]} through shared galaxies: its offset is unknown and not applied`);
     } else if (o.apply) {
-      if (r.nShared > 0) appliedMag = r.offsetMag;
+      // the clipped offset (the plain weighted mean when nothing is rejected): one blunder in the
+      // shared galaxies must not move a whole catalogue
+      if (r.nShared > 0 && Number.isFinite(r.clippedOffsetMag)) appliedMag = r.clippedOffsetMag;
+      else if (r.nShared > 0) notes.push(`${c}: no shared galaxy lies within ${r.kappa} sigma of the median difference (${r.medianMag.toFixed(3)} mag): its offset is not applied; check the cross-identifications and the errors`);
       else notes.push(`${c} shares no galaxy with the reference ${o.muColumns[ref]}: its offset is unknown and not applied${Number.isFinite(netOff) ? " (it is linked through another catalogue: --network ties it)" : ""}`);
     }
-    if (r.nShared > 1 && Math.abs(r.offsetMag - r.clippedOffsetMag) > 2 * r.offsetErrMag) {
+    if (r.nShared > 1 && Number.isFinite(r.clippedOffsetMag) && Math.abs(r.offsetMag - r.clippedOffsetMag) > 2 * r.offsetErrMag) {
       notes.push(`${c}: the clipped offset (${r.clippedOffsetMag.toFixed(3)} mag, ${r.nRejected} rejected) differs from the plain one (${r.offsetMag.toFixed(3)}) by more than 2 sigma; check for wrong cross-identifications`);
     }
     const { shared: _shared, rejected: _rejected, ...stats } = r;

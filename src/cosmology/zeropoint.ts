@@ -5,9 +5,10 @@
  * errors finite and positive): d_i = mu_B,i - mu_A,i with sigma_i^2 = sigma_A,i^2 + sigma_B,i^2,
  *   offset = sum(w d)/sum(w), w = 1/sigma^2, its error 1/sqrt(sum w) (formal), chi2/dof of the d_i
  *   about the offset, the weighted scatter, and the median of d (weighted least squares; common
- *   practice). Robust check: iterative kappa-sigma clipping of the normalised residuals
- *   (d_i - offset)/sigma_i, refitting until no point is rejected (kappa = 3 by default).
- * Applying the offset puts B on A's scale: mu_B' = mu_B - offset. The offset's own error is
+ *   practice). Robust estimate: iterative kappa-sigma clipping of the normalised residuals
+ *   (d_i - centre)/sigma_i from the median of d, the kept ones refitted until the set is stable
+ *   (kappa = 3 by default); NaN when no galaxy lies within kappa sigma of the median.
+ * Applying the offset (combine.ts applies the clipped one) puts B on A's scale: mu_B' = mu_B - offset. The offset's own error is
  * common to every galaxy of B (a correlated systematic): it is reported, not added per galaxy.
  *
  * Combination per galaxy: inverse-variance weighted mean of the available moduli,
@@ -101,9 +102,11 @@ export function zeroPointOffset(
     chi2 += w[k]! * (d[k]! - off) ** 2;
     sw += w[k]!;
   }
-  // Clipping: reject |d - offset|/sigma > kappa, refit, until stable.
+  // Clipping: reject |d - centre|/sigma > kappa, refit the kept ones, until stable. The first centre
+  // is the median, not the mean: one gross blunder (a typo of 30 mag) drags the mean so far that
+  // every galaxy would sit outside kappa sigma of it.
   const keep = new Uint8Array(m).fill(1);
-  let [cOff, cErr] = [off, offErr];
+  let [cOff, cErr] = [median(d), offErr];
   for (let it = 0; it < maxIterations && m > 0; it++) {
     let changed = false;
     for (let k = 0; k < m; k++) {
@@ -116,9 +119,13 @@ export function zeroPointOffset(
         changed = true;
       }
     }
-    if (!changed) break;
+    if (!changed && it > 0) break;
     const r = weightedMean(d, w, keep);
-    if (r[2] === 0) break;
+    if (r[2] === 0) {
+      // nothing within kappa sigma of the median: no clipped offset
+      [cOff, cErr] = [NaN, NaN];
+      break;
+    }
     [cOff, cErr] = r;
   }
   const rejected = new Uint8Array(m);

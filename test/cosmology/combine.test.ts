@@ -48,7 +48,10 @@ describe("the combine step", () => {
     expect(ob.errColumn).toBe("e_b_mu");
     expect(ob.nShared).toBeGreaterThan(800);
     expect(Math.abs(ob.offsetMag - -0.12)).toBeLessThan(3 * ob.offsetErrMag);
-    expect(ob.appliedMag).toBe(ob.offsetMag);
+    // the applied offset is the clipped one (a Gaussian sample: a few 3-sigma rejections at most)
+    expect(ob.appliedMag).toBe(ob.clippedOffsetMag);
+    expect(ob.nRejected).toBeLessThan(10);
+    expect(Math.abs(ob.appliedMag - -0.12)).toBeLessThan(3 * ob.clippedOffsetErrMag);
     expect(report.offsets[0]!.offsetMag).toBe(0);
     // After the offset, the combined moduli of shared galaxies follow a's zero point:
     // their mean difference from a is ~0 (much less than the offset).

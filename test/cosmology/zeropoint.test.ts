@@ -74,6 +74,26 @@ describe("zero-point offset between two catalogues", () => {
     expect(Math.abs(r.clippedOffsetMag - 0.15)).toBeLessThan(3 * r.clippedOffsetErrMag);
   });
 
+  it("one gross blunder (a typo of 30 mag) neither moves the clipped offset nor rejects every galaxy", () => {
+    // 20 invented shared galaxies with B = A + 0.14 mag (sigma 0.1 each), one B modulus typed 3.35
+    // for 33.5: the plain mean moves by about -30/20 = -1.5 mag; clipping from the median keeps 19
+    const muA = Float64Array.from({ length: 20 }, (_, i) => 33 + 0.1 * i);
+    const muB = muA.map((x, i) => x + 0.14 + 0.02 * ((i % 5) - 2));
+    muB[7] = 3.35;
+    const e = new Float64Array(20).fill(0.1);
+    const r = zeroPointOffset(muA, e, muB, e);
+    expect(r.offsetMag).toBeLessThan(-1.3);
+    expect(r.nRejected).toBe(1);
+    expect(r.clippedOffsetMag).toBeCloseTo(0.14, 2);
+    // nothing within kappa sigma of the median: no clipped offset at all
+    const wild = zeroPointOffset([30, 31, 32], [0.01, 0.01, 0.01], [30, 32, 34], [0.01, 0.01, 0.01]);
+    expect(wild.nRejected).toBe(2);
+    expect(wild.clippedOffsetMag).toBe(1);
+    const none = zeroPointOffset([30, 31], [0.01, 0.01], [30, 33], [0.01, 0.01]);
+    expect(none.nRejected).toBe(2);
+    expect(Number.isNaN(none.clippedOffsetMag)).toBe(true);
+  });
+
   it("reports NaN and zero shared when the catalogues have no galaxy in common", () => {
     const r = zeroPointOffset([30, NaN], [0.1, NaN], [NaN, 31], [NaN, 0.1]);
     expect(r.nShared).toBe(0);

@@ -15,8 +15,9 @@ Harmonises the zero points of distance catalogues and combines their distance mo
 table with one row per galaxy and a modulus column per catalogue, e.g. the output of 'peculiar
 match' (columns such as a_mu, b_mu). For each catalogue the offset mu(catalogue) - mu(reference)
 is the weighted mean over the galaxies both measured (weights 1/(sigma_1^2 + sigma_2^2)), with its
-error, the number shared, chi2/dof, the median and a 3-sigma clipped mean as a robust check.
-With --apply each offset is subtracted before combining. Every galaxy then gets
+error, the number shared, chi2/dof, the median and a kappa-sigma clipped mean (clipping starts at
+the median, so one blunder among the shared galaxies cannot move it). With --apply the clipped
+offset (the plain one when nothing is rejected) is subtracted before combining. Every galaxy then gets
   mu = sum(w mu)/sum(w), mu_err = 1/sqrt(sum w), n_dist (moduli used), mu_chi2
 with w = 1/sigma^2. The mu and mu_err roles of OUT point at the new columns, so
 'peculiar velocities OUT ...' uses them. Rows are never dropped.
@@ -27,7 +28,7 @@ options:
   --err COLS            their error columns in the same order (default: COL_err, e_COL,
                         or ALIAS_e_NAME / ALIAS_NAME_err for ALIAS_NAME)
   --reference R         the reference: one of the --mu columns or its alias prefix (default the first)
-  --apply               subtract the offsets before combining (default: report only)
+  --apply               subtract the clipped offsets before combining (default: report only)
   --network             apply the network solution instead: all offsets fitted at once from every
                         galaxy measured more than once (m_g + offset_k per modulus), so a catalogue
                         that overlaps only another non-reference catalogue is tied too (always reported)
@@ -85,7 +86,7 @@ const command: Command = {
     io.note(`combine: ${report.rows} rows; reference ${report.reference}; offsets ${report.applied ? `applied (${report.solution})` : "reported only (use --apply)"}`);
     for (const o of report.offsets) {
       if (o.column === report.reference) continue;
-      io.note(`  ${o.column} - ${report.reference}: ${o.offsetMag.toFixed(4)} +- ${o.offsetErrMag.toFixed(4)} mag from ${o.nShared} shared (clipped ${o.clippedOffsetMag.toFixed(4)}, ${o.nRejected} rejected; chi2/dof ${o.chi2Dof.toFixed(2)}; network ${o.networkOffsetMag.toFixed(4)} +- ${o.networkOffsetErrMag.toFixed(4)})`);
+      io.note(`  ${o.column} - ${report.reference}: ${o.offsetMag.toFixed(4)} +- ${o.offsetErrMag.toFixed(4)} mag from ${o.nShared} shared (clipped ${o.clippedOffsetMag.toFixed(4)}, ${o.nRejected} rejected; chi2/dof ${o.chi2Dof.toFixed(2)}; network ${o.networkOffsetMag.toFixed(4)} +- ${o.networkOffsetErrMag.toFixed(4)})${report.applied ? `; applied ${o.appliedMag.toFixed(4)}` : ""}`);
     }
     const byN = Object.entries(report.nDist).sort((a, b) => Number(a[0]) - Number(b[0])).map(([k, v]) => `${v} with ${k}`).join(", ");
     io.note(`  galaxies by number of moduli: ${byN}`);

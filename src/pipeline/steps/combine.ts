@@ -88,7 +88,9 @@ export async function combineStep(ctx: RunContext<PipelineState>): Promise<StepO
   for (const o of report.offsets) {
     const alias = o.column.replace(/_mu$/, "");
     if (o.isReference) continue;
-    s.offsets.push({ alias, offsetMag: o.offsetMag, errMag: o.offsetErrMag, nShared: o.nShared });
+    // the offset the step applies: the clipped one (combine.ts), the plain one where clipping left none
+    const clipped = Number.isFinite(o.clippedOffsetMag);
+    s.offsets.push({ alias, offsetMag: clipped ? o.clippedOffsetMag : o.offsetMag, errMag: clipped ? o.clippedOffsetErrMag : o.offsetErrMag, nShared: o.nShared });
     offsetNumbers.push({ alias, relativeTo: refAlias, offsetMag: o.offsetMag, offsetErrMag: o.offsetErrMag, nShared: o.nShared, chi2Dof: o.chi2Dof, medianMag: o.medianMag, clippedOffsetMag: o.clippedOffsetMag, nRejected: o.nRejected, appliedMag: o.appliedMag });
   }
   s.combined = withTable(survey, table, getRoles(table));
