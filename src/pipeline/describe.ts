@@ -45,6 +45,7 @@ export function summaryLines(r: RunResult): string[] {
   const lines: string[] = [];
   const ok = s.steps.filter((x) => x.status === "ok").map((x) => x.step);
   lines.push(`run: ${s.status === "ok" ? "done" : "stopped"} in ${s.seconds.toFixed(1)} s; steps ok: ${ok.join(", ") || "none"}`);
+  if (r.removed.length > 0) lines.push(`run: removed ${r.removed.length} ${r.removed.length === 1 ? "file" : "files"} of an earlier run that this one did not write: ${r.removed.join(", ")}`);
   for (const c of s.comparisons) {
     lines.push(`run: ${c.label}: ${formatWithError(c.recovered, c.error)} ${c.unit} (truth ${formatLikeError(c.truth, c.error)}; ${Number.isFinite(c.nSigma) ? c.nSigma.toFixed(1) : "inf"} sigma)`);
   }

@@ -1,9 +1,10 @@
 /**
  * `runPlan`: the whole job from a plan file into an output folder. Reads the plan, runs the steps
  * (steps.ts), rewrites summary.json after every step, and at the end (also after a failure)
- * writes the plots and report.md from what exists. Every file lands atomically.
+ * writes the plots and report.md from what exists. Every file lands atomically; files of an earlier
+ * run in the folder that this one did not write are removed (removeStale).
  */
-import { mkdir, readFile } from "node:fs/promises";
+import { mkdir, readdir, readFile, rm } from "node:fs/promises";
 import { join, resolve } from "node:path";
 import { PeculiarError } from "../errors.js";
 import { writeFileAtomic } from "../catalogue/atomic.js";
@@ -12,7 +13,7 @@ import { runSteps, stepError, type RunRecord } from "./runner.js";
 import { reportMarkdown, SUMMARY_FORMAT, type RunSummary } from "./report.js";
 import { STEPS } from "./steps.js";
 import { comparisonsOf, plotsOf } from "./outcomes.js";
-import { newState, type PipelineState } from "./state.js";
+import { newState, saveTable, type PipelineState } from "./state.js";
 import { readTruth } from "./truth.js";
 
 /** A recovered number is called consistent with the truth in the report within this many sigma. */
@@ -30,6 +31,26 @@ export interface RunResult {
   outDir: string;
   /** Absolute path of the final table, when the run got that far. */
   final?: string;
+  /** Files of an earlier run in the folder that this run did not write, removed (names). */
+  removed: string[];
+}
+
+/** The names a run writes: step outputs (01-... to 09-...), final.arrow, plot-*.svg, summary.json, report.md. */
+const RUN_FILE_RE = /^(0[1-9]-[\w.-]+\.(arrow|json)|final\.arrow|plot-[\w.-]+\.svg|summary\.json|report\.md)$/;
+
+/**
+ * Removes the files of an earlier run (our names only, RUN_FILE_RE) that this run did not write:
+ * a plan without a step must not leave that step's old table beside the new ones (final.arrow
+ * above all, which the view serves). Other files in the folder are never touched.
+ */
+async function removeStale(outDir: string, written: Set<string>): Promise<string[]> {
+  const removed: string[] = [];
+  for (const name of (await readdir(outDir)).sort()) {
+    if (!RUN_FILE_RE.test(name) || written.has(name)) continue;
+    await rm(join(outDir, name), { force: true });
+    removed.push(name);
+  }
+  return removed;
 }
 
 export async function readPlan(file: string): Promise<Plan> {
@@ -83,13 +104,20 @@ export async function runPlan(plan: Plan, opts: RunOptions): Promise<RunResult> 
     },
   });
   await pending;
+  // a plan without the groups step (which writes final.arrow) still gets a final table: its last one
+  if (!state.finalName && record.status === "ok") {
+    const last = state.flagged ?? state.velocities ?? state.combined;
+    if (last) state.finalName = await saveTable(outDir, "final.arrow", last.table);
+  }
 
   const summary = base(record);
   summary.comparisons = comparisonsOf(state);
   summary.plots = await plotsOf(state, outDir);
   await writeSummary(summary);
   await writeFileAtomic(join(outDir, "report.md"), reportMarkdown(summary));
-  const result: RunResult = { summary, outDir };
+  const written = new Set(["summary.json", "report.md", ...summary.steps.flatMap((x) => x.outputs), ...summary.plots.map((p) => p.file)]);
+  if (state.finalName) written.add(state.finalName);
+  const result: RunResult = { summary, outDir, removed: await removeStale(outDir, written) };
   if (state.finalName) result.final = join(outDir, state.finalName);
   return result;
 }

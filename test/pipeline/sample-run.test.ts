@@ -140,3 +140,30 @@ describe("peculiar run on the Sorrel catalogue alone", () => {
     expect(h0.nSigma).toBeGreaterThan(SIGMA_LIMIT);
   });
 });
+
+describe("peculiar run into a folder that holds an earlier run", () => {
+  it("removes the earlier run's files this plan does not write, keeps other files, and still writes a final table", async () => {
+    const dir = await mkdtemp(join(tmpdir(), "peculiar-sample-again-"));
+    const out = join(dir, "out");
+    await runPlan(await readPlan(samplePlanPath()), { outDir: out });
+    await writeFile(join(out, "my-notes.txt"), "kept\n");
+    const plan = JSON.parse(await readFile(samplePlanPath(), "utf8"));
+    const here = join(samplePlanPath(), "..");
+    plan.inputs.redshifts.file = join(here, plan.inputs.redshifts.file);
+    plan.inputs.distances = plan.inputs.distances.map((d: { file: string }) => ({ ...d, file: join(here, d.file) }));
+    plan.truth = join(here, plan.truth);
+    plan.steps.groups = false;
+    plan.steps.recentre = false;
+    await writeFile(join(dir, "plan.json"), JSON.stringify(plan));
+    const r = await runPlan(await readPlan(join(dir, "plan.json")), { outDir: out });
+    expect(failureOf(r)).toBeUndefined();
+    expect(r.removed).toEqual(["05-groups-table.arrow", "05-groups.arrow", "07-recentre.arrow", "07-recentre.json"]);
+    for (const f of r.removed) expect(existsSync(join(out, f))).toBe(false);
+    expect(existsSync(join(out, "my-notes.txt"))).toBe(true);
+    // the final table is now the flagged one: no group columns
+    const final = await readTable(join(out, "final.arrow"));
+    expect(final.numRows).toBe(20000);
+    expect(final.schema.fields.some((f) => f.name === "group_id")).toBe(false);
+    expect(final.schema.fields.some((f) => f.name === "outlier")).toBe(true);
+  });
+});
