@@ -24,9 +24,9 @@ import {
 } from "../sky/index.js";
 import { columnMeta, float64Column, hasColumn, kindOf, nullMask, stringColumn, valuesView } from "./columns.js";
 import { readTable, type FormatName } from "./io.js";
-import { META, ROLES, SOURCE_ROW, getRoles, readJsonMeta, setJsonMeta, type Role, type RoleMap } from "./meta.js";
+import { META, ROLES, getRoles, readJsonMeta, setJsonMeta, type Role, type RoleMap } from "./meta.js";
 import { detectRoles } from "./roles.js";
-import { flagRows, invalidReasons } from "./validity.js";
+import { flagRows, invalidReasons, sourceRows } from "./validity.js";
 
 export interface Catalogue {
   table: Table;
@@ -73,17 +73,6 @@ function rowWord(table: Table): string {
   }
   if (src?.keptSourceRow) return "source row";
   return src?.format === "csv" || src?.format === "tsv" ? "line" : "row";
-}
-
-function sourceRows(table: Table): Int32Array {
-  const n = table.numRows;
-  if (!table.getChild(SOURCE_ROW)) return Int32Array.from({ length: n }, (_, i) => i + 1);
-  const view = valuesView(table, SOURCE_ROW, "int32");
-  if (view) return view; // read only
-  const f = float64Column(table, SOURCE_ROW);
-  const out = new Int32Array(n);
-  for (let i = 0; i < n; i++) out[i] = Number.isNaN(f[i]!) ? i + 1 : f[i]!;
-  return out;
 }
 
 /** The angle unit for a coordinate column, from --unit, metadata or the name; undefined = default. */

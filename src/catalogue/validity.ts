@@ -5,8 +5,8 @@
  * stands alone). Tables without the two columns get them, all valid, on the first flag.
  */
 import { Bool, type Table } from "apache-arrow";
-import { hasColumn, nullMask, stringColumn, withColumns, type ColumnData } from "./columns.js";
-import { INVALID_REASON, VALID } from "./meta.js";
+import { float64Column, hasColumn, nullMask, stringColumn, valuesView, withColumns, type ColumnData } from "./columns.js";
+import { INVALID_REASON, SOURCE_ROW, VALID } from "./meta.js";
 
 /** 1 where the row is valid. A table without a `valid` column is all valid; a null `valid` is invalid. */
 export function validMask(table: Table): Uint8Array {
@@ -117,4 +117,20 @@ export function flagRows(table: Table, bad: Uint8Array, reasons: readonly (strin
     text[i] = text[i] ? `${text[i]}; ${r}` : r;
   }
   return withColumns(table, validityColumns(valid, text));
+}
+
+/**
+ * The source row (1-based line of a text file, row of a binary one) of every row of a table: its
+ * source_row column, or the row number where it has none (or a null). A view of the column when it
+ * can be (read only), else a new array.
+ */
+export function sourceRows(table: Table): Int32Array {
+  const n = table.numRows;
+  if (!table.getChild(SOURCE_ROW)) return Int32Array.from({ length: n }, (_, i) => i + 1);
+  const view = valuesView(table, SOURCE_ROW, "int32");
+  if (view) return view;
+  const f = float64Column(table, SOURCE_ROW);
+  const out = new Int32Array(n);
+  for (let i = 0; i < n; i++) out[i] = Number.isNaN(f[i]!) ? i + 1 : f[i]!;
+  return out;
 }

@@ -11,9 +11,9 @@
  * row of this table (1-based). Each side's own source_row is what row_a/row_b carry.
  */
 import type { Data, Table } from "apache-arrow";
-import { boolDataExcept, sparseUtf8Data, type DataColumn, columnDataOf, columnMeta, float64Column, isHalfFloat, kindOf, tableFromColumns, takeColumn, valuesView, type ColumnData } from "../catalogue/columns.js";
+import { boolDataExcept, sparseUtf8Data, type DataColumn, columnDataOf, columnMeta, isHalfFloat, kindOf, tableFromColumns, takeColumn, type ColumnData } from "../catalogue/columns.js";
 import { getRoles, INVALID_REASON, META, recordStep, setJsonMeta, SOURCE_ROW, VALID, type RoleMap } from "../catalogue/meta.js";
-import { validMask } from "../catalogue/validity.js";
+import { sourceRows, validMask } from "../catalogue/validity.js";
 import { PeculiarError } from "../errors.js";
 import { ARCSEC } from "../sky/angles.js";
 import type { JoinedRows, MatchResult } from "./match.js";
@@ -21,27 +21,6 @@ import { lineTextOf, type RowText } from "../catalogue/line-text.js";
 
 export const ADDED_COLUMNS = ["sep_arcsec", "dv", "n_candidates", "ambiguous", "row_a", "row_b"] as const;
 const BOOKKEEPING = new Set([VALID, INVALID_REASON, SOURCE_ROW]);
-
-/** Source rows (1-based) of a table: its source_row column, or the row number. */
-export function sourceRows(table: Table): Int32Array {
-  const n = table.numRows;
-  const out = new Int32Array(n);
-  if (!table.getChild(SOURCE_ROW)) {
-    for (let i = 0; i < n; i++) out[i] = i + 1;
-    return out;
-  }
-  const view = valuesView(table, SOURCE_ROW, "int32");
-  if (view) {
-    out.set(view);
-    return out;
-  }
-  const f = float64Column(table, SOURCE_ROW);
-  for (let i = 0; i < n; i++) {
-    const x = f[i]!;
-    out[i] = x === x ? x : i + 1;
-  }
-  return out;
-}
 
 /** The invalid_reason of the rows where valid is 0 (others ""): reads only the strings it needs. */
 function reasonsOfInvalid(table: Table, valid: Uint8Array): string[] {

@@ -25,6 +25,7 @@ describe("peculiar recentre", () => {
     const j = JSON.parse(r.stdout);
     for (const k of ["origin", "h0_here", "h0_there", "dipole_here", "dipole_there", "residual_scatter", "n_used", "copernican", "velocity_model", "settings"]) expect(j).toHaveProperty(k);
     expect(j.origin.row).toBe(7);
+    expect(j.origin.source_row).toBe(8); // its line in cat.csv (the header is line 1)
     expect(j.velocity_model).toMatch(/radial-only/);
     // a Copernican mock: the same H0 from there within 3 of the combined sigma
     expect(Math.abs(j.h0_there.value - 70)).toBeLessThan(3 * j.h0_there.error + 0.5);

@@ -14,7 +14,7 @@ import { validMask } from "../../catalogue/validity.js";
 import { parseAngleArcsec } from "../../crossmatch/radius.js";
 import { dedupe, representatives } from "../../crossmatch/dedupe.js";
 import { sideExtras } from "../../crossmatch/inputs.js";
-import { sourceRows } from "../../crossmatch/output.js";
+import { sourceRows } from "../../catalogue/validity.js";
 
 const help = `usage: peculiar dedupe A -o OUT --radius R [options]
 

@@ -9,6 +9,7 @@ import { PeculiarError, usageError } from "../../errors.js";
 import { assertOutputs, writeTable } from "../../catalogue/io.js";
 import { float64Column, hasColumn, stringColumn, withColumns } from "../../catalogue/columns.js";
 import { recordStep } from "../../catalogue/meta.js";
+import { sourceRows } from "../../catalogue/validity.js";
 import { DEFAULT_COSMOLOGY, type Cosmology } from "../../cosmology/distances.js";
 import { lonLatOf } from "../../sky/vectors.js";
 import { fitFlow, flowPoints } from "../../flow/bulkflow.js";
@@ -147,7 +148,7 @@ const command: Command = {
       outliers_left_out: !values["keep-outliers"],
     };
     const result: Record<string, unknown> = {
-      origin: { kind: o.kind, on: o.label, ra: o.raDeg, dec: o.decDeg, dist_mpc: o.distMpc, vr_kms: o.vrKmS, row: o.index >= 0 ? o.index + 1 : null },
+      origin: { kind: o.kind, on: o.label, ra: o.raDeg, dec: o.decDeg, dist_mpc: o.distMpc, vr_kms: o.vrKmS, row: o.index >= 0 ? o.index + 1 : null, source_row: o.index >= 0 ? sourceRows(cat.table)[o.index]! : null },
       h0_here: { value: here.h0There, error: here.h0ThereErr },
       h0_there: { value: there.h0There, error: there.h0ThereErr },
       dipole_here: dipoleJson(here),
@@ -273,10 +274,13 @@ function resolveOrigin(
   const hits: number[] = [];
   for (let i = 0; i < ids.length; i++) if ((ids[i] ?? "").trim() === want) hits.push(i);
   if (hits.length === 0) throw new PeculiarError("input", `--on ${on}: no row has this id`, { file: cat.file, column: idCol, value: on });
-  if (hits.length > 1) throw new PeculiarError("input", `--on ${on}: ${hits.length} rows have this id (rows ${hits.slice(0, 5).map((h) => h + 1).join(", ")}); dedupe first`, { file: cat.file, column: idCol });
+  if (hits.length > 1) {
+    const src = sourceRows(cat.table);
+    throw new PeculiarError("input", `--on ${on}: ${hits.length} rows have this id (source rows ${hits.slice(0, 5).map((h) => src[h]!).join(", ")}${hits.length > 5 ? ", ..." : ""}); dedupe first`, { file: cat.file, column: idCol });
+  }
   const i = hits[0]!;
   if (!(t.rows.distCMpc[i]! > 0) || !Number.isFinite(pts.vr[i]!)) {
-    throw new PeculiarError("input", `--on ${on}: this galaxy has no usable distance or redshift`, { file: cat.file, row: i + 1, column: columnName(names, "dist_c_mpc") });
+    throw new PeculiarError("input", `--on ${on}: this galaxy (source row ${sourceRows(cat.table)[i]}) has no usable distance or redshift`, { file: cat.file, row: i + 1, column: columnName(names, "dist_c_mpc") });
   }
   const d = t.rows.distCMpc[i]!;
   return { kind: "row", label: on, origin: { index: i }, raDeg: cat.raDeg[i]!, decDeg: cat.decDeg[i]!, distMpc: d, vrKmS: pts.vr[i]!, index: i };
