@@ -6,7 +6,7 @@
 import type { Table } from "apache-arrow";
 import { PeculiarError } from "../errors.js";
 import { float64Column, hasColumn, nullMask } from "../catalogue/columns.js";
-import { validMask } from "../catalogue/validity.js";
+import { sourceRows, validMask } from "../catalogue/validity.js";
 import { convertPositions } from "../sky/frames.js";
 import type { FlowRows } from "./bulkflow.js";
 
@@ -33,16 +33,35 @@ function need(table: Table, name: string, key: FlowInput, file: string): Float64
   return float64Column(table, name);
 }
 
-/** A 0/1 column read as a mask (bool or number; null = 0); all 0 when absent. */
-export function flagColumn(table: Table, name: string): Uint8Array {
+/**
+ * A 0/1 column read as a mask: bool, number (non-zero = 1), or text true/false, t/f, yes/no, y/n,
+ * 1/0 (any case; a CSV flag column with one odd cell is read as text); null = 0; all 0 when absent.
+ * Other text is an error naming the row and the column, never a silent 1.
+ */
+export function flagColumn(table: Table, name: string, file?: string): Uint8Array {
   const n = table.numRows;
   const out = new Uint8Array(n);
   if (!hasColumn(table, name)) return out;
   const v = table.getChild(name)!;
   const nulls = nullMask(table, name);
-  for (let i = 0; i < n; i++) out[i] = !nulls[i] && Boolean(v.get(i)) ? 1 : 0;
+  for (let i = 0; i < n; i++) {
+    if (nulls[i]) continue;
+    const x = v.get(i) as unknown;
+    if (typeof x === "string") {
+      // a flag column read as text (CSV with a cell that is not true/false): each cell by its word
+      const w = x.trim().toLowerCase();
+      if (FLAG_TRUE.has(w)) out[i] = 1;
+      else if (!FLAG_FALSE.has(w)) {
+        // the place names the row as the file counts it (its source_row: a line of a text file)
+        throw new PeculiarError("column", `${JSON.stringify(x)} is not a flag (true or false)`, { ...(file ? { file } : {}), column: name, row: sourceRows(table)[i]! });
+      }
+    } else out[i] = typeof x === "number" ? (x !== 0 && x === x ? 1 : 0) : Boolean(x) ? 1 : 0;
+  }
   return out;
 }
+
+const FLAG_TRUE = new Set(["true", "t", "1", "yes", "y"]);
+const FLAG_FALSE = new Set(["false", "f", "0", "no", "n", ""]);
 
 export interface FlowTableRows {
   rows: FlowRows;
@@ -72,7 +91,7 @@ export function flowRowsOfTable(
   for (let i = 0; i < n; i++) frac[i] = de[i]! / d[i]!;
   const { lonDeg, latDeg } = convertPositions(raDeg, decDeg, "icrs", "galactic");
   const valid = validMask(table);
-  const out = excludeOutliers ? flagColumn(table, columnName(names, "outlier")) : new Uint8Array(n);
+  const out = excludeOutliers ? flagColumn(table, columnName(names, "outlier"), file) : new Uint8Array(n);
   const use = new Uint8Array(n);
   let nValid = 0;
   let nOut = 0;

@@ -7,7 +7,6 @@ import { COMMON_FLAGS, numberFlag, parseFlags, h0Flag, omegaMFlag } from "../com
 import { PeculiarError, usageError } from "../../errors.js";
 import { assertOutputs, writeTable } from "../../catalogue/io.js";
 import { hasColumn, tableFromColumns, withColumns, type ColumnData } from "../../catalogue/columns.js";
-import { validMask } from "../../catalogue/validity.js";
 import { recordStep } from "../../catalogue/meta.js";
 import { DEFAULT_COSMOLOGY } from "../../cosmology/distances.js";
 import { convertPositions } from "../../sky/frames.js";
@@ -24,7 +23,8 @@ Finds friends-of-friends groups in redshift space (Huchra & Geller 1982): galaxi
 luminosity-function scaling (R = 1 at V_f) or constant. Groups are the connected components.
 Adds group_id (1, 2, ... for groups of at least --min-members; -1 otherwise) and group_size (size of the
 friends-of-friends component, 1 for an isolated galaxy, 0 for an unusable row). A row is linked when it has a
-usable position and cz_cmb, even if flagged for another reason (e.g. no distance); group distances use valid rows only.
+usable position and cz_cmb, even if flagged for another reason (e.g. no distance); group distances
+use only valid rows not flagged outlier.
 
 The groups table has one row per group: group_id, n_members, ra, dec, l, b (centroid), cz_mean,
 cz_mean_err, sigma_v (gapper, Beers et al. 1990), sigma_v_rest (/(1 + z)), r_proj_mpc (rms projected
@@ -110,13 +110,13 @@ const command: Command = {
     // Linking needs only a position and a velocity: a galaxy flagged for another reason (most often
     // "no usable distance": a survey galaxy no distance catalogue measured) is still linked. Rows
     // whose position or velocity is unusable have NaN there and stay out. Group distances below
-    // come from valid rows only.
-    const valid = validMask(cat.table);
+    // come from members with a trusted distance only: valid, and not flagged outlier (as in 'run').
     const fof = friendsOfFriends(cat.raDeg, cat.decDeg, cz, o);
     const haveDist = hasColumn(cat.table, columnName(names, "dist_c_mpc")) && hasColumn(cat.table, columnName(names, "dist_c_err_mpc"));
-    const rows = haveDist ? flowRowsOfTable(cat.table, cat.raDeg, cat.decDeg, names, cat.file, false).rows : undefined;
+    const flowRows = haveDist ? flowRowsOfTable(cat.table, cat.raDeg, cat.decDeg, names, cat.file, true) : undefined;
+    const rows = flowRows?.rows;
     const gt = groupTable(
-      { groupId: fof.groupId, nGroups: fof.nGroups, raDeg: cat.raDeg, decDeg: cat.decDeg, czKmS: cz, ...(rows ? { distCMpc: Float64Array.from(rows.distCMpc, (d, i) => (valid[i] ? d : NaN)), distFracErr: rows.distFracErr } : {}) },
+      { groupId: fof.groupId, nGroups: fof.nGroups, raDeg: cat.raDeg, decDeg: cat.decDeg, czKmS: cz, ...(rows ? { distCMpc: Float64Array.from(rows.distCMpc, (d, i) => (flowRows!.use[i] ? d : NaN)), distFracErr: rows.distFracErr } : {}) },
       { h0, omegaM },
     );
     const s = fof.settings;

@@ -101,12 +101,11 @@ export async function groupsStep(ctx: RunContext<PipelineState>): Promise<StepOu
   const g = groupTable({ groupId: fof.groupId, nGroups: fof.nGroups, raDeg: src.raDeg, decDeg: src.decDeg, czKmS: cz, distCMpc: dist, distFracErr: rows.distFracErr }, { h0, omegaM: plan.steps.velocities.omegaM });
   s.groups = g;
   const n = src.table.numRows;
-  const idNulls = Uint8Array.from(fof.groupId, (x) => (x < 0 ? 1 : 0));
   const meta = recordStep(new Map(src.table.schema.metadata), "groups", { ...fof.settings, velocityColumn: czName });
   const table = withColumns(
     src.table,
     [
-      { name: "group_id", kind: "int32", values: fof.groupId, nulls: idNulls, meta: { description: `friends-of-friends group (>= ${gs.minMembers} members); empty for none` } },
+      { name: "group_id", kind: "int32", values: fof.groupId, meta: { description: `friends-of-friends group (>= ${gs.minMembers} members), -1 none (as 'peculiar groups' writes it)`, ucd: "meta.id" } },
       { name: "group_size", kind: "int32", values: fof.groupSize, meta: { description: "members of the galaxy's friends-of-friends component (1 = isolated)" } },
     ],
     meta,
