@@ -106,20 +106,30 @@ export function flowPoints(rows: FlowRows, c: Cosmology): { x: Float64Array; y: 
   return { x, y, z, vr, vrErr };
 }
 
+/**
+ * Why row i of `rows` cannot enter the flow fit, or "" when it can: the one test fitFlow applies
+ * (callers name the reason of a row left out with it). The names are the flow columns' defaults.
+ */
+export function flowRowProblem(rows: FlowRows, i: number, opts: Pick<FlowOptions, "maxDistMpc" | "cosmology"> = {}): string {
+  if (rows.use && !rows.use[i]) return "left out (invalid, or an outlier)";
+  if (!Number.isFinite(rows.lDeg[i]! + rows.bDeg[i]!)) return "no usable position";
+  if (!Number.isFinite(rows.czCmbKmS[i]!)) return "no usable redshift (cz_cmb)";
+  if (!(rows.distCMpc[i]! > 0)) return "no usable distance (dist_c_mpc)";
+  if (!(rows.distFracErr[i]! >= 0)) return "no usable distance error (dist_c_err_mpc)";
+  const maxD = opts.maxDistMpc ?? Infinity;
+  if (maxD < Infinity && !(comovingDistanceMpc(Math.max(0, rows.czCmbKmS[i]!) / C_KMS, opts.cosmology ?? { h0: 70, omegaM: 0.3 }) <= maxD)) return `beyond the distance cut (D_C(z_obs) > ${maxD} Mpc)`;
+  return "";
+}
+
 export function fitFlow(rows: FlowRows, opts: FlowOptions = {}): FlowFit {
   const base = opts.cosmology ?? { h0: 70, omegaM: 0.3 };
   const sigmaStar = opts.sigmaStar ?? 250;
   const fitDipole = opts.fitDipole ?? true;
   const n = rows.lDeg.length;
   const use = new Uint8Array(n);
-  const maxD = opts.maxDistMpc ?? Infinity;
-  for (let i = 0; i < n; i++) {
-    if (rows.use && !rows.use[i]) continue;
-    const f = rows.distFracErr[i]!;
-    if (!(rows.distCMpc[i]! > 0) || !Number.isFinite(rows.czCmbKmS[i]!) || !(f >= 0) || !Number.isFinite(rows.lDeg[i]! + rows.bDeg[i]!)) continue;
-    if (maxD < Infinity && !(comovingDistanceMpc(Math.max(0, rows.czCmbKmS[i]!) / C_KMS, base) <= maxD)) continue;
-    use[i] = 1;
-  }
+  const test: Pick<FlowOptions, "maxDistMpc" | "cosmology"> = { cosmology: base };
+  if (opts.maxDistMpc !== undefined) test.maxDistMpc = opts.maxDistMpc;
+  for (let i = 0; i < n; i++) use[i] = flowRowProblem(rows, i, test) === "" ? 1 : 0;
   let h = base.h0;
   let pts = flowPoints(rows, base);
   let r = recentre({ ...pts, use }, { x: 0, y: 0, z: 0, vr: 0 }, { h0: h, sigmaStar, fitDipole });
@@ -165,7 +175,8 @@ export function fitFlow(rows: FlowRows, opts: FlowOptions = {}): FlowFit {
     chi2: r.chi2,
     dof: r.dof,
     residualRms: r.residualRmsThere,
-    used: r.used,
+    // offered to the fit and fitted: a row whose log-distance residual has no value (cz <= 0) did not enter it
+    used: Uint8Array.from(r.used, (u, i) => (u && Number.isFinite(residual[i]!) ? 1 : 0)),
     residual,
     sigmaTotal,
     points: pts,

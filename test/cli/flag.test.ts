@@ -45,7 +45,22 @@ describe("peculiar flag", () => {
     const found = truthBlunders.filter((i) => flagged.includes(i)).length;
     expect(found / truthBlunders.length).toBeGreaterThanOrEqual(0.9);
     expect(flagged.length - found).toBeLessThanOrEqual(8); // <= 1% false flags
-    expect(body[2]).toMatch(/not scored/);
+    expect(body[2]).toMatch(/not scored: no usable distance \(dist_c_mpc\)/);
+  });
+
+  it("names why a row with a distance but no distance error is not scored, and refuses a fit it cannot make", () => {
+    const noErr = join(dir, "noerr.csv");
+    writeFileSync(noErr, readFileSync(input, "utf8").replace(/\n(G00005,[^\n]*),[^,\n]*\n/, "\n$1,\n"));
+    const out = join(dir, "noerr-flagged.csv");
+    expect(runCli(["flag", noErr, "-o", out, "-q"]).code).toBe(0);
+    expect(readFileSync(out, "utf8").split("\n").find((l) => l.startsWith("G00005,"))).toMatch(/not scored: no usable distance error \(dist_c_err_mpc\)/);
+    // ten copies of one galaxy: no flow can be fitted, so nothing can be scored
+    const same = join(dir, "same.csv");
+    const row = readFileSync(input, "utf8").split("\n")[1]!.split(",").slice(1).join(",");
+    writeFileSync(same, ["id,ra,dec,cz_cmb,dist_c_mpc,dist_c_err_mpc", ...Array.from({ length: 10 }, (_, i) => `S${i},${row}`)].join("\n") + "\n");
+    const r = runCli(["flag", same, "-o", join(dir, "same-flagged.csv")]);
+    expect(r.code).toBe(1);
+    expect(r.stderr).toMatch(/the flow fit that outliers are scored against failed with \d+ usable rows/);
   });
 
   it("rejects a bad option value and a missing output with a usage error", () => {

@@ -1,9 +1,10 @@
 import { describe, it, expect, beforeAll, afterAll } from "vitest";
-import { writeFileSync } from "node:fs";
+import { readFileSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
 import { buildOnce, runCli, tempDir } from "../cli-helpers.js";
 import { makeMockUniverse } from "../../src/flow/mock.js";
 import { mockCsv } from "../flow/mock-rows.js";
+import { readTable } from "../../src/catalogue/io.js";
 
 let dir: string;
 let cleanup: () => void;
@@ -47,6 +48,39 @@ describe("peculiar flow", () => {
     const near = JSON.parse(runCli(["flow", input, "--json", "-q", "--max-dist", "60"]).stdout);
     expect(near.n_used).toBeLessThan(400);
     expect(near.settings.max_dist_mpc).toBe(60);
+  });
+
+  it("names the valid rows the fit could not take, marks flow_used as the fit did, and refuses a degenerate sky", async () => {
+    // invented edits of the mock: no distance error (G00002), a negative distance (G00004), no cz (G00006)
+    const lines = readFileSync(input, "utf8").split("\n");
+    const edit = (id: string, f: (c: string[]) => void) => {
+      const k = lines.findIndex((l) => l.startsWith(`${id},`));
+      const c = lines[k]!.split(",");
+      f(c);
+      lines[k] = c.join(",");
+    };
+    edit("G00002", (c) => (c[5] = ""));
+    edit("G00004", (c) => (c[4] = "-5"));
+    edit("G00006", (c) => (c[3] = ""));
+    const holes = join(dir, "holes.csv");
+    writeFileSync(holes, lines.join("\n"));
+    const out = join(dir, "holes-flow.arrow");
+    const r = runCli(["flow", holes, "--json", "-o", out]);
+    expect(r.code, r.stderr).toBe(0);
+    expect(r.stderr).toMatch(/valid rows also left out of the fit: .*1 no usable distance error \(dist_c_err_mpc\)/);
+    expect(r.stderr).toMatch(/1 no usable distance \(dist_c_mpc\)/);
+    expect(r.stderr).toMatch(/1 no usable redshift \(cz_cmb\)/);
+    const j = JSON.parse(r.stdout);
+    expect(j.n_used).toBe(1197);
+    const used = (await readTable(out)).getChild("flow_used")!.toArray() as boolean[];
+    expect(Array.from(used).filter(Boolean).length).toBe(1197);
+    // every galaxy at Dec 0: on one plane through us, so the dipole cannot be fitted
+    const flat = join(dir, "flat.csv");
+    writeFileSync(flat, readFileSync(input, "utf8").replace(/^(G\d+,[^,]*),[^,]*,/gm, "$1,0,"));
+    const bad = runCli(["flow", flat, "--json"]);
+    expect(bad.code).toBe(1);
+    expect(bad.stderr).toMatch(/the fit failed with \d+ usable rows: .*--no-dipole fits H0 alone/);
+    expect(runCli(["flow", flat, "--json", "-q", "--no-dipole"]).code).toBe(0);
   });
 
   it("prints a text summary without --json and rejects a bad --max-dist", () => {

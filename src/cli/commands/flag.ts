@@ -4,12 +4,13 @@
  */
 import type { Command } from "../command.js";
 import { COMMON_FLAGS, numberFlag, parseFlags, h0Flag, omegaMFlag } from "../command.js";
-import { usageError } from "../../errors.js";
+import { PeculiarError, usageError } from "../../errors.js";
 import { assertOutputs, writeTable } from "../../catalogue/io.js";
 import { withColumns, type ColumnData } from "../../catalogue/columns.js";
 import { recordStep } from "../../catalogue/meta.js";
 import { DEFAULT_COSMOLOGY } from "../../cosmology/distances.js";
 import { flagOutliers, OUTLIER_CLIPPED, OUTLIER_UNSCORED, type OutlierMethod } from "../../flow/outliers.js";
+import { flowRowProblem } from "../../flow/bulkflow.js";
 import { flowRowsOfTable, splitFlowColumns } from "../../flow/table.js";
 import { CATALOGUE_FLAGS, CATALOGUE_FLAGS_HELP, loadForCommand, parseCatalogueFlags } from "../catalogue-flags.js";
 
@@ -74,22 +75,21 @@ const command: Command = {
     const flags = parseCatalogueFlags({ ...values, col: rest });
     const cat = await loadForCommand(input, flags, io, { require: ["ra", "dec"] });
     const t = flowRowsOfTable(cat.table, cat.raDeg, cat.decDeg, names, cat.file, false);
-    const res = flagOutliers(t.rows, {
-      method: method as OutlierMethod,
-      k,
-      sigmaStar,
-      cosmology: { h0, omegaM },
-      ...(maxDist !== undefined ? { maxDistMpc: maxDist } : {}),
-    });
+    const test = { cosmology: { h0, omegaM }, ...(maxDist !== undefined ? { maxDistMpc: maxDist } : {}) };
+    const res = flagOutliers(t.rows, { method: method as OutlierMethod, k, sigmaStar, ...test });
     const n = cat.table.numRows;
     const fit = res.fit;
+    if (!fit.ok) {
+      // no model, so no row can be scored: an error, not a table of "not scored" rows
+      throw new PeculiarError("input", `the flow fit that outliers are scored against failed with ${fit.nUsed} usable rows (H0 and a bulk flow need more than 4 galaxies spread over the sky); nothing was flagged`, { file: cat.file });
+    }
     const model = `model H0 = ${fit.h0.toFixed(2)} + bulk flow (${fit.bulkGal.map((x) => x.toFixed(0)).join(", ")}) km/s Galactic, sigma* = ${sigmaStar} km/s`;
     const reasons = new Array<string>(n);
     const scoreName = method === "mad" ? "robust z" : "|r|/sigma";
     for (let i = 0; i < n; i++) {
       const c = res.code[i]!;
       if (c === OUTLIER_CLIPPED) reasons[i] = `${scoreName} = ${Math.abs(res.score[i]!).toFixed(2)} > ${k} (${method}, iteration ${res.iteration[i]}; ${model})`;
-      else if (c === OUTLIER_UNSCORED) reasons[i] = "not scored: no usable redshift or distance";
+      else if (c === OUTLIER_UNSCORED) reasons[i] = `not scored: ${flowRowProblem(t.rows, i, test) || "no log-distance residual (cz_cmb <= 0)"}`;
       else if (!t.use[i]) reasons[i] = Number.isFinite(res.score[i]!) ? "not flagged: invalid row (scored, left out of the fit)" : "not scored: invalid row";
       else reasons[i] = "";
     }

@@ -5,12 +5,12 @@
  */
 import type { Command } from "../command.js";
 import { COMMON_FLAGS, numberFlag, parseFlags, h0Flag, omegaMFlag } from "../command.js";
-import { usageError } from "../../errors.js";
+import { PeculiarError, usageError } from "../../errors.js";
 import { assertOutputs, writeTable } from "../../catalogue/io.js";
 import { withColumns } from "../../catalogue/columns.js";
 import { recordStep } from "../../catalogue/meta.js";
 import { DEFAULT_COSMOLOGY } from "../../cosmology/distances.js";
-import { fitFlow } from "../../flow/bulkflow.js";
+import { fitFlow, flowRowProblem, type FlowOptions, type FlowRows } from "../../flow/bulkflow.js";
 import { flowRowsOfTable, splitFlowColumns } from "../../flow/table.js";
 import { CATALOGUE_FLAGS, CATALOGUE_FLAGS_HELP, loadForCommand, parseCatalogueFlags } from "../catalogue-flags.js";
 
@@ -73,7 +73,8 @@ const command: Command = {
     const cat = await loadForCommand(input, flags, io, { require: ["ra", "dec"] });
     const t = flowRowsOfTable(cat.table, cat.raDeg, cat.decDeg, names, cat.file, !values["keep-outliers"]);
     const fitDipole = !values["no-dipole"];
-    const f = fitFlow(t.rows, { cosmology: { h0, omegaM }, sigmaStar, fitDipole, ...(maxDist !== undefined ? { maxDistMpc: maxDist } : {}) });
+    const fitOpts = { cosmology: { h0, omegaM }, sigmaStar, fitDipole, ...(maxDist !== undefined ? { maxDistMpc: maxDist } : {}) };
+    const f = fitFlow(t.rows, fitOpts);
     const settings = {
       sigma_star: sigmaStar,
       h0_start: h0,
@@ -99,8 +100,16 @@ const command: Command = {
       n_used: f.nUsed,
       settings,
     };
-    if (!f.ok) io.note(`flow: the fit failed (${f.nUsed} usable rows); results are NaN`);
+    if (!f.ok) {
+      throw new PeculiarError(
+        "input",
+        `the fit failed with ${f.nUsed} usable rows: ${fitDipole ? "H0 and a bulk flow need galaxies spread over the sky (more than 4, not all on one plane or line of sight; --no-dipole fits H0 alone)" : "H0 needs at least 2 usable galaxies"}`,
+        { file: cat.file },
+      );
+    }
     io.note(`flow: ${f.nUsed} of ${cat.table.numRows} rows used (${settings.n_outliers_left_out} outliers and ${settings.n_invalid_left_out} invalid left out), chi2/dof = ${(f.chi2 / f.dof).toFixed(2)}`);
+    const left = leftOut(t.rows, t.use, f.used, fitOpts);
+    if (left.length > 0) io.note(`flow: valid rows also left out of the fit: ${left.join(", ")}`);
     if (values.output) {
       const n = cat.table.numRows;
       const score = new Float64Array(n);
@@ -130,4 +139,15 @@ const command: Command = {
     return 0;
   },
 };
+/** The rows offered (`use`) that the fit did not take, counted by why: "2 no usable distance error (dist_c_err_mpc)", ... */
+function leftOut(rows: FlowRows, use: Uint8Array, used: Uint8Array, opts: FlowOptions): string[] {
+  const by = new Map<string, number>();
+  for (let i = 0; i < use.length; i++) {
+    if (!use[i] || used[i]) continue;
+    const why = flowRowProblem(rows, i, opts) || "no log-distance residual (cz_cmb <= 0)";
+    by.set(why, (by.get(why) ?? 0) + 1);
+  }
+  return [...by].map(([why, k]) => `${k} ${why}`);
+}
+
 export default command;
