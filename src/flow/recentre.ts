@@ -117,7 +117,7 @@ export interface Recentred {
   cov: Float64Array;
   /** cos lambda = n_B . e_AB (NaN where undefined). */
   cosLambda: Float64Array;
-  /** Rows that entered the fit. */
+  /** Rows offered to the fit (nUsed counts those that entered it: the log fit drops a row whose line of sight has no root). */
   used: Uint8Array;
   /** Index of the origin row, -1 for a free point. */
   originIndex: number;

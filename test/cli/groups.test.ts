@@ -53,6 +53,16 @@ describe("peculiar groups", () => {
     expect(Math.abs(Number(row[12]) - 45)).toBeLessThan(6); // 20% per member over ~50 members: ~3% error
   });
 
+  it("says which rows it could not link and why: no position, no cz_cmb, or cz_cmb <= 0", () => {
+    // invented rows: three blueshifted or at rest, one without a position, one without cz_cmb
+    const f = join(dir, "unlinked.csv");
+    writeFileSync(f, "id,ra,dec,cz_cmb\na,10,20,-100\nb,10,20,-50\nc,10,20,0\nd,10,20,5000\ne,10,20.001,5010\nf,10,20.002,5005\ng,,20,5000\nh,11,20,\n");
+    const r = runCli(["groups", f, "-o", join(dir, "unlinked-out.csv"), "--scaling", "constant", "--json"]);
+    expect(r.code, r.stderr).toBe(0);
+    expect(r.stderr).toMatch(/5 rows not linked \(group_size 0\): 1 no usable position, 1 no cz_cmb, 3 cz_cmb <= 0/);
+    expect(JSON.parse(r.stdout)).toMatchObject({ n_rows: 8, n_groups: 1, n_grouped: 3, n_not_linked: 5 });
+  });
+
   it("links galaxies flagged only for a missing distance, and takes group distances from valid rows", () => {
     // Half the cluster's members lose their distance and are flagged as the velocities step flags them.
     const lines = readFileSync(input, "utf8").trim().split("\n");

@@ -158,8 +158,22 @@ const command: Command = {
       `groups: ${n} rows, ${fof.nGroups} groups of >= ${s.minMembers} members holding ${grouped} galaxies (largest ${largest}); ` +
         `D0 = ${s.d0Mpc.toFixed(3)} Mpc, V0 = ${s.v0KmS} km/s, scaling ${s.scaling}${s.scaling === "hg82" ? ` (V_f = ${s.vFidKmS}, m_lim = ${s.mLim}, M* = ${s.mStar.toFixed(2)}, alpha = ${s.alpha})` : ""}`,
     );
+    // rows friends-of-friends could not link (group_size 0): said, and counted by why
+    let noPos = 0;
+    let noCz = 0;
+    let blue = 0;
+    for (let i = 0; i < n; i++) {
+      if (fof.groupSize[i] !== 0) continue;
+      if (!Number.isFinite(cat.raDeg[i]! + cat.decDeg[i]!)) noPos++;
+      else if (!Number.isFinite(cz[i]!)) noCz++;
+      else blue++;
+    }
+    if (noPos + noCz + blue > 0) {
+      const parts = [[noPos, "no usable position"], [noCz, `no ${czName}`], [blue, `${czName} <= 0 (no Hubble distance to link at)`]].filter(([k]) => (k as number) > 0).map(([k, why]) => `${k} ${why}`);
+      io.note(`groups: ${noPos + noCz + blue} rows not linked (group_size 0): ${parts.join(", ")}`);
+    }
     io.note(`wrote ${output}${values["groups-out"] ? ` and ${values["groups-out"]}` : ""}`);
-    if (values.json) io.stdout.write(JSON.stringify({ n_rows: n, n_groups: fof.nGroups, n_grouped: grouped, largest, settings }, null, 2) + "\n");
+    if (values.json) io.stdout.write(JSON.stringify({ n_rows: n, n_groups: fof.nGroups, n_grouped: grouped, n_not_linked: noPos + noCz + blue, largest, settings }, null, 2) + "\n");
     return 0;
   },
 };

@@ -196,7 +196,7 @@ const command: Command = {
           { name: "recentre_s_mpc", kind: "float64", values: there.s, meta: { unit: "Mpc", description: `comoving distance from the origin ${o.label}` } },
           { name: "recentre_v_kms", kind: "float64", values: there.vAB, meta: { unit: "km/s", description: `radial velocity seen from ${o.label} (${form} form, ${RADIAL_ONLY})` } },
           { name: "recentre_v_pec_kms", kind: "float64", values: vp, meta: { unit: "km/s", description: "recentre_v_kms minus the Hubble law and dipole fitted from there" } },
-          { name: "recentre_used", kind: "bool", values: there.used, meta: { description: "row entered the fit from there" } },
+          { name: "recentre_used", kind: "bool", values: there.used, meta: { description: "row offered to the fit from there (n_used counts those fitted: a line of sight without a ln D root is offered, not fitted)" } },
         ],
         recordStep(new Map(cat.table.schema.metadata), "recentre", { ...settings, origin: result.origin, h0_there: there.h0There }),
       );
