@@ -14,7 +14,7 @@
  * Nothing is flagged: a galaxy without any modulus gets n_dist = 0 and an empty mu.
  */
 import type { Table } from "apache-arrow";
-import { float64Column, hasColumn, type ColumnData } from "../catalogue/columns.js";
+import { float64Column, hasColumn, kindOf, type ColumnData } from "../catalogue/columns.js";
 import { META, getRoles, recordStep, setJsonMeta } from "../catalogue/meta.js";
 import { withColumns } from "../catalogue/columns.js";
 import { PeculiarError } from "../errors.js";
@@ -105,9 +105,28 @@ export function combineDistances(table: Table, o: CombineOptions): { table: Tabl
     return e;
   });
   const ref = resolveReference(o.muColumns, o.reference, file);
+  for (const c of [...o.muColumns, ...errNames]) {
+    const kind = kindOf(table.schema.fields.find((f) => f.name === c)!.type);
+    if (kind === undefined || kind === "utf8" || kind === "bool") throw new PeculiarError("column", `is ${kind === "bool" ? "a flag" : "text"}, not a number: a modulus and its error must be numeric columns`, { file, column: c });
+  }
   const mus = o.muColumns.map((c) => float64Column(table, c));
   const errs = errNames.map((c) => float64Column(table, c));
   const notes: string[] = [];
+  // moduli whose error cannot weight them: said per column, with what happens to them
+  o.muColumns.forEach((c, k) => {
+    let withMu = 0;
+    let missing = 0;
+    let nonPositive = 0;
+    for (let i = 0; i < mus[k]!.length; i++) {
+      if (!Number.isFinite(mus[k]![i]!)) continue;
+      withMu++;
+      const e = errs[k]![i]!;
+      if (!Number.isFinite(e)) missing++;
+      else if (!(e > 0)) nonPositive++;
+    }
+    if (withMu > 0 && missing === withMu) notes.push(`${errNames[k]} has no value for any of the ${withMu} moduli of ${c}: ${c} shares no weighted galaxy with the other catalogues, and its moduli are used only where no other modulus has an error`);
+    else if (missing + nonPositive > 0) notes.push(`${c}: ${missing + nonPositive} of ${withMu} moduli have no usable error in ${errNames[k]} (${missing} empty, ${nonPositive} zero or negative): they enter no offset, and are used only where no other modulus of the galaxy has an error`);
+  });
   const net = zeroPointNetwork(mus, errs, ref);
   const network = o.network === true;
   const offsets: CatalogueOffset[] = o.muColumns.map((c, k) => {

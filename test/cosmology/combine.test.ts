@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
 import { randomLcg, randomNormal, randomUniform } from "d3-random";
-import { float64Column, tableFromColumns, type ColumnData } from "../../src/catalogue/columns.js";
+import { float64Column, tableFromColumns, withColumns, type ColumnData } from "../../src/catalogue/columns.js";
 import { META, getRoles, readJsonMeta } from "../../src/catalogue/meta.js";
 import { combineDistances, errorColumnFor } from "../../src/cosmology/combine.js";
 
@@ -112,6 +112,22 @@ describe("the combine step", () => {
     expect(() => combineDistances(t, { muColumns: ["a_mu", "c_mu"], apply: false })).toThrow(/column c_mu: no such modulus column/);
     expect(() => combineDistances(t, { muColumns: ["a_mu", "b_mu"], reference: "zz", apply: false })).toThrow(/reference/);
     expect(() => combineDistances(t, { muColumns: [], apply: false })).toThrow(/at least one/);
+    // a text column named as a modulus (with an error column given) is refused, not read as empty
+    expect(() => combineDistances(t, { muColumns: ["a_mu", "id"], errColumns: ["a_mu_err", "e_b_mu"], apply: false })).toThrow(/column id: is text, not a number/);
+  });
+
+  it("says how many moduli have no usable error, and when an error column is empty throughout", () => {
+    const t = matched(3, 400, 0.1);
+    const ae = float64Column(t, "a_mu_err");
+    const a = float64Column(t, "a_mu");
+    let changed = 0;
+    for (let i = 0; i < 400 && changed < 3; i++) if (Number.isFinite(a[i]!)) ae[i] = changed++ === 0 ? -0.1 : 0;
+    const t2 = withColumns(t, [{ name: "a_mu_err", kind: "float64", values: ae }]);
+    const { report } = combineDistances(t2, { muColumns: ["a_mu", "b_mu"], apply: true });
+    expect(report.notes.find((x) => x.startsWith("a_mu:"))).toMatch(/^a_mu: 3 of \d+ moduli have no usable error in a_mu_err \(0 empty, 3 zero or negative\)/);
+    const empty = withColumns(t, [{ name: "e_b_mu", kind: "float64", values: new Float64Array(400).fill(NaN) }]);
+    const r = combineDistances(empty, { muColumns: ["a_mu", "b_mu"], apply: true }).report;
+    expect(r.notes.some((x) => /^e_b_mu has no value for any of the \d+ moduli of b_mu/.test(x))).toBe(true);
   });
 
   it("with network, ties a catalogue that overlaps only another one and applies its offset", () => {
