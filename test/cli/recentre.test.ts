@@ -51,6 +51,12 @@ describe("peculiar recentre", () => {
     expect(JSON.parse(runCli(["recentre", input, "--on", "id:G00007", "--json", "-q", "--h0", "70"]).stdout).origin.row).toBe(7);
   });
 
+  it("says with --form major that its Copernican verdict is biased by distance errors", () => {
+    const j = JSON.parse(runCli(["recentre", input, "--on", "G00007", "--h0", "70", "--json", "-q", "--form", "major"]).stdout);
+    expect(j.copernican.note).toMatch(/major form's fit is biased by distance errors/);
+    expect(runCli(["recentre", input, "--on", "G00007", "--h0", "70", "-q", "--form", "major"]).stdout).toMatch(/note: the major form's fit is biased/);
+  });
+
   it("writes the re-centred table and explains a bad origin", () => {
     const out = join(dir, "rec.csv");
     expect(runCli(["recentre", input, "--on", "G00002", "--h0", "70", "-o", out, "-q"]).code).toBe(0);
