@@ -64,6 +64,10 @@ describe("peculiar recentre", () => {
     expect(none.code).toBe(1);
     expect(none.stderr).toMatch(/no row has this id/);
     expect(runCli(["recentre", input, "--on", "1,2", "--h0", "70"]).code).toBe(1);
+    // a point origin is checked as a catalogue position is: RA 400 is not wrapped silently
+    const far = runCli(["recentre", input, "--on", "400,10,50", "--h0", "70"]);
+    expect(far.code).toBe(2);
+    expect(far.stderr).toMatch(/RA in \[0, 360\)/);
     expect(runCli(["recentre", input]).code).toBe(2);
     expect(runCli(["recentre", input, "--on", "10,95,40"]).code).toBe(2);
   });

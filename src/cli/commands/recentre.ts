@@ -272,8 +272,9 @@ function resolveOrigin(
   const p = on.split(",");
   if (p.length === 3) {
     const [ra, dec, d] = p.map((s) => Number(s.trim())) as [number, number, number];
-    if (!(Number.isFinite(ra) && Number.isFinite(dec) && Math.abs(dec) <= 90 && d > 0)) {
-      throw usageError(`--on ${on}: expected RA,DEC,DIST with RA, Dec in degrees and a distance > 0 Mpc`);
+    // the same ranges as a catalogue's positions (load.ts): RA in [0, 360), Dec in [-90, 90]
+    if (!(ra >= 0 && ra < 360 && Math.abs(dec) <= 90 && d > 0 && d < Infinity)) {
+      throw usageError(`--on ${on}: expected RA,DEC,DIST with RA in [0, 360) and Dec in [-90, 90] degrees and a distance > 0 Mpc`);
     }
     const vpec = numberFlag(originVpec, "origin-vpec", 0);
     const o = pointOrigin(ra, dec, d, cosmo.h0, vpec);

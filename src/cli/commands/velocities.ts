@@ -54,7 +54,8 @@ options:
   --estimator E           exact (default): c (z - z_cos)/(1 + z_cos)  (Davis & Scrimgeour 2014)
                           linear: cz - H0 D_C
                           log: c z_mod ln(c z_mod/(H0 D_L))  (Watkins & Feldman 2015)
-  --distance S            ${DISTANCE_SOURCES.join(" | ")}: which column gives the distance (default: the first found)
+  --distance S            ${DISTANCE_SOURCES.join(" | ")}: which column gives the distance (default: the
+                          first of mu, dist, eta that has a column)
   --dist-kind K           kind of a dist column: ${KINDS.join(" | ")} (default luminosity)
   redshift roles: cz (km/s) or z, with cz_err / z_err; distance roles: mu, dist, eta with _err
 ${CATALOGUE_FLAGS_HELP}
