@@ -53,6 +53,16 @@ describe("peculiar groups", () => {
     expect(Math.abs(Number(row[12]) - 45)).toBeLessThan(6); // 20% per member over ~50 members: ~3% error
   });
 
+  it("says when one group holds most of the sample: the links are too long (percolation)", () => {
+    // 150 invented galaxies packed in 0.5 deg and 300 km/s: friends-of-friends joins them all
+    const rows = Array.from({ length: 150 }, (_, i) => `p${i},${(180 + (i % 10) * 0.05).toFixed(3)},${(10 + Math.floor(i / 10) * 0.03).toFixed(3)},${5000 + (i % 7) * 40}`);
+    const f = join(dir, "blob.csv");
+    writeFileSync(f, ["id,ra,dec,cz_cmb", ...rows].join("\n") + "\n");
+    const r = runCli(["groups", f, "-o", join(dir, "blob-out.csv"), "--scaling", "constant"]);
+    expect(r.code, r.stderr).toBe(0);
+    expect(r.stderr).toMatch(/the largest group holds 150 of the 150 linked galaxies \(100 %\): the linking lengths are likely too long/);
+  });
+
   it("says which rows it could not link and why: no position, no cz_cmb, or cz_cmb <= 0", () => {
     // invented rows: three blueshifted or at rest, one without a position, one without cz_cmb
     const f = join(dir, "unlinked.csv");

@@ -168,6 +168,14 @@ const command: Command = {
       else if (!Number.isFinite(cz[i]!)) noCz++;
       else blue++;
     }
+    // percolation: one component holding a large part of the sample means the links are too long
+    const linked = n - (noPos + noCz + blue);
+    if (linked >= 100 && largest > PERCOLATION_FRACTION * linked) {
+      io.note(
+        `groups: the largest group holds ${largest} of the ${linked} linked galaxies (${((100 * largest) / linked).toFixed(0)} %): the linking lengths are likely too long for this sample ` +
+          `(${s.scaling === "hg82" ? "the HG82 scaling grows them with distance; try --scaling constant, or " : "try "}a smaller --d0 / --v0)`,
+      );
+    }
     if (noPos + noCz + blue > 0) {
       const parts = [[noPos, "no usable position"], [noCz, `no ${czName}`], [blue, `${czName} <= 0 (no Hubble distance to link at)`]].filter(([k]) => (k as number) > 0).map(([k, why]) => `${k} ${why}`);
       io.note(`groups: ${noPos + noCz + blue} rows not linked (group_size 0): ${parts.join(", ")}`);
@@ -177,4 +185,7 @@ const command: Command = {
     return 0;
   },
 };
+/** A group with more than this fraction of the linked galaxies is reported as a sign of percolation (common practice: real groups hold a few per cent at most). */
+const PERCOLATION_FRACTION = 0.2;
+
 export default command;
