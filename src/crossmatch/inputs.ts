@@ -1,7 +1,7 @@
 /**
  * What the matcher needs from a loaded catalogue besides positions: a velocity (cz, or c * z) and a
- * 1-sigma positional error per axis in arcsec. Both come from the catalogue's roles; units come
- * from the column metadata.
+ * 1-sigma positional error per axis in arcsec. Both come from the catalogue's roles; a velocity's
+ * unit from --unit or the column metadata (catalogue/units.ts), an error's from its metadata.
  */
 import type { Table } from "apache-arrow";
 import { columnMeta, float64Column } from "../catalogue/columns.js";
