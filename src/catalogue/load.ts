@@ -26,7 +26,7 @@ import { columnMeta, float64Column, hasColumn, kindOf, nullMask, stringColumn, v
 import { readTable, type FormatName } from "./io.js";
 import { META, ROLES, getRoles, readJsonMeta, setJsonMeta, type Role, type RoleMap } from "./meta.js";
 import { detectRoles } from "./roles.js";
-import { flagRows, invalidReasons, sourceRows } from "./validity.js";
+import { flagRows, invalidReasons, sourceRows, validMask } from "./validity.js";
 
 export interface Catalogue {
   table: Table;
@@ -188,20 +188,35 @@ function collect(table: Table, column: string, col: AngleColumn, word: string, r
   }
 }
 
-/** The reasons the table already has, read on first need (most tables have no bad position). */
+/** The reasons the table already has and whether each row is valid, read on first need (most tables have no bad position). */
 class Prior {
   private reasons: string[] | undefined;
+  private valid: Uint8Array | undefined;
   constructor(private readonly table: Table) {}
   at(i: number): string {
     this.reasons ??= invalidReasons(this.table);
     return this.reasons[i] ?? "";
   }
+  isValid(i: number): boolean {
+    this.valid ??= validMask(this.table);
+    return this.valid[i] === 1;
+  }
 }
 
-/** Flags row i with "<word> <row>: finding" unless its prior reason already contains `known`. */
+/**
+ * Flags row i with "<word> <row>: finding" unless the row is already invalid with a reason that
+ * contains `known` (a table we wrote and read back). A reason alone, on a row marked valid (or with
+ * no usable valid column), does not stand for the flag.
+ */
 function addFinding(i: number, finding: string, known: string, word: string, rows: Int32Array, prior: Prior, bad: Uint8Array, reasons: (string | undefined)[]): void {
-  if (prior.at(i).includes(known)) return;
+  const said = prior.at(i).includes(known);
+  if (said && !prior.isValid(i)) return;
   bad[i] = 1;
+  if (said) {
+    // the reason is there already, only the flag was missing: no second copy of the text
+    reasons[i] ??= "";
+    return;
+  }
   const text = `${word} ${rows[i]}: ${finding}`;
   reasons[i] = reasons[i] ? `${reasons[i]}; ${text}` : text;
 }

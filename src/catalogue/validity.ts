@@ -98,8 +98,8 @@ export function withValidity(table: Table): Table {
 }
 
 /**
- * Flags rows: where bad[i] is 1, valid becomes false and reasons[i] (or "flagged" when undefined)
- * is appended to invalid_reason with "; ". Rows already invalid stay invalid and collect the reason.
+ * Flags rows: where bad[i] is 1, valid becomes false and reasons[i] (or "flagged" when undefined;
+ * nothing when "" and the row has a reason already) is appended to invalid_reason with "; ". Rows already invalid stay invalid and collect the reason.
  * Returns a new table; the input is not changed. Nothing to flag returns the table with the columns ensured.
  */
 export function flagRows(table: Table, bad: Uint8Array, reasons: readonly (string | undefined)[]): Table {
@@ -113,8 +113,10 @@ export function flagRows(table: Table, bad: Uint8Array, reasons: readonly (strin
   for (let i = 0; i < n; i++) {
     if (!bad[i]) continue;
     valid[i] = 0;
+    // "" flags the row without new text (its reason already says why); no entry at all is "flagged"
     const r = reasons[i] ?? "flagged";
-    text[i] = text[i] ? `${text[i]}; ${r}` : r;
+    const before = text[i] ?? "";
+    text[i] = before ? (r ? `${before}; ${r}` : before) : r || "flagged";
   }
   return withColumns(table, validityColumns(valid, text));
 }

@@ -46,6 +46,13 @@ describe("prepareCatalogue", () => {
     expect(prep("id,ra,dec,z\ng1,10,20,0.05\n").notes.some((n) => /reads like/.test(n))).toBe(false);
   });
 
+  it("flags a bad position once even when a reason column already says it but no valid column does", () => {
+    // invented rows; a file with invalid_reason but no valid column (a cut copy of one we wrote)
+    const cat = prep("ra,dec,invalid_reason\n1,2,\n,3,column ra: missing value\n4,5,\n");
+    expect(Array.from(validMask(cat.table))).toEqual([1, 0, 1]);
+    expect(invalidReasons(cat.table)).toEqual(["", "column ra: missing value", ""]);
+  });
+
   it("reads sexagesimal text: RA in hours and Dec in degrees with the sign from the string", () => {
     // Domain reference sheet §2, computed with astropy 8.0.1: "12:30:49.42338" -> 187.70593075 deg.
     const cat = prep('id,RA_hms,Dec_dms\ng1,12:30:49.42338,+12:23:28.0439\ng2,00 42 44.3,-00 30 00\n');
