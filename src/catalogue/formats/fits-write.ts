@@ -102,7 +102,14 @@ function planColumn(col: ColumnData, file: string | undefined): Plan {
 const RESERVED = /^(SIMPLE|BITPIX|NAXIS\d*|EXTEND|XTENSION|PCOUNT|GCOUNT|TFIELDS|THEAP|EXTNAME|EXTVER|END|COMMENT|HISTORY|CONTINUE|BLANK|BSCALE|BZERO|GROUPS|T[A-Z]{3,4}\d+|PMETA\d+|PMVAL\d+|PMENC\d+)$/;
 
 /** Encodes a table as a FITS file: empty primary HDU plus one BINTABLE. */
+/** The most columns a FITS binary table holds (TFIELDS: FITS Standard 4.0, sect. 7.3.1). */
+export const FITS_MAX_COLUMNS = 999;
+
 export function fitsFromTable(table: Table, options: { file?: string } = {}): Uint8Array {
+  const width = table.schema.fields.length;
+  if (width > FITS_MAX_COLUMNS) {
+    throw new PeculiarError("format", `a FITS binary table holds at most ${FITS_MAX_COLUMNS} columns; this table has ${width} (write Arrow, VOTable or CSV instead)`, options.file ? { file: options.file } : {});
+  }
   const cols = columnsOf(table);
   const n = table.numRows;
   const plans = cols.map((c) => planColumn(c, options.file));

@@ -42,6 +42,12 @@ describe("FITS reader against astropy 5.2.1 fixtures (test/reference/make_format
     expect(cells(t, "source_row")).toEqual([1, 2, 3, 4, 5]);
   });
 
+  it("refuses a table of more than 999 columns, the most TFIELDS allows (FITS Standard 4.0, sect. 7.3.1)", () => {
+    const cols = (k: number): ColumnData[] => Array.from({ length: k }, (_, j) => ({ name: `c${j}`, kind: "int32", values: Int32Array.of(j) }));
+    expect(() => fitsFromTable(tableFromColumns(cols(1000)), { file: "wide.fits" })).toThrow(/wide\.fits: a FITS binary table holds at most 999 columns; this table has 1000/);
+    expect(parseFits(fitsFromTable(tableFromColumns(cols(999))), { file: "w.fits" }).schema.fields.length).toBeGreaterThanOrEqual(999);
+  });
+
   it("finds the table in the second extension, after an image, and by EXTNAME", () => {
     const bytes = fixture("second_ext.fits");
     const t = parseFits(bytes, { file: "second_ext.fits" });
