@@ -252,7 +252,10 @@ function resolveOrigin(
     const gid = Int32Array.from(float64Column(cat.table, gname), (x) => (Number.isFinite(x) ? x : -1));
     let nG = 0;
     for (let i = 0; i < gid.length; i++) nG = Math.max(nG, gid[i]!);
-    const gt = groupTable({ groupId: gid, nGroups: nG, raDeg: cat.raDeg, decDeg: cat.decDeg, czKmS: t.rows.czCmbKmS, distCMpc: t.rows.distCMpc, distFracErr: t.rows.distFracErr }, cosmo);
+    // the group's distance from members with a trusted distance (valid, and not outliers unless
+    // --keep-outliers), as 'groups' and 'run' place it
+    const trusted = Float64Array.from(t.rows.distCMpc, (d, i) => (t.use[i] ? d : NaN));
+    const gt = groupTable({ groupId: gid, nGroups: nG, raDeg: cat.raDeg, decDeg: cat.decDeg, czKmS: t.rows.czCmbKmS, distCMpc: trusted, distFracErr: t.rows.distFracErr }, cosmo);
     let k: number;
     if (g[1] === "richest") {
       k = richestGroup(gt);
