@@ -150,6 +150,11 @@ async function start(): Promise<void> {
   const actions: PanelActions = {
     recentreOn: (row) => {
       tooltip.show(-1, 0, 0);
+      // an origin needs a place in space: a galaxy without a distance (grey on the sky) is not one
+      if (!(Number.isFinite(data.col.sgx[row]!) && Number.isFinite(data.col.sgy[row]!) && Number.isFinite(data.col.sgz[row]!))) {
+        $("status").textContent = `${data.ids[row]} has no distance, so it cannot be an origin; the view stays where it was`;
+        return;
+      }
       recentreOn(row);
     },
     select: (rows) => state.setSelection(rows),

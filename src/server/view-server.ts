@@ -17,6 +17,9 @@ import { fileURLToPath } from "node:url";
 import { tableFromIPC, tableToIPC, type Table } from "apache-arrow";
 import { PeculiarError } from "../errors.js";
 import { readTable } from "../catalogue/io.js";
+import { prepareCatalogue } from "../catalogue/load.js";
+import { withColumns } from "../catalogue/columns.js";
+import { convertPositions } from "../sky/index.js";
 import { findSidecars, type Sidecar } from "./sidecars.js";
 
 export interface ViewServerOptions {
@@ -83,7 +86,7 @@ async function loadCatalogueBytes(file: string, table: Table | undefined): Promi
     throw new PeculiarError("io", "cannot read the catalogue", { file, value: (e as Error).message });
   }
   if (!isArrowIpc(bytes)) {
-    const t = await readTable(file);
+    const t = withSkyFrames(await readTable(file), file);
     return { bytes: tableToIPC(t, "file"), rows: t.numRows };
   }
   let t: Table;
@@ -92,7 +95,30 @@ async function loadCatalogueBytes(file: string, table: Table | undefined): Promi
   } catch (e) {
     throw new PeculiarError("format", "not a readable Arrow IPC file", { file, value: (e as Error).message });
   }
-  return { bytes, rows: t.numRows };
+  const framed = withSkyFrames(t, file);
+  return framed === t ? { bytes, rows: t.numRows } : { bytes: tableToIPC(framed, "file"), rows: t.numRows };
+}
+
+/**
+ * The table with Galactic l, b and supergalactic sgl, sgb added from its positions when it has
+ * neither pair (a table of RA/Dec alone, e.g. one made by hand): the view draws from those. The
+ * positions are the loader's (roles, units, sexagesimal); a row without one gets NaN. A table
+ * without positions is served as it is (the page says what it cannot draw).
+ */
+function withSkyFrames(t: Table, file: string): Table {
+  const names = new Set(t.schema.fields.map((f) => f.name));
+  if ((names.has("l") && names.has("b")) || (names.has("sgl") && names.has("sgb"))) return t;
+  let cat;
+  try {
+    cat = prepareCatalogue(t, { file });
+  } catch {
+    return t;
+  }
+  if (cat.positions === "none") return t;
+  const gal = convertPositions(cat.raDeg, cat.decDeg, "icrs", "galactic");
+  const sg = convertPositions(cat.raDeg, cat.decDeg, "icrs", "supergalactic");
+  const deg = (name: string, values: Float64Array, ucd: string) => ({ name, kind: "float64" as const, values, meta: { unit: "deg", ucd, description: "from the ICRS position (added by the view server)" } });
+  return withColumns(t, [deg("l", gal.lonDeg, "pos.galactic.lon"), deg("b", gal.latDeg, "pos.galactic.lat"), deg("sgl", sg.lonDeg, "pos.supergalactic.lon"), deg("sgb", sg.latDeg, "pos.supergalactic.lat")]);
 }
 
 function send(res: ServerResponse, status: number, type: string, body: string | Uint8Array): void {

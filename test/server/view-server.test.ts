@@ -108,6 +108,22 @@ describe("startViewServer", () => {
     }
   });
 
+  it("adds l, b, sgl, sgb from RA/Dec when a catalogue has neither frame, so the view can draw it", async () => {
+    // the north Galactic pole at ICRS (192.85948, +27.12825) deg (ESA 1997, The Hipparcos Catalogue,
+    // vol. 1, sect. 1.5.3): b = +90 there
+    const csv = join(tmp.dir, "radec.csv");
+    writeFileSync(csv, "id,ra,dec,cz_cmb\nTG1,192.85948,27.12825,1000\nTG2,,10,2000\n");
+    const s = await startViewServer({ file: csv, port: 0 });
+    try {
+      const t = tableFromIPC((await get(s.url, "/data.arrow")).body);
+      for (const c of ["l", "b", "sgl", "sgb"]) expect(t.schema.fields.map((f) => f.name)).toContain(c);
+      expect(t.getChild("b")!.get(0)).toBeCloseTo(90, 3);
+      expect(Number.isNaN(t.getChild("l")!.get(1))).toBe(true); // no RA: no position
+    } finally {
+      await s.close();
+    }
+  });
+
   it("says which file it cannot read", async () => {
     const missing = join(tmp.dir, "absent.arrow");
     await expect(startViewServer({ file: missing, port: 0 })).rejects.toThrow(PeculiarError);
