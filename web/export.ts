@@ -10,6 +10,26 @@ import type { CanvasPanel } from "./panel.js";
 export const MAX_VECTOR_POINTS = 5000;
 const SVG_NS = "http://www.w3.org/2000/svg";
 
+/** Points at (px, py) as vector squares of half-width r, one group per colour bin (NaN positions left out). */
+export function pointsSvg(bins: NonNullable<CanvasPanel["bins"]>, px: Float64Array, py: Float64Array, r: number): string {
+  let s = "";
+  for (let b = 0; b <= N_BINS; b++) {
+    const a = bins.start[b]!;
+    const e = bins.start[b + 1]!;
+    if (a === e) continue;
+    s += `<g fill="${bins.colours[b]}">`;
+    for (let k = a; k < e; k++) {
+      const i = bins.order[k]!;
+      const x = px[i]!;
+      const y = py[i]!;
+      if (x !== x || y !== y) continue;
+      s += `<rect x="${(x - r).toFixed(1)}" y="${(y - r).toFixed(1)}" width="${2 * r}" height="${2 * r}"/>`;
+    }
+    s += "</g>";
+  }
+  return s;
+}
+
 function overlayMarkup(svg: SVGSVGElement): string {
   const clone = svg.cloneNode(true) as SVGSVGElement;
   clone.querySelectorAll("rect.brush").forEach((r) => r.remove());
@@ -26,21 +46,7 @@ export function canvasPanelSvg(p: CanvasPanel, title: string): string {
   let s = header(w, h, title);
   if (p.drawn <= MAX_VECTOR_POINTS && p.bins) {
     s += `<rect width="${w}" height="${h}" fill="${BACKGROUND}"/>`;
-    const r = p.pointRadius;
-    for (let b = 0; b <= N_BINS; b++) {
-      const a = p.bins.start[b]!;
-      const e = p.bins.start[b + 1]!;
-      if (a === e) continue;
-      s += `<g fill="${p.bins.colours[b]}">`;
-      for (let k = a; k < e; k++) {
-        const i = p.bins.order[k]!;
-        const x = p.px[i]!;
-        const y = p.py[i]!;
-        if (x !== x || y !== y) continue;
-        s += `<rect x="${(x - r).toFixed(1)}" y="${(y - r).toFixed(1)}" width="${2 * r}" height="${2 * r}"/>`;
-      }
-      s += "</g>";
-    }
+    s += pointsSvg(p.bins, p.px, p.py, p.pointRadius);
     s += p.vectorExtras();
   } else {
     s += `<image width="${w}" height="${h}" href="${p.canvas.toDataURL("image/png")}"/>`;

@@ -5,7 +5,8 @@
  * dashed beside it. Error bars when few points are drawn.
  */
 import * as d3 from "d3";
-import { CanvasPanel, type PanelActions } from "./panel.js";
+import { CanvasPanel, marksSvg, type PanelActions } from "./panel.js";
+import { pointsSvg } from "./export.js";
 import type { ViewState } from "./state.js";
 import { binByColour, binsWhenAsked, FAINT_INK, INK, ORIGIN_MARK, type VelocityScale } from "./colour.js";
 import { compositeCells, DIM_ALPHA, drawBinnedPoints, drawMarks, drawStampedMarks, markedRows, markStyle } from "./draw.js";
@@ -197,6 +198,20 @@ export class HubblePanel extends CanvasPanel {
     // (no mark buffers here: the draw stamps the marks itself)
     hubbleCells({ P, s: o.s, v: o.v, u: o.u, px: this.px, py: this.py, rx: this.rx, ry: this.ry, bin: L.bin, cellsMain: L.cellsMain, cellsRes: L.cellsRes });
     return { cellsMain: L.cellsMain, cellsRes: L.cellsRes, out: P.subarray(HJ_OUT), marks: null };
+  }
+
+  /** For the vector export: the residual panel's points (the export draws the diagram's), and the marks of both panels. */
+  override vectorExtras(): string {
+    // clipped to each plot's frame, as the canvas draws them
+    const { y0, mainH, r0, resH } = this.geometry(this.width, this.height);
+    const w = this.width - M.left - M.right;
+    const frame = (id: string, y: number, h: number) => `<clipPath id="${id}"><rect x="${M.left}" y="${y}" width="${w}" height="${h}"/></clipPath>`;
+    const res = this.bins ? pointsSvg(this.bins, this.rx, this.ry, this.pointRadius) : "";
+    return (
+      `<defs>${frame("hubble-main", y0, mainH)}${frame("hubble-res", r0, resH)}</defs>` +
+      `<g clip-path="url(#hubble-main)">${super.vectorExtras()}</g>` +
+      `<g clip-path="url(#hubble-res)">${res}${marksSvg(this.state, this.rx, this.ry, this.pointRadius)}</g>`
+    );
   }
 
   protected draw(ctx: CanvasRenderingContext2D): number {

@@ -255,6 +255,12 @@ describe("the web view", () => {
         expect(bytes.length).toBeGreaterThan(1000);
         if (kind === "SVG") {
           expect(bytes.subarray(0, 200).toString("utf8")).toMatch(/^<svg xmlns/);
+          if (id === "hubble") {
+            // both panels' points as vector squares: the diagram's and the residuals' (3000 rows <= 5000)
+            const drawn = Number(await page.getAttribute("#panel-hubble", "data-drawn"));
+            const squares = (bytes.toString("utf8").match(/<rect x="/g) ?? []).length;
+            expect(squares).toBeGreaterThanOrEqual(2 * drawn);
+          }
           // The file stands alone: Chromium renders it (screenshot kept to look at).
           const viewer = await browser.newPage();
           await viewer.goto(`file://${path}`);
