@@ -15,6 +15,8 @@ import { BACKGROUND, GROUP_RING, OUTLIER_MARK, SELECTED_RING } from "./colour.js
 export const PICK_RADIUS_PX = 7;
 /** A drag shorter than this (CSS px) is a click. */
 const DRAG_THRESHOLD_PX = 4;
+/** How long a click in a zoomed panel waits for a second one (a double click resets the zoom instead). */
+const DOUBLE_CLICK_MS = 300;
 
 export interface PanelActions {
   recentreOn(row: number): void;
@@ -158,6 +160,11 @@ export abstract class CanvasPanel {
     return false;
   }
 
+  /** True while zoomed in: a double click then resets the view, so a click waits to see whether it is one. */
+  protected isZoomed(): boolean {
+    return false;
+  }
+
   /** The drawn row nearest to (x, y) within r CSS px, or -1. */
   pick(x: number, y: number, r = PICK_RADIUS_PX): number {
     if (!this.index) this.index = new PlaneIndex(this.px, this.py);
@@ -194,7 +201,11 @@ export abstract class CanvasPanel {
       },
       { passive: false },
     );
+    // a click re-centres; in a zoomed panel it first waits out the double-click time, and a double
+    // click (which resets the zoom) cancels it
+    let pendingClick = 0;
     el.addEventListener("dblclick", () => {
+      window.clearTimeout(pendingClick);
       if (this.resetView()) this.render();
     });
     const local = (e: PointerEvent): [number, number] => {
@@ -245,7 +256,10 @@ export abstract class CanvasPanel {
         this.actions.select(this.rowsIn(start[0], start[1], p[0], p[1]));
       } else {
         const row = this.pick(p[0], p[1]);
-        if (row >= 0) this.actions.recentreOn(row);
+        if (row >= 0 && this.isZoomed()) {
+          window.clearTimeout(pendingClick);
+          pendingClick = window.setTimeout(() => this.actions.recentreOn(row), DOUBLE_CLICK_MS);
+        } else if (row >= 0) this.actions.recentreOn(row);
       }
       start = null;
       dragging = false;

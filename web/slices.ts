@@ -86,6 +86,10 @@ export class SlicePanel extends CanvasPanel {
     return true;
   }
 
+  protected override isZoomed(): boolean {
+    return this.zoom !== 1;
+  }
+
   protected override resetView(): boolean {
     if (this.zoom === 1) return false;
     this.zoom = 1;

@@ -60,4 +60,27 @@ describe("the web view of rows without a frame or a distance", () => {
     expect(await page.getAttribute("body", "data-origin")).toBe("home");
     expect(errors).toEqual([]);
   });
+  it("resets a zoomed slice on a double click without re-centring, and re-centres on a single click", async () => {
+    const file = join(tmp.dir, "zoom.arrow");
+    writeViewCatalogue(file, { seed: 12, n: ROWS });
+    const { server, page, errors } = await openView(browser, file);
+    servers.push(server);
+    const v = (fn: string) => page.evaluate(`(() => { const v = window.peculiarView; return ${fn}; })()`);
+    const box = (await page.locator("#panel-slice-xy canvas").boundingBox())!;
+    await page.mouse.move(box.x + box.width / 2, box.y + box.height / 2);
+    await page.mouse.wheel(0, -600);
+    // a galaxy drawn inside the zoomed slice
+    const at = (await v(`(() => { const p = v.panels["slice-xy"]; for (let i = 0; i < p.px.length; i++) if (Number.isFinite(p.px[i]) && p.px[i] > 40 && p.py[i] > 40) return v.clientPosition("slice-xy", i); return null; })()`)) as { x: number; y: number } | null;
+    expect(at).not.toBeNull();
+    await page.mouse.dblclick(at!.x, at!.y);
+    await page.waitForTimeout(500);
+    expect(await page.getAttribute("body", "data-origin")).toBe("home");
+    // zoomed again, one click re-centres (after the double-click wait)
+    await page.mouse.move(box.x + box.width / 2, box.y + box.height / 2);
+    await page.mouse.wheel(0, -600);
+    const at2 = (await v(`(() => { const p = v.panels["slice-xy"]; for (let i = 0; i < p.px.length; i++) if (Number.isFinite(p.px[i]) && p.px[i] > 40 && p.py[i] > 40) return v.clientPosition("slice-xy", i); return null; })()`)) as { x: number; y: number };
+    await page.mouse.click(at2.x, at2.y);
+    await page.waitForSelector("body[data-origin='galaxy']");
+    expect(errors).toEqual([]);
+  });
 });
