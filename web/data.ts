@@ -164,6 +164,16 @@ export function viewDataFromTable(table: Table): ViewData {
   };
 }
 
+/**
+ * Row i's comoving distance and its error, Mpc: the distance the Hubble diagram and the slices use.
+ * The error is dist_c_err_mpc, else dist_err_mpc scaled by dist_c_mpc / dist_mpc (the same fraction).
+ */
+export function comovingDistance(c: ViewData["col"], i: number): [number, number] {
+  const d = c.dist_c_mpc[i]!;
+  const e = c.dist_c_err_mpc[i]!;
+  return [d, Number.isFinite(e) ? e : (d * c.dist_err_mpc[i]!) / c.dist_mpc[i]!];
+}
+
 /** Member counts per row from group ids (-1 = no group -> 0). */
 export function groupSizesOf(groupId: Int32Array): Int32Array {
   const count = new Map<number, number>();

@@ -4,11 +4,12 @@
  */
 import type { ViewState } from "./state.js";
 import { fixed, signed, withError } from "./format.js";
+import { comovingDistance } from "./data.js";
 
 /** Rows shown at most in one table. */
 export const MAX_TABLE_ROWS = 250;
 
-const HEAD = ["id", "l (°)", "b (°)", "cz CMB (km/s)", "distance (Mpc)", "v_pec (km/s)", "group"];
+const HEAD = ["id", "l (°)", "b (°)", "cz CMB (km/s)", "D_C (Mpc)", "v_pec (km/s)", "group"];
 
 export class RowTable {
   readonly root: HTMLElement;
@@ -61,7 +62,7 @@ export class RowTable {
         fixed(c.l[i]!, 2),
         signed(c.b[i]!, 2),
         fixed(c.cz_cmb[i]!, 0),
-        withError(c.dist_mpc[i]!, c.dist_err_mpc[i]!, 1),
+        withError(...comovingDistance(c, i), 1),
         withError(c.v_pec[i]!, c.v_pec_err[i]!, 0),
         d.groupId[i]! >= 0 ? String(d.groupId[i]) : "",
       ];

@@ -1,6 +1,7 @@
 /** The tooltip: id, position, cz, distance and v_pec with error of the row under the pointer. */
 import type { ViewState } from "./state.js";
 import { fixed, signed, withError } from "./format.js";
+import { comovingDistance } from "./data.js";
 
 export class Tooltip {
   readonly el: HTMLDivElement;
@@ -24,7 +25,7 @@ export class Tooltip {
       ["SGL, SGB", `${fixed(c.sgl[i]!, 3)}°, ${signed(c.sgb[i]!, 3)}°`],
       ["SGX, SGY, SGZ", `${fixed(c.sgx[i]!, 1)}, ${fixed(c.sgy[i]!, 1)}, ${fixed(c.sgz[i]!, 1)} Mpc`],
       ["cz (CMB)", `${fixed(c.cz_cmb[i]!, 0)} km/s`],
-      ["distance", `${withError(c.dist_mpc[i]!, c.dist_err_mpc[i]!, 1)} Mpc`],
+      ["distance (comoving)", `${withError(...comovingDistance(c, i), 1)} Mpc`],
       ["v_pec", `${withError(c.v_pec[i]!, c.v_pec_err[i]!, 0)} km/s`],
     ];
     if (d.has.group_id) out.push(["group", d.groupId[i]! >= 0 ? `${d.groupId[i]} (${d.groupSize[i]} members)` : "none"]);

@@ -77,7 +77,7 @@ describe("the web view of a partial catalogue", () => {
     const byKey = new Map(lines);
     expect(byKey.get("v_pec")).toBe("unknown km/s");
     expect(byKey.get("cz (CMB)")).toBe("unknown km/s");
-    expect(byKey.get("distance")).toMatch(/^\d+\.\d ± \d+\.\d Mpc$/);
+    expect(byKey.get("distance (comoving)")).toMatch(/^\d+\.\d ± \d+\.\d Mpc$/);
   });
 
   it("says the outlier column is missing and offers no groups", async () => {

@@ -205,7 +205,7 @@ describe("the web view", () => {
     const text = (await tip.textContent())!;
     const id = (await view<[string, string][]>(`v.tooltipLines(${row})`))[0]![1];
     expect(text).toContain(id);
-    for (const key of ["l, b", "cz (CMB)", "distance", "v_pec"]) expect(text).toContain(key);
+    for (const key of ["l, b", "cz (CMB)", "distance (comoving)", "v_pec"]) expect(text).toContain(key);
     expect(text).toMatch(/v_pec[^]*±/);
     await page.screenshot({ path: join(SHOTS, "tooltip.png"), clip: { x: Math.max(0, at.x - 200), y: Math.max(0, at.y - 100), width: 700, height: 320 } });
     await page.mouse.move(1, 1);
