@@ -16,7 +16,7 @@
  *   string in a text column and null elsewhere.
  * - Types: bool when every non-null cell is true/false (any case); numeric when at least 3/4 of
  *   the non-null cells are numbers (int32 when all are integers in range, int64 for larger
- *   integers, else float64); the other cells of a numeric column become null and flag their row
+ *   integers, uint64 for non-negative ones beyond int64, else float64); the other cells of a numeric column become null and flag their row
  *   `line 12: column cz: "abc" is not a number`. Everything else is text (sexagesimal angles stay text).
  * - A row with too few fields gets nulls, one with too many keeps the extra cells in its reason:
  *   `line 17: 5 fields, expected 7` / `line 17: 9 fields, expected 7 (extra: "a", "b")`.
@@ -144,6 +144,7 @@ const INT32_MIN = -2147483648;
 const INT32_MAX = 2147483647;
 const INT64_MIN = -(2n ** 63n);
 const INT64_MAX = 2n ** 63n - 1n;
+const UINT64_MAX = 2n ** 64n - 1n;
 
 // Cell classes found by the column builder.
 const C_NULL = 0;
@@ -292,6 +293,8 @@ function buildColumn(name: string, recs: CsvRecords, first: number, j: number, r
   let floats = 0;
   let int32ok = true;
   let int64ok = true;
+  let uint64ok = true; // every integer in [0, 2^64): for a column beyond int64 only
+  let negative = false;
   for (let i = 0; i < n; i++) {
     const c = cls[i]!;
     if (c === C_NULL) {
@@ -308,12 +311,14 @@ function buildColumn(name: string, recs: CsvRecords, first: number, j: number, r
     else if (c === C_INT) {
       nums++;
       const x = val[i]!;
+      if (x < 0) negative = true;
       if (x < INT32_MIN || x > INT32_MAX) {
         int32ok = false;
         // Below 9.2e18 (< 2^63) the integer fits int64 whatever its last digits.
         if (!(Math.abs(x) < 9.2e18)) {
           const bi = BigInt(trimmedCell(recs, first, j, i));
           if (bi < INT64_MIN || bi > INT64_MAX) int64ok = false;
+          if (bi < 0n || bi > UINT64_MAX) uint64ok = false;
         }
       }
     } else if (c === C_FLOAT) {
@@ -355,6 +360,17 @@ function buildColumn(name: string, recs: CsvRecords, first: number, j: number, r
         else v[i] = Math.abs(x) < 9007199254740992 ? BigInt(x) : BigInt(trimmedCell(recs, first, j, i));
       }
       return withMeta({ name, kind: "int64", values: v });
+    }
+    if (floats === 0 && uint64ok && !negative) {
+      // beyond int64 but unsigned (identifiers of 64 bits): kept exact, not rounded to a double
+      const v = new BigUint64Array(n);
+      for (let i = 0; i < n; i++) {
+        if (isNull[i]) continue;
+        const x = val[i]!;
+        if (cls[i] !== C_INT) bad(i);
+        else v[i] = x < 9007199254740992 ? BigInt(x) : BigInt(trimmedCell(recs, first, j, i));
+      }
+      return withMeta({ name, kind: "uint64", values: v });
     }
     for (let i = 0; i < n; i++) {
       if (isNull[i]) continue;

@@ -73,6 +73,14 @@ describe("CSV reader on bytes", () => {
     });
   });
 
+  it("keeps non-negative integers beyond int64 exact as uint64 (up to 2^64 - 1)", () => {
+    const t = parseCsv("u\n18446744073709551615\n0\n9223372036854775808\n", { file });
+    expect(columnDataOf(t, "u").kind).toBe("uint64");
+    expect(cells(t, "u")).toEqual([18446744073709551615n, 0n, 9223372036854775808n]);
+    // a negative value among them: no integer type holds both, so float64
+    expect(columnDataOf(parseCsv("u\n18446744073709551615\n-1\n", { file }), "u").kind).toBe("float64");
+  });
+
   it("keeps integer columns beyond 2^53 exact as int64 and larger ones as float64", () => {
     const t = parseCsv("a,b\n9007199254740993,123456789012345678901234567890\n-9223372036854775808,1\n", { file });
     expect(columnDataOf(t, "a").kind).toBe("int64");
