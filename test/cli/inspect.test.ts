@@ -138,6 +138,12 @@ describe("peculiar inspect", () => {
     expect(j.roles).toMatchObject({ ra: "ra", dec: "dec", cz: "cz" });
   });
 
+  it("gives the exact range of a 64-bit integer column (a double would round 2^63 - 1 up)", () => {
+    writeFileSync(join(dir, "big.csv"), "k\n-4611686018427387907\n9223372036854775807\n5\n");
+    const j = JSON.parse(runCli(["inspect", "big.csv", "--json"], { cwd: dir }).stdout);
+    expect(j.columns[0]).toMatchObject({ name: "k", type: "int64", min: "-4611686018427387907", max: "9223372036854775807" });
+  });
+
   it("reads the input in the format --format names", () => {
     writeFileSync(join(dir, "t.dat"), "ra\tdec\n10\t20\n");
     const r = runCli(["inspect", "t.dat", "--format", "tsv", "--json"], { cwd: dir });

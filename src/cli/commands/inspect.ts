@@ -33,15 +33,29 @@ interface ColumnInfo {
   ucd: string;
   nulls: number;
   role: string;
-  /** Smallest and largest non-null value of a numeric column (null for text, bool or no values). */
-  min: number | null;
-  max: number | null;
+  /** Smallest and largest non-null value of a numeric column (null for text, bool or no values); a 64-bit integer beyond 2^53 as its exact digits. */
+  min: number | string | null;
+  max: number | string | null;
 }
 
 const NUMERIC = new Set(["float64", "float32", "int8", "int16", "int32", "int64", "uint8", "uint16", "uint32", "uint64"]);
 
-function range(table: Table, name: string, type: string): [number | null, number | null] {
+function range(table: Table, name: string, type: string): [number | string | null, number | string | null] {
   if (!NUMERIC.has(type)) return [null, null];
+  if (type === "int64" || type === "uint64") {
+    // exact: a double cannot hold these integers (2^63 - 1 would print as 9223372036854776000)
+    let lo: bigint | null = null;
+    let hi: bigint | null = null;
+    const v = table.getChild(name)!;
+    for (let i = 0; i < v.length; i++) {
+      const x = v.get(i) as bigint | null;
+      if (x === null || x === undefined) continue;
+      if (lo === null || x < lo) lo = x;
+      if (hi === null || x > hi) hi = x;
+    }
+    const out = (x: bigint | null) => (x === null ? null : x >= -(2n ** 53n) && x <= 2n ** 53n ? Number(x) : x.toString());
+    return [out(lo), out(hi)];
+  }
   let lo = Infinity;
   let hi = -Infinity;
   for (const x of float64Column(table, name)) {
@@ -51,7 +65,8 @@ function range(table: Table, name: string, type: string): [number | null, number
   return lo <= hi ? [lo, hi] : [null, null];
 }
 
-function shortNumber(x: number): string {
+function shortNumber(x: number | string): string {
+  if (typeof x === "string") return x;
   return Number.isInteger(x) ? String(x) : String(Number(x.toPrecision(8)));
 }
 
