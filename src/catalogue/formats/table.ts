@@ -71,6 +71,7 @@ export function finishTable(parsed: ParsedColumns, info: SourceInfo): Table {
   let valid: ColumnData | undefined;
   let reason: ColumnData | undefined;
   let sourceRow: ColumnData | undefined;
+  const dropped = new Set<ColumnData>();
   for (const c of parsed.columns) {
     if (c.name === VALID && c.kind === "bool") {
       valid = c;
@@ -80,6 +81,11 @@ export function finishTable(parsed: ParsedColumns, info: SourceInfo): Table {
       continue;
     } else if (c.name === SOURCE_ROW && INT_KINDS.has(c.kind)) {
       sourceRow = c;
+      continue;
+    } else if ((c.name === VALID || c.name === INVALID_REASON || c.name === SOURCE_ROW) && n === 0) {
+      // No rows, so no type to tell ours from another's (a text table gives them no type at all):
+      // the bookkeeping columns are made new, and nothing is lost
+      dropped.add(c);
       continue;
     } else if (c.name === VALID || c.name === INVALID_REASON || c.name === SOURCE_ROW) {
       // Same name, other type: the file's column is kept under a free name.
@@ -137,7 +143,7 @@ export function finishTable(parsed: ParsedColumns, info: SourceInfo): Table {
     if (c === valid) (out.push(validCol), had.add(VALID));
     else if (c === reason) (out.push(reasonCol), had.add(INVALID_REASON));
     else if (c === sourceRow) (out.push(rowCol), had.add(SOURCE_ROW));
-    else out.push(cols.shift()!);
+    else if (!dropped.has(c)) out.push(cols.shift()!);
   }
   if (!had.has(VALID)) out.push(validCol);
   if (!had.has(INVALID_REASON)) out.push(reasonCol);

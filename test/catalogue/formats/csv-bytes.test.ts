@@ -73,6 +73,13 @@ describe("CSV reader on bytes", () => {
     });
   });
 
+  it("reads back a zero-row table it wrote without renaming its bookkeeping columns", () => {
+    const t = parseCsv("ra,dec,valid,invalid_reason,source_row\n", { file });
+    expect(t.numRows).toBe(0);
+    expect(t.schema.fields.map((f) => f.name)).toEqual(["ra", "dec", "valid", "invalid_reason", "source_row"]);
+    expect(columnDataOf(t, "valid").kind).toBe("bool");
+  });
+
   it("keeps non-negative integers beyond int64 exact as uint64 (up to 2^64 - 1)", () => {
     const t = parseCsv("u\n18446744073709551615\n0\n9223372036854775808\n", { file });
     expect(columnDataOf(t, "u").kind).toBe("uint64");
