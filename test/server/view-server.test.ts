@@ -32,6 +32,18 @@ function get(url: string, path: string, method = "GET"): Promise<{ status: numbe
   });
 }
 
+/** The table a server started on a file of `text` (named `name`) serves at /data.arrow. */
+async function servedTable(name: string, text: string) {
+  const file = join(tmp.dir, name);
+  writeFileSync(file, text);
+  const s = await startViewServer({ file, port: 0 });
+  try {
+    return tableFromIPC((await get(s.url, "/data.arrow")).body);
+  } finally {
+    await s.close();
+  }
+}
+
 beforeAll(async () => {
   buildWebOnce();
   tmp = tempDir("peculiar-server-");
@@ -96,32 +108,18 @@ describe("startViewServer", () => {
   });
 
   it("reads a catalogue in another format and serves it as Arrow IPC", async () => {
-    const csv = join(tmp.dir, "small.csv");
-    writeFileSync(csv, "id,l,b,v_pec\nTG1,10,20,100\nTG2,200,-30,-50\n");
-    const s = await startViewServer({ file: csv, port: 0 });
-    try {
-      const t = tableFromIPC((await get(s.url, "/data.arrow")).body);
-      expect(t.numRows).toBe(2);
-      expect(t.schema.fields.map((f) => f.name)).toContain("v_pec");
-    } finally {
-      await s.close();
-    }
+    const t = await servedTable("small.csv", "id,l,b,v_pec\nTG1,10,20,100\nTG2,200,-30,-50\n");
+    expect(t.numRows).toBe(2);
+    expect(t.schema.fields.map((f) => f.name)).toContain("v_pec");
   });
 
   it("adds l, b, sgl, sgb from RA/Dec when a catalogue has neither frame, so the view can draw it", async () => {
     // the north Galactic pole at ICRS (192.85948, +27.12825) deg (ESA 1997, The Hipparcos Catalogue,
     // vol. 1, sect. 1.5.3): b = +90 there
-    const csv = join(tmp.dir, "radec.csv");
-    writeFileSync(csv, "id,ra,dec,cz_cmb\nTG1,192.85948,27.12825,1000\nTG2,,10,2000\n");
-    const s = await startViewServer({ file: csv, port: 0 });
-    try {
-      const t = tableFromIPC((await get(s.url, "/data.arrow")).body);
-      for (const c of ["l", "b", "sgl", "sgb"]) expect(t.schema.fields.map((f) => f.name)).toContain(c);
-      expect(t.getChild("b")!.get(0)).toBeCloseTo(90, 3);
-      expect(Number.isNaN(t.getChild("l")!.get(1))).toBe(true); // no RA: no position
-    } finally {
-      await s.close();
-    }
+    const t = await servedTable("radec.csv", "id,ra,dec,cz_cmb\nTG1,192.85948,27.12825,1000\nTG2,,10,2000\n");
+    for (const c of ["l", "b", "sgl", "sgb"]) expect(t.schema.fields.map((f) => f.name)).toContain(c);
+    expect(t.getChild("b")!.get(0)).toBeCloseTo(90, 3);
+    expect(Number.isNaN(t.getChild("l")!.get(1))).toBe(true); // no RA: no position
   });
 
   it("says which file it cannot read", async () => {
