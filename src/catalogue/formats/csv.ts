@@ -351,26 +351,16 @@ function buildColumn(name: string, recs: CsvRecords, first: number, j: number, r
       }
       return withMeta({ name, kind: "int32", values: v });
     }
-    if (floats === 0 && int64ok) {
-      const v = new BigInt64Array(n);
+    // int64, or uint64 beyond int64 when none is negative (identifiers of 64 bits): exact, not rounded to a double
+    if (floats === 0 && (int64ok || (uint64ok && !negative))) {
+      const v = int64ok ? new BigInt64Array(n) : new BigUint64Array(n);
       for (let i = 0; i < n; i++) {
         if (isNull[i]) continue;
         const x = val[i]!;
         if (cls[i] !== C_INT) bad(i);
         else v[i] = Math.abs(x) < 9007199254740992 ? BigInt(x) : BigInt(trimmedCell(recs, first, j, i));
       }
-      return withMeta({ name, kind: "int64", values: v });
-    }
-    if (floats === 0 && uint64ok && !negative) {
-      // beyond int64 but unsigned (identifiers of 64 bits): kept exact, not rounded to a double
-      const v = new BigUint64Array(n);
-      for (let i = 0; i < n; i++) {
-        if (isNull[i]) continue;
-        const x = val[i]!;
-        if (cls[i] !== C_INT) bad(i);
-        else v[i] = x < 9007199254740992 ? BigInt(x) : BigInt(trimmedCell(recs, first, j, i));
-      }
-      return withMeta({ name, kind: "uint64", values: v });
+      return withMeta({ name, kind: int64ok ? "int64" : "uint64", values: v });
     }
     for (let i = 0; i < n; i++) {
       if (isNull[i]) continue;
