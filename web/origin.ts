@@ -8,7 +8,7 @@
 import type { ViewData } from "./data.js";
 import { originOf, recentre, type RecentreOrigin } from "../src/flow/recentre.js";
 import type { RecentreThreads } from "../src/flow/recentre-kernels.js";
-import { fitFlow, flowPoints, type FlowRows } from "../src/flow/bulkflow.js";
+import { fitFlow, flowPoints, trustedDistances, type FlowRows } from "../src/flow/bulkflow.js";
 import { groupTable } from "../src/flow/groups.js";
 import { excludeMembers, groupOrigin } from "../src/flow/origins.js";
 import { DEFAULT_COSMOLOGY, type Cosmology } from "../src/cosmology/distances.js";
@@ -240,7 +240,7 @@ export function groupView(inp: OriginInputs, groupIds: Int32Array, groupId: numb
   let nG = 0;
   for (const g of groupIds) if (g > nG) nG = g;
   const gt = groupTable(
-    { groupId: groupIds, nGroups: nG, raDeg: inp.raDeg, decDeg: inp.decDeg, czKmS: inp.rows.czCmbKmS, distCMpc: inp.rows.distCMpc, distFracErr: inp.rows.distFracErr },
+    { groupId: groupIds, nGroups: nG, raDeg: inp.raDeg, decDeg: inp.decDeg, czKmS: inp.rows.czCmbKmS, distCMpc: trustedDistances(inp.rows), distFracErr: inp.rows.distFracErr },
     inp.cosmology,
   );
   const k = groupId - 1;

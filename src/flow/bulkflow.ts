@@ -106,6 +106,12 @@ export function flowPoints(rows: FlowRows, c: Cosmology): { x: Float64Array; y: 
   return { x, y, z, vr, vrErr };
 }
 
+/** The measured distances of the rows in `use` (NaN elsewhere): a group's members with a trusted distance place it. */
+export function trustedDistances(rows: FlowRows): Float64Array {
+  const use = rows.use;
+  return use ? Float64Array.from(rows.distCMpc, (d, i) => (use[i] ? d : NaN)) : Float64Array.from(rows.distCMpc);
+}
+
 /**
  * Why row i of `rows` cannot enter the flow fit, or "" when it can: the one test fitFlow applies
  * (callers name the reason of a row left out with it). The names are the flow columns' defaults.

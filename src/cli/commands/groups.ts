@@ -13,6 +13,7 @@ import { convertPositions } from "../../sky/frames.js";
 import { friendsOfFriends, type FofScaling } from "../../flow/fof.js";
 import { groupTable } from "../../flow/groups.js";
 import { columnName, flowRowsOfTable, splitFlowColumns } from "../../flow/table.js";
+import { trustedDistances } from "../../flow/bulkflow.js";
 import { float64Column } from "../../catalogue/columns.js";
 import { CATALOGUE_FLAGS, CATALOGUE_FLAGS_HELP, loadForCommand, parseCatalogueFlags } from "../catalogue-flags.js";
 
@@ -113,10 +114,9 @@ const command: Command = {
     // come from members with a trusted distance only: valid, and not flagged outlier (as in 'run').
     const fof = friendsOfFriends(cat.raDeg, cat.decDeg, cz, o);
     const haveDist = hasColumn(cat.table, columnName(names, "dist_c_mpc")) && hasColumn(cat.table, columnName(names, "dist_c_err_mpc"));
-    const flowRows = haveDist ? flowRowsOfTable(cat.table, cat.raDeg, cat.decDeg, names, cat.file, true) : undefined;
-    const rows = flowRows?.rows;
+    const rows = haveDist ? flowRowsOfTable(cat.table, cat.raDeg, cat.decDeg, names, cat.file, true).rows : undefined;
     const gt = groupTable(
-      { groupId: fof.groupId, nGroups: fof.nGroups, raDeg: cat.raDeg, decDeg: cat.decDeg, czKmS: cz, ...(rows ? { distCMpc: Float64Array.from(rows.distCMpc, (d, i) => (flowRows!.use[i] ? d : NaN)), distFracErr: rows.distFracErr } : {}) },
+      { groupId: fof.groupId, nGroups: fof.nGroups, raDeg: cat.raDeg, decDeg: cat.decDeg, czKmS: cz, ...(rows ? { distCMpc: trustedDistances(rows), distFracErr: rows.distFracErr } : {}) },
       { h0, omegaM },
     );
     const s = fof.settings;

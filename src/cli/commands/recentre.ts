@@ -12,7 +12,7 @@ import { recordStep } from "../../catalogue/meta.js";
 import { sourceRows } from "../../catalogue/validity.js";
 import { DEFAULT_COSMOLOGY, type Cosmology } from "../../cosmology/distances.js";
 import { lonLatOf } from "../../sky/vectors.js";
-import { fitFlow, flowPoints } from "../../flow/bulkflow.js";
+import { fitFlow, flowPoints, trustedDistances } from "../../flow/bulkflow.js";
 import { recentre, type RecentreOrigin, type Recentred } from "../../flow/recentre.js";
 import { copernicanCheck } from "../../flow/copernican.js";
 import { groupTable } from "../../flow/groups.js";
@@ -254,8 +254,7 @@ function resolveOrigin(
     for (let i = 0; i < gid.length; i++) nG = Math.max(nG, gid[i]!);
     // the group's distance from members with a trusted distance (valid, and not outliers unless
     // --keep-outliers), as 'groups' and 'run' place it
-    const trusted = Float64Array.from(t.rows.distCMpc, (d, i) => (t.use[i] ? d : NaN));
-    const gt = groupTable({ groupId: gid, nGroups: nG, raDeg: cat.raDeg, decDeg: cat.decDeg, czKmS: t.rows.czCmbKmS, distCMpc: trusted, distFracErr: t.rows.distFracErr }, cosmo);
+    const gt = groupTable({ groupId: gid, nGroups: nG, raDeg: cat.raDeg, decDeg: cat.decDeg, czKmS: t.rows.czCmbKmS, distCMpc: trustedDistances(t.rows), distFracErr: t.rows.distFracErr }, cosmo);
     let k: number;
     if (g[1] === "richest") {
       k = richestGroup(gt);

@@ -15,6 +15,7 @@ import { DEG } from "../../sky/angles.js";
 import type { RunContext, StepOutcome } from "../runner.js";
 import { saveTable, withTable, type ClusterOutcome, type PipelineState } from "../state.js";
 import { flowRowsOfTable } from "../../flow/table.js";
+import { trustedDistances } from "../../flow/bulkflow.js";
 
 function groupsTableArrow(g: GroupTable) {
   const f = (name: string, values: Float64Array, unit: string, description: string): ColumnData => {
@@ -97,7 +98,7 @@ export async function groupsStep(ctx: RunContext<PipelineState>): Promise<StepOu
   const fof = friendsOfFriends(src.raDeg, src.decDeg, cz, o);
   // Group distances from members with a trusted distance only.
   const rows = flowRowsOfTable(src.table, src.raDeg, src.decDeg, {}, src.file, true).rows;
-  const dist = Float64Array.from(rows.distCMpc, (d, i) => (rows.use![i] ? d : NaN));
+  const dist = trustedDistances(rows);
   const g = groupTable({ groupId: fof.groupId, nGroups: fof.nGroups, raDeg: src.raDeg, decDeg: src.decDeg, czKmS: cz, distCMpc: dist, distFracErr: rows.distFracErr }, { h0, omegaM: plan.steps.velocities.omegaM });
   s.groups = g;
   const n = src.table.numRows;
