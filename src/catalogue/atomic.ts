@@ -54,16 +54,21 @@ function canonical(path: string): string {
   }
 }
 
+/** The file's stat, or undefined when it cannot be read (not there). */
+function statOf(path: string): ReturnType<typeof statSync> | undefined {
+  try {
+    return statSync(path);
+  } catch {
+    return undefined;
+  }
+}
+
 /** True when the two paths name the same file (also through links, or both not there yet). */
 function sameFile(p: string, q: string): boolean {
   if (canonical(p) === canonical(q)) return true;
-  try {
-    const a = statSync(p);
-    const b = statSync(q);
-    return a.dev === b.dev && a.ino === b.ino;
-  } catch {
-    return false;
-  }
+  const a = statOf(p);
+  const b = statOf(q);
+  return a !== undefined && b !== undefined && a.dev === b.dev && a.ino === b.ino;
 }
 
 /** Refuses to write `output` when it is the same file as `input` (also through links). */
@@ -84,17 +89,7 @@ export function assertOutputs(inputs: readonly string[], outputs: readonly (stri
       if (sameFile(outs[m]!, outs[k]!)) throw new PeculiarError("usage", `two outputs are the same file (${outs[m]} and ${outs[k]}); give each its own path`, { file: outs[k]! });
     }
     const dir = dirname(resolve(outs[k]!));
-    let isDir = false;
-    try {
-      isDir = statSync(dir).isDirectory();
-    } catch {
-      isDir = false;
-    }
-    if (!isDir) throw new PeculiarError("io", `cannot write: folder does not exist (${dir})`, { file: outs[k]! });
-    try {
-      if (statSync(outs[k]!).isDirectory()) throw new PeculiarError("io", "cannot write: the output is a folder", { file: outs[k]! });
-    } catch (e) {
-      if (e instanceof PeculiarError) throw e;
-    }
+    if (!statOf(dir)?.isDirectory()) throw new PeculiarError("io", `cannot write: folder does not exist (${dir})`, { file: outs[k]! });
+    if (statOf(outs[k]!)?.isDirectory()) throw new PeculiarError("io", "cannot write: the output is a folder", { file: outs[k]! });
   }
 }

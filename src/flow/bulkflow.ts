@@ -127,6 +127,11 @@ export function flowRowProblem(rows: FlowRows, i: number, opts: Pick<FlowOptions
   return "";
 }
 
+/** Why row i is not in a fit: flowRowProblem, or, for a row it passed, that the log-distance residual had no value. */
+export function whyNotFitted(rows: FlowRows, i: number, opts: Pick<FlowOptions, "maxDistMpc" | "cosmology"> = {}): string {
+  return flowRowProblem(rows, i, opts) || "no log-distance residual (cz_cmb <= 0)";
+}
+
 export function fitFlow(rows: FlowRows, opts: FlowOptions = {}): FlowFit {
   const base = opts.cosmology ?? { h0: 70, omegaM: 0.3 };
   const sigmaStar = opts.sigmaStar ?? 250;

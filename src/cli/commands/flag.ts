@@ -10,7 +10,7 @@ import { withColumns, type ColumnData } from "../../catalogue/columns.js";
 import { recordStep } from "../../catalogue/meta.js";
 import { DEFAULT_COSMOLOGY } from "../../cosmology/distances.js";
 import { flagOutliers, OUTLIER_CLIPPED, OUTLIER_UNSCORED, type OutlierMethod } from "../../flow/outliers.js";
-import { flowRowProblem } from "../../flow/bulkflow.js";
+import { whyNotFitted } from "../../flow/bulkflow.js";
 import { flowRowsOfTable, splitFlowColumns } from "../../flow/table.js";
 import { CATALOGUE_FLAGS, CATALOGUE_FLAGS_HELP, loadForCommand, parseCatalogueFlags } from "../catalogue-flags.js";
 
@@ -89,7 +89,7 @@ const command: Command = {
     for (let i = 0; i < n; i++) {
       const c = res.code[i]!;
       if (c === OUTLIER_CLIPPED) reasons[i] = `${scoreName} = ${Math.abs(res.score[i]!).toFixed(2)} > ${k} (${method}, iteration ${res.iteration[i]}; ${model})`;
-      else if (c === OUTLIER_UNSCORED) reasons[i] = `not scored: ${flowRowProblem(t.rows, i, test) || "no log-distance residual (cz_cmb <= 0)"}`;
+      else if (c === OUTLIER_UNSCORED) reasons[i] = `not scored: ${whyNotFitted(t.rows, i, test)}`;
       else if (!t.use[i]) reasons[i] = Number.isFinite(res.score[i]!) ? "not flagged: invalid row (scored, left out of the fit)" : "not scored: invalid row";
       else reasons[i] = "";
     }

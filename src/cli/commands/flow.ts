@@ -10,7 +10,7 @@ import { assertOutputs, writeTable } from "../../catalogue/io.js";
 import { withColumns } from "../../catalogue/columns.js";
 import { recordStep } from "../../catalogue/meta.js";
 import { DEFAULT_COSMOLOGY } from "../../cosmology/distances.js";
-import { fitFlow, flowRowProblem, type FlowOptions, type FlowRows } from "../../flow/bulkflow.js";
+import { fitFlow, whyNotFitted, type FlowOptions, type FlowRows } from "../../flow/bulkflow.js";
 import { flowRowsOfTable, splitFlowColumns } from "../../flow/table.js";
 import { CATALOGUE_FLAGS, CATALOGUE_FLAGS_HELP, loadForCommand, parseCatalogueFlags } from "../catalogue-flags.js";
 
@@ -144,7 +144,7 @@ function leftOut(rows: FlowRows, use: Uint8Array, used: Uint8Array, opts: FlowOp
   const by = new Map<string, number>();
   for (let i = 0; i < use.length; i++) {
     if (!use[i] || used[i]) continue;
-    const why = flowRowProblem(rows, i, opts) || "no log-distance residual (cz_cmb <= 0)";
+    const why = whyNotFitted(rows, i, opts);
     by.set(why, (by.get(why) ?? 0) + 1);
   }
   return [...by].map(([why, k]) => `${k} ${why}`);

@@ -177,7 +177,8 @@ const command: Command = {
       );
     }
     if (noPos + noCz + blue > 0) {
-      const parts = [[noPos, "no usable position"], [noCz, `no ${czName}`], [blue, `${czName} <= 0 (no Hubble distance to link at)`]].filter(([k]) => (k as number) > 0).map(([k, why]) => `${k} ${why}`);
+      const counts: [number, string][] = [[noPos, "no usable position"], [noCz, `no ${czName}`], [blue, `${czName} <= 0 (no Hubble distance to link at)`]];
+      const parts = counts.filter(([k]) => k > 0).map(([k, why]) => `${k} ${why}`);
       io.note(`groups: ${noPos + noCz + blue} rows not linked (group_size 0): ${parts.join(", ")}`);
     }
     io.note(`wrote ${output}${values["groups-out"] ? ` and ${values["groups-out"]}` : ""}`);
